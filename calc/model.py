@@ -1,0 +1,257 @@
+"""The member model: immutable SI dataclasses that map one-to-one onto the worksheet.
+
+A member is a straight Euler-Bernoulli beam made of uniform segments, laid out
+left to right along x (x = 0 at the left end), vibrating in bending in one
+plane.  It may carry point masses and rotary inertias, grounded translational
+and rotational springs, rigid inner supports, distributed added mass, and a
+constant axial force (tension positive).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+from calc.errors import InputError
+from calc.materials import Material
+from calc.sections import Section
+
+__all__ = [
+    "END_KINDS",
+    "INNER_KINDS",
+    "Segment",
+    "PointMass",
+    "Spring",
+    "InnerSupport",
+    "Member",
+    "rigid_body_count",
+]
+
+END_KINDS = ("clamped", "pinned", "guided", "free")
+INNER_KINDS = ("pinned", "clamped", "guided")
+
+# What each support kind holds: (deflection, slope).
+HOLDS = {
+    "clamped": (True, True),
+    "pinned": (True, False),
+    "guided": (False, True),
+    "free": (False, False),
+}
+
+# Two positions closer than this fraction of the member length are one station.
+POSITION_TOLERANCE = 1e-9
+
+
+@dataclass(frozen=True)
+class Segment:
+    """A uniform length of the member.
+
+    Attributes
+    ----------
+    length : float
+        Segment length [m].
+    material : Material
+        Its material.
+    section : Section
+        Its cross-section.
+    added_mass : float
+        Non-structural mass per length carried along it [kg/m].
+    """
+
+    length: float
+    material: Material
+    section: Section
+    added_mass: float = 0.0
+
+    @property
+    def bending_stiffness(self) -> float:
+        """EI [N*m^2]."""
+        return self.material.youngs_modulus * self.section.second_moment
+
+    @property
+    def mass_per_length(self) -> float:
+        """rho*A + added mass [kg/m]."""
+        return self.material.density * self.section.area + self.added_mass
+
+
+@dataclass(frozen=True)
+class PointMass:
+    """A point mass at ``at`` [m]: mass [kg], rotary inertia about the bending axis [kg*m^2]."""
+
+    at: float
+    mass: float
+    rotary_inertia: float = 0.0
+
+
+@dataclass(frozen=True)
+class Spring:
+    """A grounded spring at ``at`` [m]: stiffness [N/m], rotational stiffness [N*m/rad]."""
+
+    at: float
+    stiffness: float = 0.0
+    rotational_stiffness: float = 0.0
+
+
+@dataclass(frozen=True)
+class InnerSupport:
+    """A rigid support strictly inside the member at ``at`` [m]; kind pinned, clamped or guided."""
+
+    at: float
+    kind: str
+
+
+@dataclass(frozen=True)
+class Member:
+    """A beam-like member, all in SI.
+
+    Attributes
+    ----------
+    segments : tuple of Segment
+        Left to right; a uniform member has one.
+    left, right : str
+        End conditions, each one of ``END_KINDS``.
+    masses : tuple of PointMass
+    springs : tuple of Spring
+    inner_supports : tuple of InnerSupport
+    axial_force : float
+        Constant axial force [N], tension positive.
+
+    Raises
+    ------
+    InputError
+        When the description is inconsistent; the key path names the worksheet entry.
+    """
+
+    segments: tuple[Segment, ...]
+    left: str = "clamped"
+    right: str = "free"
+    masses: tuple[PointMass, ...] = ()
+    springs: tuple[Spring, ...] = ()
+    inner_supports: tuple[InnerSupport, ...] = ()
+    axial_force: float = 0.0
+    _boundaries: tuple[float, ...] = field(init=False, repr=False, compare=False)
+
+    def __post_init__(self) -> None:
+        if not self.segments:
+            raise InputError("member", None, "a length, material and section, or segments")
+        edges = [0.0]
+        for seg in self.segments:
+            edges.append(edges[-1] + seg.length)
+        object.__setattr__(self, "_boundaries", tuple(edges))
+        _validate(self)
+
+    @property
+    def length(self) -> float:
+        """Total length L [m]."""
+        return self._boundaries[-1]
+
+    @property
+    def boundaries(self) -> tuple[float, ...]:
+        """Positions of segment ends, 0 to L [m]."""
+        return self._boundaries
+
+    @property
+    def is_uniform(self) -> bool:
+        """True when every segment has the same EI and mass per length."""
+        first = self.segments[0]
+        return all(
+            math.isclose(s.bending_stiffness, first.bending_stiffness, rel_tol=1e-12)
+            and math.isclose(s.mass_per_length, first.mass_per_length, rel_tol=1e-12)
+            for s in self.segments
+        )
+
+    @property
+    def member_mass(self) -> float:
+        """Mass of the member itself including added mass [kg]."""
+        return sum(s.mass_per_length * s.length for s in self.segments)
+
+    @property
+    def total_mass(self) -> float:
+        """Member mass plus point masses [kg]."""
+        return self.member_mass + sum(m.mass for m in self.masses)
+
+    def segment_index(self, x: float) -> int:
+        """Index of the segment containing position ``x`` [m] (the left one at a boundary)."""
+        for i, end in enumerate(self._boundaries[1:]):
+            if x <= end:
+                return i
+        return len(self.segments) - 1
+
+
+def _validate(member: Member) -> None:
+    L = member.length
+    tol = POSITION_TOLERANCE * L
+    for key, kind in (("supports.left", member.left), ("supports.right", member.right)):
+        if kind not in END_KINDS:
+            raise InputError(key, kind, "one of " + ", ".join(END_KINDS))
+    for i, m in enumerate(member.masses):
+        _check_position(f"mass[{i}].at", m.at, L, tol)
+    for i, s in enumerate(member.springs):
+        _check_position(f"spring[{i}].at", s.at, L, tol)
+    seen: list[float] = []
+    for i, sup in enumerate(member.inner_supports):
+        key = f"supports.inner[{i}]"
+        if sup.kind not in INNER_KINDS:
+            raise InputError(f"{key}.kind", sup.kind, "one of " + ", ".join(INNER_KINDS))
+        if not (tol < sup.at < L - tol):
+            raise InputError(
+                f"{key}.at",
+                f"{sup.at:.6g} m",
+                f"a position strictly inside the member, between 0 m and {L:.6g} m "
+                "(use supports.left and supports.right for the ends)",
+            )
+        for j, other in enumerate(seen):
+            if abs(other - sup.at) <= tol:
+                raise InputError(
+                    f"{key}.at",
+                    f"{sup.at:.6g} m",
+                    f"a position different from supports.inner[{j}].at; two supports at one place",
+                )
+        seen.append(sup.at)
+
+
+def _check_position(key: str, at: float, L: float, tol: float) -> None:
+    if not math.isfinite(at) or at < -tol or at > L + tol:
+        raise InputError(key, f"{at:.6g} m", f"a position on the member, from 0 m to {L:.6g} m")
+
+
+def rigid_body_count(member: Member) -> int:
+    """Number of rigid-body modes, decided from the supports and springs themselves.
+
+    The rigid motions of a beam are w = a + b*x.  Every restraint removes what
+    it holds of them: zero deflection or a translational spring at x holds
+    a + b*x, zero slope or a rotational spring holds b, and an axial force
+    (through its geometric stiffness) holds b as well.  What the restraints
+    leave free is counted exactly, without a numerical threshold.
+
+    Parameters
+    ----------
+    member : Member
+
+    Returns
+    -------
+    int
+        0, 1 or 2.
+    """
+    L = member.length
+    tol = POSITION_TOLERANCE * L
+    deflection_at: list[float] = []
+    slope_held = member.axial_force != 0.0
+    supports = [(0.0, member.left), (L, member.right)]
+    supports += [(s.at, s.kind) for s in member.inner_supports]
+    for x, kind in supports:
+        holds_w, holds_slope = HOLDS[kind]
+        if holds_w:
+            deflection_at.append(x)
+        slope_held = slope_held or holds_slope
+    for s in member.springs:
+        if s.stiffness > 0.0:
+            deflection_at.append(s.at)
+        if s.rotational_stiffness > 0.0:
+            slope_held = True
+    distinct: list[float] = []
+    for x in sorted(deflection_at):
+        if not distinct or x - distinct[-1] > tol:
+            distinct.append(x)
+    rank = min(2, (1 if slope_held else 0) + min(len(distinct), 2 if not slope_held else 1))
+    return 2 - rank

@@ -1,0 +1,242 @@
+"""The project's single unit registry, and quantity parsing at the edges.
+
+Every quantity a user writes is a string ``"number unit"``.  It is parsed here,
+once, checked against the dimension its field needs, and handed on as a plain
+SI float.  The numerical core never sees units.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from functools import cache
+from typing import TYPE_CHECKING
+
+from calc.errors import InputError
+
+if TYPE_CHECKING:  # pragma: no cover
+    import pint
+
+__all__ = [
+    "Dimension",
+    "LENGTH",
+    "MASS",
+    "DENSITY",
+    "PRESSURE",
+    "AREA",
+    "SECOND_MOMENT",
+    "MASS_PER_LENGTH",
+    "FORCE",
+    "STIFFNESS",
+    "ROTATIONAL_STIFFNESS",
+    "ROTARY_INERTIA",
+    "FREQUENCY",
+    "registry",
+    "parse_quantity",
+    "format_quantity",
+    "convert_from_si",
+]
+
+
+@dataclass(frozen=True)
+class Dimension:
+    """A physical dimension a field needs.
+
+    Attributes
+    ----------
+    name : str
+        Plain-words name used in messages (``"a length"``).
+    pint_dimension : str
+        The dimension in pint's notation, e.g. ``"[mass] / [length] ** 3"``.
+    si_unit : str
+        The SI unit the core works in, e.g. ``"kg/m^3"``.
+    example : str
+        A valid example entry for messages.
+    """
+
+    name: str
+    pint_dimension: str
+    si_unit: str
+    example: str
+
+
+LENGTH = Dimension("a length", "[length]", "m", '"1.2 m" or "48 in"')
+MASS = Dimension("a mass", "[mass]", "kg", '"2.5 kg" or "5.5 lb"')
+DENSITY = Dimension("a density (mass per volume)", "[mass] / [length] ** 3", "kg/m^3",
+                    '"7850 kg/m^3" or "0.284 lb/in^3"')  # fmt: skip
+PRESSURE = Dimension("a modulus (force per area)", "[mass] / [length] / [time] ** 2", "Pa",
+                     '"200 GPa" or "29000 ksi"')  # fmt: skip
+AREA = Dimension("an area", "[length] ** 2", "m^2", '"450 mm^2" or "0.7 in^2"')
+SECOND_MOMENT = Dimension("a second moment of area", "[length] ** 4", "m^4",
+                          '"1.2e6 mm^4" or "2.9 in^4"')  # fmt: skip
+MASS_PER_LENGTH = Dimension("a mass per length", "[mass] / [length]", "kg/m",
+                            '"0.8 kg/m" or "0.5 lb/ft"')  # fmt: skip
+FORCE = Dimension("a force", "[mass] * [length] / [time] ** 2", "N", '"2 kN" or "450 lbf"')
+STIFFNESS = Dimension("a stiffness (force per length)", "[mass] / [time] ** 2", "N/m",
+                      '"40 kN/m" or "200 lbf/in"')  # fmt: skip
+ROTATIONAL_STIFFNESS = Dimension("a rotational stiffness (moment per radian)",
+                                 "[mass] * [length] ** 2 / [time] ** 2", "N*m/rad",
+                                 '"2 kN*m/rad" or "1500 lbf*in/rad"')  # fmt: skip
+ROTARY_INERTIA = Dimension("a rotary inertia (mass times length squared)",
+                           "[mass] * [length] ** 2", "kg*m^2", '"0.004 kg*m^2"')  # fmt: skip
+FREQUENCY = Dimension("a frequency", "1 / [time]", "Hz", '"60 Hz"')
+
+# A number, then a unit expression made of unit names, powers, products and quotients.
+_NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?"
+_QUANTITY = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
+_UNIT_TEXT = re.compile(r"^[A-Za-z_µμΩ°][A-Za-z0-9_µμΩ°\s\*/\^\(\)\.·-]*$")
+_BIG_POWER = re.compile(r"(\^|\*\*)\s*\(?\s*[+-]?\d{2,}")
+_MAX_TEXT = 80
+
+# Weight-based units given where a mass-based one belongs: name them and say what to give.
+_WEIGHT_IN_PLACE_OF = {
+    "[mass]": ("a weight (force)", "a mass, e.g. 5.5 lb or 2.5 kg (lb is pound-mass)"),
+    "[mass] / [length] ** 3": (
+        "a weight density (force per volume)",
+        "a mass density, e.g. 0.284 lb/in^3 or 7850 kg/m^3 (divide a weight density by g)",
+    ),
+    "[mass] / [length]": (
+        "a weight per length (force per length)",
+        "a mass per length, e.g. 0.5 lb/ft or 0.8 kg/m (divide by g)",
+    ),
+}
+
+
+@cache
+def registry() -> pint.UnitRegistry:
+    """Return the project's one pint registry (created on first use).
+
+    Returns
+    -------
+    pint.UnitRegistry
+        The shared registry; ``lb`` is the pound-mass and ``lbf`` the pound-force.
+    """
+    import pint
+
+    return pint.UnitRegistry()
+
+
+@cache
+def _dimensionality(pint_dimension: str) -> object:
+    return registry().get_dimensionality(pint_dimension)
+
+
+def _parse_units(text: str, key: str, given: str, dim: Dimension) -> pint.Unit:
+    import pint
+
+    expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
+    if not text:
+        raise InputError(key, given, expected, "the unit is missing")
+    if not _UNIT_TEXT.match(text) or _BIG_POWER.search(text):
+        raise InputError(key, given, expected, f"{text!r} is not a unit expression")
+    try:
+        return registry().parse_units(text.replace("·", "*"))
+    except pint.errors.UndefinedUnitError as exc:
+        names = exc.unit_names if isinstance(exc.unit_names, str) else ", ".join(exc.unit_names)
+        raise InputError(key, given, expected, f"unknown unit {names!r}") from None
+    except (pint.errors.PintError, ValueError, TypeError, SyntaxError, AttributeError,
+            KeyError, IndexError, ZeroDivisionError, OverflowError):  # fmt: skip
+        raise InputError(key, given, expected, f"{text!r} is not a unit expression") from None
+
+
+def parse_quantity(
+    text: object,
+    dim: Dimension,
+    key: str,
+    *,
+    allow_zero: bool = False,
+    allow_negative: bool = False,
+) -> float:
+    """Parse a ``"number unit"`` string into an SI float of the given dimension.
+
+    Parameters
+    ----------
+    text : object
+        What the user wrote; anything but a string is refused.
+    dim : Dimension
+        The dimension the field needs.
+    key : str
+        Key path named in any error, e.g. ``"member.section.wall"``.
+    allow_zero, allow_negative : bool
+        Whether zero and negative values are acceptable.
+
+    Returns
+    -------
+    float
+        The value in the SI unit of ``dim`` (``dim.si_unit``).
+
+    Raises
+    ------
+    InputError
+        On a non-string, a bad number, an unknown unit, a wrong dimension, a
+        non-finite value, or a sign the field does not allow.
+    """
+    expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
+    if isinstance(text, bool) or not isinstance(text, str):
+        hint = f"a {type(text).__name__} is not a quantity: write it as a quoted string"
+        if isinstance(text, int | float) and not isinstance(text, bool):
+            hint = f'a bare number has no unit: write it as a string, e.g. "{text} {dim.si_unit}"'
+        raise InputError(key, text, f"a string giving {dim.name}, e.g. {dim.example}", hint)
+    if len(text) > _MAX_TEXT:
+        raise InputError(key, text, expected, f"longer than {_MAX_TEXT} characters")
+    match = _QUANTITY.match(text)
+    if not match:
+        lowered = text.strip().lower()
+        if lowered.lstrip("+-").startswith(("nan", "inf")):
+            raise InputError(key, text, f"a finite number with a unit, e.g. {dim.example}")
+        raise InputError(key, text, expected)
+    number = float(match.group(1))
+    if not math.isfinite(number):
+        raise InputError(key, text, f"a finite number with a unit, e.g. {dim.example}")
+    units = _parse_units(match.group(2), key, text, dim)
+    quantity = number * units
+    ureg = registry()
+    if quantity.dimensionality != _dimensionality(dim.pint_dimension):
+        hint = f"{match.group(2)!r} is {_describe(quantity.dimensionality)}"
+        weight = _WEIGHT_IN_PLACE_OF.get(dim.pint_dimension)
+        if weight is not None:
+            force_dim = ureg.get_dimensionality(dim.pint_dimension + " * [length] / [time] ** 2")
+            if quantity.dimensionality == force_dim:
+                raise InputError(key, text, weight[1], f"{match.group(2)!r} gives {weight[0]}")
+        raise InputError(key, text, expected, hint)
+    value = float(quantity.to(dim.si_unit).magnitude)
+    if not math.isfinite(value):
+        raise InputError(key, text, f"a finite value; this one overflows in {dim.si_unit}")
+    if value == 0.0 and not allow_zero:
+        raise InputError(key, text, f"a non-zero {dim.name.removeprefix('a ')}")
+    if value < 0.0 and not allow_negative:
+        sign = "zero or positive" if allow_zero else "positive"
+        raise InputError(key, text, f"a {sign} {dim.name.removeprefix('a ').removeprefix('an ')}")
+    return value
+
+
+def _describe(dimensionality: object) -> str:
+    text = str(dimensionality)
+    return "dimensionless" if text == "dimensionless" else f"of dimension {text}"
+
+
+def convert_from_si(value: float, unit_text: str) -> float:
+    """Express an SI value in another unit of the same dimension.
+
+    Parameters
+    ----------
+    value : float
+        Value in SI base units.
+    unit_text : str
+        Target unit, e.g. ``"mm"``.
+
+    Returns
+    -------
+    float
+        The value in ``unit_text``.
+    """
+    ureg = registry()
+    target = ureg.parse_units(unit_text)
+    base = (1.0 * target).to_base_units()
+    return value / float(base.magnitude)
+
+
+def format_quantity(value: float, unit: str, digits: int = 6) -> str:
+    """Format a float with a unit, using ``digits`` significant figures."""
+    return f"{value:.{digits}g} {unit}"

@@ -1,0 +1,432 @@
+"""Worksheet format 1: TOML in, a validated :class:`~calc.model.Member` out.
+
+Every quantity is a string ``"number unit"`` parsed once here by the project's
+unit registry.  Every mistake raises :class:`~calc.errors.InputError` naming
+the key path (``member.section.wall``, ``mass[0].at``), the value given and
+what was expected; unknown keys get a did-you-mean hint.  The file is only
+read, never written.
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from calc import materials
+from calc.errors import InputError
+from calc.materials import Material
+from calc.model import END_KINDS, INNER_KINDS, InnerSupport, Member, PointMass, Segment, Spring
+from calc.sections import SHAPES, Section, build_section
+from calc.units import (
+    DENSITY,
+    FORCE,
+    LENGTH,
+    MASS,
+    MASS_PER_LENGTH,
+    PRESSURE,
+    ROTARY_INERTIA,
+    ROTATIONAL_STIFFNESS,
+    STIFFNESS,
+    parse_quantity,
+)
+
+__all__ = ["FORMAT", "MAX_BYTES", "MAX_MODES", "Worksheet", "load", "loads"]
+
+FORMAT = 1
+"""The worksheet format this version reads and writes."""
+
+MAX_BYTES = 1_000_000
+"""Largest worksheet file accepted [bytes]."""
+
+MAX_MODES = 50
+"""Most modes a worksheet may ask for."""
+
+_TOP_KEYS = ("format", "title", "notes", "member", "supports", "mass", "spring", "check")
+_MEMBER_KEYS = ("length", "material", "section", "added_mass", "axial_force", "segment")
+_SEGMENT_KEYS = ("length", "material", "section", "added_mass")
+_MATERIAL_KEYS = ("youngs_modulus", "density", "poisson_ratio", "name")
+_SUPPORT_KEYS = ("left", "right", "inner")
+_INNER_KEYS = ("at", "kind")
+_MASS_KEYS = ("at", "mass", "rotary_inertia")
+_SPRING_KEYS = ("at", "stiffness", "rotational_stiffness")
+_CHECK_KEYS = ("modes",)
+
+
+@dataclass(frozen=True)
+class Worksheet:
+    """A loaded worksheet.
+
+    Attributes
+    ----------
+    title : str
+    notes : str
+    member : Member
+        The member in SI.
+    modes : int
+        How many modes to report.
+    source : str
+        Where it came from (a path, or ``"<text>"``).
+    data : dict
+        The worksheet as plain Python data, as written.
+    """
+
+    title: str
+    notes: str
+    member: Member
+    modes: int
+    source: str = "<text>"
+    data: dict[str, Any] = field(default_factory=dict, repr=False, compare=False)
+
+
+def load(path: str | Path) -> Worksheet:
+    """Read and validate a worksheet file.
+
+    Parameters
+    ----------
+    path : str or Path
+
+    Returns
+    -------
+    Worksheet
+
+    Raises
+    ------
+    InputError
+        For a missing, unreadable, binary, empty, oversized or malformed file,
+        and for any invalid entry in it.
+    """
+    p = Path(path)
+    try:
+        size = p.stat().st_size
+        if size > MAX_BYTES:
+            raise InputError(
+                "file", str(p), f"a worksheet of at most {MAX_BYTES // 1000} kB", f"{size} bytes"
+            )
+        raw = p.read_bytes()
+    except FileNotFoundError:
+        raise InputError("file", str(p), "an existing worksheet file") from None
+    except IsADirectoryError:
+        raise InputError("file", str(p), "a worksheet file, not a folder") from None
+    except PermissionError:
+        raise InputError("file", str(p), "a worksheet file you may read") from None
+    except OSError as exc:
+        raise InputError("file", str(p), "a readable worksheet file", exc.strerror) from None
+    return _from_bytes(raw, str(p), default_title=p.stem)
+
+
+def loads(text: str, source: str = "<text>") -> Worksheet:
+    """Validate a worksheet given as TOML text (see :func:`load`)."""
+    if len(text.encode("utf-8", "surrogatepass")) > MAX_BYTES:
+        raise InputError("file", source, f"a worksheet of at most {MAX_BYTES // 1000} kB")
+    return _parse(text, source, default_title="")
+
+
+def _from_bytes(raw: bytes, source: str, default_title: str) -> Worksheet:
+    if b"\x00" in raw:
+        raise InputError("file", source, "a TOML text file", "it contains binary data")
+    try:
+        text = raw.decode("utf-8")
+    except UnicodeDecodeError as exc:
+        raise InputError(
+            "file", source, "a TOML text file in UTF-8", f"undecodable byte at offset {exc.start}"
+        ) from None
+    return _parse(text.removeprefix("\ufeff"), source, default_title)
+
+
+def _parse(text: str, source: str, default_title: str) -> Worksheet:
+    import tomlkit
+    import tomlkit.exceptions
+
+    if not text.strip():
+        raise InputError("file", source, "a worksheet; the file is empty (start with format = 1)")
+    try:
+        data = tomlkit.parse(text).unwrap()
+    except tomlkit.exceptions.ParseError as exc:
+        raise InputError(
+            "file", source, "valid TOML", f"line {exc.line}, column {exc.col}: {_reason(exc)}"
+        ) from None
+    except (tomlkit.exceptions.TOMLKitError, ValueError, RecursionError) as exc:
+        raise InputError("file", source, "valid TOML", str(exc).splitlines()[0][:120]) from None
+    return _worksheet(data, source, default_title)
+
+
+def _reason(exc: Exception) -> str:
+    text = str(exc)
+    return text.split(" at line ")[0] if " at line " in text else text
+
+
+# --- validation ----------------------------------------------------------------------------------
+
+
+def _hint(name: str, allowed: tuple[str, ...] | list[str]) -> str | None:
+    close = difflib.get_close_matches(name, list(allowed), n=1, cutoff=0.6)
+    return f"did you mean {close[0]!r}?" if close else None
+
+
+def _keys(table: dict[str, Any], allowed: tuple[str, ...], key: str) -> None:
+    for name in table:
+        if name not in allowed:
+            path = f"{key}.{name}" if key else name
+            hint = _hint(name, allowed)
+            expected = "one of the keys " + ", ".join(allowed)
+            raise InputError(path, name, expected, hint or "unknown key")
+
+
+def _table(value: object, key: str, what: str) -> dict[str, Any]:
+    if not isinstance(value, dict):
+        raise InputError(key, value, f"a table ({what})")
+    return value
+
+
+def _tables(value: object, key: str, what: str) -> list[dict[str, Any]]:
+    if isinstance(value, dict):
+        value = [value]
+    if not isinstance(value, list):
+        raise InputError(key, value, f"an array of tables ({what})")
+    for i, item in enumerate(value):
+        _table(item, f"{key}[{i}]", what)
+    return value
+
+
+def _required(table: dict[str, Any], name: str, key: str, what: str) -> object:
+    if name not in table:
+        raise InputError(f"{key}.{name}" if key else name, None, what, "it is missing")
+    return table[name]
+
+
+def _string(value: object, key: str, what: str) -> str:
+    if not isinstance(value, str):
+        raise InputError(key, value, what)
+    return value
+
+
+def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Worksheet:
+    _format(data)
+    _keys(data, _TOP_KEYS, "")
+    title = _string(data.get("title", default_title), "title", "a text title")
+    notes = _string(data.get("notes", ""), "notes", "text notes")
+    member_table = _table(
+        _required(data, "member", "", "a [member] table"), "member", "the member description"
+    )
+    supports = _table(
+        _required(data, "supports", "", "a [supports] table with left and right"),
+        "supports",
+        "left and right end conditions",
+    )
+    segments, axial = _member(member_table)
+    left, right, inner = _supports(supports)
+    masses = tuple(_mass(t, f"mass[{i}]") for i, t in enumerate(_tables(
+        data.get("mass", []), "mass", "[[mass]] entries with at and mass")))  # fmt: skip
+    springs = tuple(_spring(t, f"spring[{i}]") for i, t in enumerate(_tables(
+        data.get("spring", []), "spring", "[[spring]] entries with at and stiffness")))  # fmt: skip
+    modes = _check(data.get("check", {}))
+    member = Member(segments, left, right, masses, springs, inner, axial)
+    return Worksheet(title, notes, member, modes, source, data)
+
+
+def _format(data: dict[str, Any]) -> None:
+    if "format" not in data:
+        raise InputError("format", None, f"format = {FORMAT} at the top of the worksheet")
+    value = data["format"]
+    if isinstance(value, bool) or not isinstance(value, int):
+        raise InputError("format", value, f"the whole number {FORMAT}")
+    if value > FORMAT:
+        raise InputError(
+            "format",
+            value,
+            f"format {FORMAT}, the newest this version of beamtone reads",
+            "the worksheet was written by a newer version; update beamtone to read it",
+        )
+    if value < 1:
+        raise InputError("format", value, f"format {FORMAT}")
+
+
+def _member(table: dict[str, Any]) -> tuple[tuple[Segment, ...], float]:
+    _keys(table, _MEMBER_KEYS, "member")
+    axial = 0.0
+    if "axial_force" in table:
+        axial = parse_quantity(
+            table["axial_force"], FORCE, "member.axial_force", allow_zero=True, allow_negative=True
+        )
+    material = _material(table["material"], "member.material") if "material" in table else None
+    section = _section(table["section"], "member.section") if "section" in table else None
+    added = _added(table, "member")
+    if "segment" not in table:
+        length = parse_quantity(
+            _required(table, "length", "member", "the member length, or [[member.segment]]"),
+            LENGTH,
+            "member.length",
+        )
+        if material is None:
+            _required(table, "material", "member", "a material name or table")
+        if section is None:
+            _required(table, "section", "member", "a section table")
+        assert material is not None and section is not None
+        return (Segment(length, material, section, added),), axial
+    segments = []
+    for i, seg in enumerate(_tables(table["segment"], "member.segment", "segments")):
+        key = f"member.segment[{i}]"
+        _keys(seg, _SEGMENT_KEYS, key)
+        length = parse_quantity(_required(seg, "length", key, "a length"), LENGTH, f"{key}.length")
+        mat = _material(seg["material"], f"{key}.material") if "material" in seg else material
+        sec = _section(seg["section"], f"{key}.section") if "section" in seg else section
+        if mat is None:
+            _required(seg, "material", key, "a material (here or in [member])")
+        if sec is None:
+            _required(seg, "section", key, "a section (here or in [member])")
+        assert mat is not None and sec is not None
+        seg_added = _added(seg, key) if "added_mass" in seg else added
+        segments.append(Segment(length, mat, sec, seg_added))
+    if not segments:
+        raise InputError("member.segment", [], "at least one segment")
+    if "length" in table:
+        total = parse_quantity(table["length"], LENGTH, "member.length")
+        given = sum(s.length for s in segments)
+        if not math.isclose(total, given, rel_tol=1e-9):
+            raise InputError(
+                "member.length",
+                table["length"],
+                f"the sum of the segment lengths ({given:.6g} m), or no member.length at all",
+            )
+    return tuple(segments), axial
+
+
+def _added(table: dict[str, Any], key: str) -> float:
+    if "added_mass" not in table:
+        return 0.0
+    value = table["added_mass"]
+    return parse_quantity(value, MASS_PER_LENGTH, f"{key}.added_mass", allow_zero=True)
+
+
+def _material(value: object, key: str) -> Material:
+    if isinstance(value, str):
+        found = materials.lookup(value)
+        if found is None:
+            names = materials.names()
+            hint = _hint(value.strip().lower(), names) or "or give youngs_modulus and density"
+            expected = "a library material: " + ", ".join(materials.LIBRARY)
+            raise InputError(key, value, expected, hint)
+        return found
+    table = _table(value, key, "a material name, or youngs_modulus and density")
+    _keys(table, _MATERIAL_KEYS, key)
+    E = parse_quantity(
+        _required(table, "youngs_modulus", key, "Young's modulus"),
+        PRESSURE,
+        f"{key}.youngs_modulus",
+    )
+    rho = parse_quantity(_required(table, "density", key, "a density"), DENSITY, f"{key}.density")
+    nu = table.get("poisson_ratio")
+    if nu is not None and (
+        isinstance(nu, bool)
+        or not isinstance(nu, int | float)
+        or not math.isfinite(nu)
+        or not -1.0 < nu < 0.5
+    ):
+        raise InputError(f"{key}.poisson_ratio", nu, "a number between -1 and 0.5")
+    name = _string(table.get("name", "inline"), f"{key}.name", "a text name")
+    return Material(name, E, rho, None if nu is None else float(nu))
+
+
+def _section(value: object, key: str) -> Section:
+    table = _table(value, key, 'a section, e.g. { shape = "round", diameter = "30 mm" }')
+    shape = table.get("shape")
+    if shape is None and {"area", "second_moment"} & set(table):
+        shape = "properties"
+    if shape is None:
+        raise InputError(f"{key}.shape", None, "one of " + ", ".join(SHAPES), "it is missing")
+    if not isinstance(shape, str) or shape not in SHAPES:
+        hint = _hint(shape, list(SHAPES)) if isinstance(shape, str) else None
+        raise InputError(f"{key}.shape", shape, "one of " + ", ".join(SHAPES), hint)
+    spec = SHAPES[shape]
+    allowed = ("shape", *(n for n, _ in spec.required), *(n for n, _ in spec.optional))
+    _keys(table, allowed, key)
+    dims: dict[str, float] = {}
+    for name, dim in spec.required:
+        dims[name] = parse_quantity(
+            _required(table, name, key, f"the {name} of a {shape} section"), dim, f"{key}.{name}"
+        )
+    for name, dim in spec.optional:
+        if name in table:
+            dims[name] = parse_quantity(table[name], dim, f"{key}.{name}")
+    return build_section(shape, dims, key)
+
+
+def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]]:
+    _keys(table, _SUPPORT_KEYS, "supports")
+    ends = []
+    for side in ("left", "right"):
+        key = f"supports.{side}"
+        kind = _required(table, side, "supports", "one of " + ", ".join(END_KINDS))
+        if not isinstance(kind, str) or kind not in END_KINDS:
+            hint = _hint(kind, END_KINDS) if isinstance(kind, str) else None
+            if isinstance(kind, str) and kind in ("spring", "elastic"):
+                hint = "write an elastic end as free plus a [[spring]] at that end"
+            raise InputError(key, kind, "one of " + ", ".join(END_KINDS), hint)
+        ends.append(kind)
+    inner = []
+    for i, item in enumerate(_tables(table.get("inner", []), "supports.inner", "{ at, kind }")):
+        key = f"supports.inner[{i}]"
+        _keys(item, _INNER_KEYS, key)
+        at = parse_quantity(_required(item, "at", key, "a position"), LENGTH, f"{key}.at",
+                            allow_zero=True, allow_negative=True)  # fmt: skip
+        kind = _required(item, "kind", key, "one of " + ", ".join(INNER_KINDS))
+        if not isinstance(kind, str) or kind not in INNER_KINDS:
+            hint = _hint(kind, INNER_KINDS) if isinstance(kind, str) else None
+            raise InputError(f"{key}.kind", kind, "one of " + ", ".join(INNER_KINDS), hint)
+        inner.append(InnerSupport(at, kind))
+    return ends[0], ends[1], tuple(inner)
+
+
+def _position(table: dict[str, Any], key: str) -> float:
+    value = _required(table, "at", key, "a position from the left end")
+    return parse_quantity(value, LENGTH, f"{key}.at", allow_zero=True, allow_negative=True)
+
+
+def _mass(table: dict[str, Any], key: str) -> PointMass:
+    _keys(table, _MASS_KEYS, key)
+    at = _position(table, key)
+    mass = parse_quantity(
+        _required(table, "mass", key, "a mass"), MASS, f"{key}.mass", allow_zero=True
+    )
+    inertia = 0.0
+    if "rotary_inertia" in table:
+        inertia = parse_quantity(
+            table["rotary_inertia"], ROTARY_INERTIA, f"{key}.rotary_inertia", allow_zero=True
+        )
+    if mass == 0.0 and inertia == 0.0:
+        raise InputError(f"{key}.mass", table["mass"], "a positive mass or rotary inertia")
+    return PointMass(at, mass, inertia)
+
+
+def _spring(table: dict[str, Any], key: str) -> Spring:
+    _keys(table, _SPRING_KEYS, key)
+    at = _position(table, key)
+    k = kr = 0.0
+    if "stiffness" in table:
+        k = parse_quantity(table["stiffness"], STIFFNESS, f"{key}.stiffness", allow_zero=True)
+    if "rotational_stiffness" in table:
+        kr = parse_quantity(
+            table["rotational_stiffness"],
+            ROTATIONAL_STIFFNESS,
+            f"{key}.rotational_stiffness",
+            allow_zero=True,
+        )
+    if k == 0.0 and kr == 0.0:
+        raise InputError(
+            f"{key}.stiffness",
+            table.get("stiffness"),
+            "a positive stiffness or rotational_stiffness",
+        )
+    return Spring(at, k, kr)
+
+
+def _check(value: object) -> int:
+    table = _table(value, "check", "check settings such as modes = 5")
+    _keys(table, _CHECK_KEYS, "check")
+    modes = table.get("modes", 5)
+    if isinstance(modes, bool) or not isinstance(modes, int) or not 1 <= modes <= MAX_MODES:
+        raise InputError("check.modes", modes, f"a whole number of modes from 1 to {MAX_MODES}")
+    return modes

@@ -1,0 +1,1 @@
+"""beamtone's command line (thin: parsing and printing around ``calc``)."""

@@ -1,0 +1,127 @@
+"""The ``beamtone`` command line: argument parsing and the one catch-all.
+
+The commands are thin: they load a worksheet through ``calc.worksheet``, call
+``calc`` and print what it returns.  Bad input exits with status 2 and one
+message on stderr; nothing the user wrote is modified.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from collections.abc import Callable, Sequence
+
+__all__ = ["main", "run"]
+
+EXIT_OK = 0
+EXIT_FAILED = 1
+EXIT_INPUT = 2
+
+_DESCRIPTION = (
+    "Natural frequencies of beam-like members, early in design: a finite-element "
+    "eigen solution with handbook cross-checks, from a unit-checked TOML worksheet."
+)
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse with beamtone's exit status and message style for bad arguments."""
+
+    def error(self, message: str) -> None:  # type: ignore[override]
+        self.print_usage(sys.stderr)
+        sys.stderr.write(f"beamtone: error: {message}\n")
+        raise SystemExit(EXIT_INPUT)
+
+
+def _positive_int(limit: int, what: str) -> Callable[[str], int]:
+    def parse(text: str) -> int:
+        try:
+            value = int(text)
+        except ValueError:
+            msg = f"expected a whole number of {what}, got {text!r}"
+            raise argparse.ArgumentTypeError(msg) from None
+        if not 1 <= value <= limit:
+            raise argparse.ArgumentTypeError(f"expected 1 to {limit} {what}, got {value}")
+        return value
+
+    return parse
+
+
+def build_parser() -> argparse.ArgumentParser:
+    """The argument parser of every command."""
+    parser = _Parser(prog="beamtone", description=_DESCRIPTION)
+    parser.add_argument("--version", action="store_true", help="print the version and exit")
+    commands = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    solve = commands.add_parser(
+        "solve",
+        help="natural frequencies of a worksheet's member",
+        description="Solve a worksheet: finite-element modes, rigid-body count, handbook check.",
+    )
+    solve.add_argument("file", metavar="FILE", help="worksheet (TOML)")
+    solve.add_argument(
+        "--modes", type=_positive_int(50, "modes"), help="number of modes (default: worksheet's)"
+    )
+    solve.add_argument(
+        "--elements",
+        type=_positive_int(200_000, "elements"),
+        help="force a mesh of about N elements instead of the automatic one",
+    )
+    solve.add_argument("--json", action="store_true", help="print one JSON object")
+    return parser
+
+
+def _solve(args: argparse.Namespace) -> int:
+    from calc import fe, handbook
+    from calc.worksheet import load
+    from cli import output
+
+    sheet = load(args.file)
+    modes = args.modes or sheet.modes
+    result = fe.solve(sheet.member, modes, elements=args.elements)
+    check = handbook.check(sheet.member, modes)
+    if args.json:
+        output.write_json(output.solve_json(sheet, result, check))
+    else:
+        sys.stdout.write(output.solve_text(sheet, result, check))
+    return EXIT_OK
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; return the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.version:
+        from importlib.metadata import version
+
+        print(f"beamtone {version('beamtone')}")
+        return EXIT_OK
+    if args.command is None:
+        parser.print_help()
+        return EXIT_OK
+    from calc.errors import InputError
+
+    handlers = {"solve": _solve}
+    try:
+        return handlers[args.command](args)
+    except InputError as exc:
+        sys.stderr.write(f"beamtone: {exc.message}\n")
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        sys.stderr.write("beamtone: interrupted\n")
+        return 130
+    except BrokenPipeError:
+        return EXIT_OK
+    except Exception as exc:  # the outermost layer: never show a traceback
+        sys.stderr.write(
+            f"beamtone: internal error, please report it with your worksheet: "
+            f"{type(exc).__name__}: {exc}\n"
+        )
+        return EXIT_FAILED
+
+
+def run() -> None:
+    """Console-script entry point."""
+    raise SystemExit(main())
+
+
+if __name__ == "__main__":
+    run()

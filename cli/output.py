@@ -1,0 +1,162 @@
+"""Human and JSON output of the command line."""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:  # pragma: no cover
+    from calc.fe import FEResult
+    from calc.handbook import HandbookCheck
+    from calc.worksheet import Worksheet
+
+__all__ = ["CAUTION", "solve_text", "solve_json", "write_json"]
+
+CAUTION = (
+    "Caution: an early-stage estimate for linear, undamped bending. Confirm with detailed "
+    "analysis and test, and follow the applicable codes and a licensed engineer wherever "
+    "failure could hurt someone."
+)
+
+
+def _fmt(value: float, digits: int = 6) -> str:
+    if value == 0.0 or not math.isfinite(value):
+        return f"{value:g}"
+    exponent = math.floor(math.log10(abs(value)))
+    decimals = max(0, digits - 1 - exponent)
+    if exponent >= digits + 3 or exponent < -4:
+        return f"{value:.{digits - 1}e}"
+    return f"{value:.{decimals}f}"
+
+
+def _ends(member: Any) -> str:
+    text = f"{member.left} at the left, {member.right} at the right"
+    if member.inner_supports:
+        inner = ", ".join(f"{s.kind} at {_fmt(s.at, 4)} m" for s in member.inner_supports)
+        text += f"; inner supports {inner}"
+    return text
+
+
+def solve_text(sheet: Worksheet, result: FEResult, check: HandbookCheck | None) -> str:
+    """Aligned plain-text report of a solve."""
+    member = sheet.member
+    lines = [f"beamtone solve: {sheet.title}" if sheet.title else "beamtone solve", ""]
+    n_seg = len(member.segments)
+    attached = sum(p.mass for p in member.masses)
+    mass_note = f", {_fmt(attached, 4)} kg attached" if member.masses else ""
+    lines.append(
+        f"  member    {_fmt(member.length, 5)} m, {n_seg} segment{'s' if n_seg > 1 else ''}, "
+        f"{_fmt(member.member_mass, 4)} kg{mass_note}"
+    )
+    lines.append(f"  ends      {_ends(member)}")
+    extras = []
+    if member.springs:
+        extras.append(f"{len(member.springs)} spring{'s' if len(member.springs) > 1 else ''}")
+    if member.axial_force:
+        kind = "tension" if member.axial_force > 0 else "compression"
+        extras.append(f"axial {kind} {_fmt(abs(member.axial_force), 4)} N")
+    if extras:
+        lines.append(f"  carries   {', '.join(extras)}")
+    lines.append(
+        f"  mesh      {result.elements} Hermite beam elements, {result.degrees_of_freedom} "
+        f"free DOF, {result.solver}"
+    )
+    rigid = result.rigid_body_modes
+    lines.append(
+        f"  rigid     {rigid} rigid-body mode{'s' if rigid != 1 else ''}"
+        + (" (not listed; modes start at the first flexible one)" if rigid else "")
+    )
+    lines.append("")
+
+    header = ["mode", "f [Hz]", "omega [rad/s]", "est. error", "eff. mass", "cumul."]
+    if check is not None:
+        header += ["handbook [Hz]", "FE vs hb"]
+    rows = [header]
+    for i, mode in enumerate(result.modes):
+        row = [
+            str(mode.number),
+            _fmt(mode.frequency_hz),
+            _fmt(mode.omega),
+            f"{mode.estimated_error:.1e}",
+            f"{100 * mode.effective_mass_fraction:.1f} %",
+            f"{100 * mode.cumulative_mass_fraction:.1f} %",
+        ]
+        if check is not None:
+            ref = check.frequencies_hz[i]
+            row += [_fmt(ref), f"{100 * (mode.frequency_hz - ref) / ref:+.2e} %"]
+        rows.append(row)
+    widths = [max(len(r[c]) for r in rows) for c in range(len(header))]
+    for r in rows:
+        cells = [r[0].rjust(widths[0])] + [r[c].rjust(widths[c]) for c in range(1, len(r))]
+        lines.append("  " + "   ".join(cells))
+    lines.append("")
+    if check is not None:
+        lines.append(f"  handbook  {check.case}: {check.source}")
+    lines.append(
+        f"  checks    mass orthogonality {result.mass_orthogonality:.1e}, stiffness "
+        f"orthogonality {result.stiffness_orthogonality:.1e}; K {result.stiffness_definiteness}, "
+        f"M {result.mass_definiteness}"
+    )
+    lines.append("            modes normalized to unit modal mass; effective mass in the plane")
+    if result.warnings:
+        lines.append("")
+        lines.append("  warnings")
+        lines += [f"  - {w}" for w in result.warnings]
+    lines.append("")
+    lines.append(CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+def solve_json(sheet: Worksheet, result: FEResult, check: HandbookCheck | None) -> dict[str, Any]:
+    """The JSON object of a solve (keys keep their meaning across versions)."""
+    member = sheet.member
+    return {
+        "title": sheet.title,
+        "modes": [
+            {
+                "number": m.number,
+                "frequency_hz": m.frequency_hz,
+                "omega_rad_s": m.omega,
+                "estimated_error": m.estimated_error,
+                "effective_mass_kg": m.effective_mass,
+                "effective_mass_fraction": m.effective_mass_fraction,
+                "cumulative_mass_fraction": m.cumulative_mass_fraction,
+            }
+            for m in result.modes
+        ],
+        "rigid_body_modes": result.rigid_body_modes,
+        "handbook": None
+        if check is None
+        else {
+            "case": check.case,
+            "frequencies_hz": list(check.frequencies_hz),
+            "parameters": list(check.parameters),
+            "source": check.source,
+        },
+        "warnings": list(result.warnings),
+        "member": {
+            "length_m": member.length,
+            "member_mass_kg": member.member_mass,
+            "total_mass_kg": result.total_mass,
+            "segments": len(member.segments),
+        },
+        "checks": {
+            "elements": result.elements,
+            "degrees_of_freedom": result.degrees_of_freedom,
+            "solver": result.solver,
+            "mass_orthogonality": result.mass_orthogonality,
+            "stiffness_orthogonality": result.stiffness_orthogonality,
+            "stiffness_matrix": result.stiffness_definiteness,
+            "mass_matrix": result.mass_definiteness,
+            "roundoff_dominated": result.roundoff_dominated,
+        },
+        "caution": CAUTION,
+    }
+
+
+def write_json(obj: dict[str, Any]) -> None:
+    """Write one JSON object and a newline to stdout."""
+    json.dump(obj, sys.stdout, indent=2, allow_nan=False)
+    sys.stdout.write("\n")
