@@ -649,6 +649,7 @@ def solve(
     if modes < 1:
         raise InputError("check.modes", modes, "a whole number of modes, 1 or more")
     solver = eigensolver or default_eigensolver
+    _check_mass(member)
     rigid = rigid_body_count(member)
     _check_buckling(member, rigid)
     warnings: list[str] = []
@@ -708,6 +709,18 @@ def solve(
             f"error of {float(np.max(error)):.1e}, above the {accuracy:.0e} target"
         )
     return _result(member, reported, rigid, modes, error, roundoff_dominated, warnings)
+
+
+def _check_mass(member: Member) -> None:
+    for i, seg in enumerate(member.segments):
+        if not seg.mass_per_length > 0.0:
+            key = f"member.segment[{i}]" if len(member.segments) > 1 else "member"
+            raise InputError(
+                f"{key}.material.density",
+                seg.material.density,
+                "mass along the whole member: a massless length has degrees of freedom with "
+                "no inertia, whose frequencies cannot be found (give its density or added mass)",
+            )
 
 
 def _need_modes(sol: _Solution, modes: int) -> None:
