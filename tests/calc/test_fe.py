@@ -161,8 +161,10 @@ def test_effective_mass_of_uniform_cantilever() -> None:
     result = fe.solve(member, 4)
     lams = handbook.frequency_parameters("clamped", "free", 4)
     for mode, lam in zip(result.modes, lams, strict=True):
-        num = scipy.integrate.quad(lambda x: cantilever_shape(lam, np.array(x)), 0, 1)[0]
-        den = scipy.integrate.quad(lambda x: cantilever_shape(lam, np.array(x)) ** 2, 0, 1)[0]
+        num = scipy.integrate.quad(lambda x, q: cantilever_shape(q, np.array(x)), 0, 1, (lam,))[0]
+        den = scipy.integrate.quad(
+            lambda x, q: cantilever_shape(q, np.array(x)) ** 2, 0, 1, (lam,)
+        )[0]
         assert mode.effective_mass_fraction == pytest.approx(num**2 / den, rel=1e-6)
     fractions = [m.effective_mass_fraction for m in result.modes]
     assert fractions == pytest.approx([0.613, 0.188, 0.065, 0.033], abs=6e-4)
