@@ -10,7 +10,6 @@ from __future__ import annotations
 import csv
 import math
 from dataclasses import replace
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -22,13 +21,9 @@ from calc.errors import InputError
 from calc.materials import LIBRARY, Material
 from calc.model import InnerSupport, Member, PointMass, Segment, Spring, rigid_body_count
 from calc.sections import build_section
+from tests.reference import reference_file
 
-REFERENCE = (
-    Path(__file__).resolve().parents[3]
-    / "shared"
-    / "reference"
-    / "uniform-beam-frequency-parameters.csv"
-)
+REFERENCE = reference_file("uniform-beam-frequency-parameters.csv")
 STEEL = LIBRARY["steel"]
 BAR = build_section("rectangle", {"width": 0.04, "depth": 0.008})
 PAIRS = [(a, b) for i, a in enumerate(handbook.END_CONDITIONS) for b in handbook.END_CONDITIONS[i:]]

@@ -16,7 +16,6 @@ import csv
 import itertools
 import math
 from collections.abc import Callable
-from pathlib import Path
 
 import mpmath
 import numpy as np
@@ -31,13 +30,9 @@ from calc.handbook import (
     rigid_body_modes,
     tip_mass_parameters,
 )
+from tests.reference import reference_file
 
-_TABLE_PATH = (
-    Path(__file__).resolve().parents[3]
-    / "shared"
-    / "reference"
-    / "uniform-beam-frequency-parameters.csv"
-)
+_TABLE_PATH = reference_file("uniform-beam-frequency-parameters.csv")
 
 # Derivative orders fixed to zero by each classical end condition (common practice).
 _BC_ORDERS: dict[str, tuple[int, int]] = {
