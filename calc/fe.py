@@ -35,6 +35,8 @@ __all__ = [
     "FEResult",
     "Eigensolver",
     "build_mesh",
+    "mesh_through",
+    "interpolate",
     "assemble",
     "solve",
     "buckling_load",
@@ -208,9 +210,16 @@ def _stations(member: Member) -> list[float]:
     return stations
 
 
-def _snap(member: Member, stations: list[float], position: float) -> float:
+def _map_attachments(
+    member: Member, stations: list[float], station_nodes: dict[float, int]
+) -> None:
+    """Map every attachment and support position to the node of its station."""
     arr = np.asarray(stations)
-    return float(arr[int(np.argmin(np.abs(arr - position)))])
+    points = [m.at for m in member.masses] + [s.at for s in member.springs]
+    points += [s.at for s in member.inner_supports]
+    for p in points:
+        nearest = float(arr[int(np.argmin(np.abs(arr - p)))])
+        station_nodes.setdefault(p, station_nodes[nearest])
 
 
 def build_mesh(member: Member, element_size: Callable[[int], float] | int) -> Mesh:
@@ -246,13 +255,52 @@ def build_mesh(member: Member, element_size: Callable[[int], float] | int) -> Me
         station_nodes[b] = node
     x = np.concatenate([*xs, [L]])
     mesh = Mesh(x, np.concatenate(segs), station_nodes)
-    for p in (m.at for m in member.masses):
-        station_nodes.setdefault(p, station_nodes[_snap(member, stations, p)])
-    for p in (s.at for s in member.springs):
-        station_nodes.setdefault(p, station_nodes[_snap(member, stations, p)])
-    for p in (s.at for s in member.inner_supports):
-        station_nodes.setdefault(p, station_nodes[_snap(member, stations, p)])
+    _map_attachments(member, stations, station_nodes)
     return mesh
+
+
+def mesh_through(member: Member, points: np.ndarray) -> Mesh:
+    """A mesh whose nodes are the stations and the given points, one element between each.
+
+    Parameters
+    ----------
+    member : Member
+    points : ndarray
+        Extra node positions [m], inside [0, L].
+
+    Returns
+    -------
+    Mesh
+    """
+    stations = _stations(member)
+    L = member.length
+    tol = POSITION_TOLERANCE * L
+    merged: list[float] = []
+    for p in sorted([*stations, *np.clip(points, 0.0, L).tolist()]):
+        if not merged or p - merged[-1] > tol:
+            merged.append(p)
+        elif p in stations:
+            merged[-1] = p
+    merged[-1] = L
+    x = np.asarray(merged)
+    segment = np.array(
+        [member.segment_index(0.5 * (a + b)) for a, b in zip(x[:-1], x[1:], strict=True)]
+    )
+    station_nodes = {p: int(np.argmin(np.abs(x - p))) for p in stations}
+    _map_attachments(member, stations, station_nodes)
+    return Mesh(x, segment, station_nodes)
+
+
+def interpolate(x_nodes: np.ndarray, w: np.ndarray, theta: np.ndarray, at: float) -> float:
+    """Deflection at ``at`` [m] from nodal deflections [m] and slopes [rad] (Hermite cubic)."""
+    i = int(np.clip(np.searchsorted(x_nodes, at) - 1, 0, len(x_nodes) - 2))
+    h = x_nodes[i + 1] - x_nodes[i]
+    t = (at - x_nodes[i]) / h
+    n1 = 1 - 3 * t**2 + 2 * t**3
+    n2 = h * (t - 2 * t**2 + t**3)
+    n3 = 3 * t**2 - 2 * t**3
+    n4 = h * (-(t**2) + t**3)
+    return float(n1 * w[i] + n2 * theta[i] + n3 * w[i + 1] + n4 * theta[i + 1])
 
 
 # --- assembly ------------------------------------------------------------------------------------

@@ -33,7 +33,10 @@ from calc.units import (
     parse_quantity,
 )
 
-__all__ = ["FORMAT", "MAX_BYTES", "MAX_MODES", "Worksheet", "load", "loads"]
+__all__ = [
+    "FORMAT", "MAX_BYTES", "MAX_MODES", "MAX_RITZ", "EstimateSettings", "Worksheet", "load",
+    "loads",
+]  # fmt: skip
 
 FORMAT = 1
 """The worksheet format this version reads and writes."""
@@ -44,7 +47,9 @@ MAX_BYTES = 1_000_000
 MAX_MODES = 50
 """Most modes a worksheet may ask for."""
 
-_TOP_KEYS = ("format", "title", "notes", "member", "supports", "mass", "spring", "check")
+_TOP_KEYS = (
+    "format", "title", "notes", "member", "supports", "mass", "spring", "check", "estimate",
+)  # fmt: skip
 _MEMBER_KEYS = ("length", "material", "section", "added_mass", "axial_force", "segment")
 _SEGMENT_KEYS = ("length", "material", "section", "added_mass")
 _MATERIAL_KEYS = ("youngs_modulus", "density", "poisson_ratio", "name")
@@ -53,6 +58,29 @@ _INNER_KEYS = ("at", "kind")
 _MASS_KEYS = ("at", "mass", "rotary_inertia")
 _SPRING_KEYS = ("at", "stiffness", "rotational_stiffness")
 _CHECK_KEYS = ("modes",)
+_ESTIMATE_KEYS = ("shape", "shapes", "reference")
+MAX_RITZ = 12
+"""Most trial functions in a Rayleigh-Ritz estimate."""
+
+
+@dataclass(frozen=True)
+class EstimateSettings:
+    """What the Rayleigh estimate uses.
+
+    Attributes
+    ----------
+    shape : str
+        ``"static"``, ``"polynomial"``, ``"trigonometric"`` or an expression in x and L.
+    shapes : tuple of str, or int, or None
+        Rayleigh-Ritz trial functions, or a count of the built-in polynomial family.
+    reference : float or None
+        Reference point of the equivalent single-DOF model [m]; None for the point of
+        largest deflection.
+    """
+
+    shape: str = "static"
+    shapes: tuple[str, ...] | int | None = None
+    reference: float | None = None
 
 
 @dataclass(frozen=True)
@@ -67,6 +95,8 @@ class Worksheet:
         The member in SI.
     modes : int
         How many modes to report.
+    estimate : EstimateSettings
+        Settings of the Rayleigh estimate.
     source : str
         Where it came from (a path, or ``"<text>"``).
     data : dict
@@ -77,6 +107,7 @@ class Worksheet:
     notes: str
     member: Member
     modes: int
+    estimate: EstimateSettings = field(default_factory=EstimateSettings)
     source: str = "<text>"
     data: dict[str, Any] = field(default_factory=dict, repr=False, compare=False)
 
@@ -223,8 +254,9 @@ def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Workshe
     springs = tuple(_spring(t, f"spring[{i}]") for i, t in enumerate(_tables(
         data.get("spring", []), "spring", "[[spring]] entries with at and stiffness")))  # fmt: skip
     modes = _check(data.get("check", {}))
+    estimate = _estimate(data.get("estimate", {}))
     member = Member(segments, left, right, masses, springs, inner, axial)
-    return Worksheet(title, notes, member, modes, source, data)
+    return Worksheet(title, notes, member, modes, estimate, source, data)
 
 
 def _format(data: dict[str, Any]) -> None:
@@ -430,3 +462,39 @@ def _check(value: object) -> int:
     if isinstance(modes, bool) or not isinstance(modes, int) or not 1 <= modes <= MAX_MODES:
         raise InputError("check.modes", modes, f"a whole number of modes from 1 to {MAX_MODES}")
     return modes
+
+
+def _estimate(value: object) -> EstimateSettings:
+    table = _table(value, "estimate", 'estimate settings such as shape = "static"')
+    _keys(table, _ESTIMATE_KEYS, "estimate")
+    shape = table.get("shape", "static")
+    if not isinstance(shape, str) or not shape.strip():
+        raise InputError(
+            "estimate.shape",
+            shape,
+            "static, polynomial, trigonometric, or an expression in x and L such as "
+            '"1 - cos(pi*x/(2*L))"',
+        )
+    shapes = table.get("shapes")
+    if shapes is not None:
+        if isinstance(shapes, bool) or not isinstance(shapes, int | list):
+            raise InputError(
+                "estimate.shapes",
+                shapes,
+                "a list of expressions in x and L, or a number of built-in polynomial shapes",
+            )
+        if isinstance(shapes, int) and not 1 <= shapes <= MAX_RITZ:
+            raise InputError("estimate.shapes", shapes, f"a number of shapes from 1 to {MAX_RITZ}")
+        if isinstance(shapes, list):
+            if not 1 <= len(shapes) <= MAX_RITZ:
+                raise InputError("estimate.shapes", shapes, f"1 to {MAX_RITZ} expressions")
+            for i, item in enumerate(shapes):
+                if not isinstance(item, str):
+                    raise InputError(f"estimate.shapes[{i}]", item, "an expression in x and L")
+            shapes = tuple(shapes)
+    reference = None
+    if "reference" in table:
+        reference = parse_quantity(
+            table["reference"], LENGTH, "estimate.reference", allow_zero=True
+        )
+    return EstimateSettings(shape.strip(), shapes, reference)

@@ -70,18 +70,15 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _solve(args: argparse.Namespace) -> int:
-    from calc import fe, handbook
+    from calc.analysis import analyse
     from calc.worksheet import load
     from cli import output
 
-    sheet = load(args.file)
-    modes = args.modes or sheet.modes
-    result = fe.solve(sheet.member, modes, elements=args.elements)
-    check = handbook.check(sheet.member, modes)
+    analysis = analyse(load(args.file), args.modes, args.elements)
     if args.json:
-        output.write_json(output.solve_json(sheet, result, check))
+        output.write_json(output.solve_json(analysis))
     else:
-        sys.stdout.write(output.solve_text(sheet, result, check))
+        sys.stdout.write(output.solve_text(analysis))
     return EXIT_OK
 
 

@@ -8,9 +8,7 @@ import sys
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:  # pragma: no cover
-    from calc.fe import FEResult
-    from calc.handbook import HandbookCheck
-    from calc.worksheet import Worksheet
+    from calc.analysis import Analysis
 
 __all__ = ["CAUTION", "solve_text", "solve_json", "write_json"]
 
@@ -39,8 +37,9 @@ def _ends(member: Any) -> str:
     return text
 
 
-def solve_text(sheet: Worksheet, result: FEResult, check: HandbookCheck | None) -> str:
+def solve_text(analysis: Analysis) -> str:
     """Aligned plain-text report of a solve."""
+    sheet, result, check = analysis.sheet, analysis.modes, analysis.handbook
     member = sheet.member
     lines = [f"beamtone solve: {sheet.title}" if sheet.title else "beamtone solve", ""]
     n_seg = len(member.segments)
@@ -100,18 +99,53 @@ def solve_text(sheet: Worksheet, result: FEResult, check: HandbookCheck | None) 
         f"M {result.mass_definiteness}"
     )
     lines.append("            modes normalized to unit modal mass; effective mass in the plane")
-    if result.warnings:
+    lines.append("")
+    lines += _estimate_lines(analysis)
+    if analysis.warnings:
         lines.append("")
         lines.append("  warnings")
-        lines += [f"  - {w}" for w in result.warnings]
+        lines += [f"  - {w}" for w in analysis.warnings]
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines) + "\n"
 
 
-def solve_json(sheet: Worksheet, result: FEResult, check: HandbookCheck | None) -> dict[str, Any]:
+def _estimate_lines(analysis: Analysis) -> list[str]:
+    est, low, br, eq = (
+        analysis.estimate,
+        analysis.lower_bound,
+        analysis.bracket,
+        analysis.equivalent,
+    )
+    shape = "static deflection" if est.shape == "static" else est.shape
+    lines = [f"  Rayleigh  {_fmt(est.frequency_hz)} Hz (upper bound), shape: {shape}"]
+    if est.expression and est.expression != est.shape:
+        lines.append(f"            w(x) = {est.expression}")
+    if est.formula:
+        lines.append(f"            {est.formula}")
+    lines += [f"            {note}" for note in est.notes]
+    if low.frequency_hz is not None:
+        lines.append(f"  Dunkerley {_fmt(low.frequency_hz)} Hz (lower bound)")
+    else:
+        lines.append(f"  Dunkerley no lower bound: {low.reason}")
+    lines.append(f"  bracket   {br.message}")
+    if analysis.ritz is not None:
+        ritz = analysis.ritz
+        lines.append("  Ritz      upper bounds [Hz] with 1, 2, ... trial functions:")
+        for n, row in enumerate(ritz.convergence, start=1):
+            lines.append(f"            {n:>2}: " + "  ".join(_fmt(f) for f in row))
+    lines.append(
+        f"  1-DOF     at {_fmt(eq.at_m, 4)} m: effective mass {_fmt(eq.mass_kg, 4)} kg, "
+        f"stiffness {_fmt(eq.stiffness_n_per_m, 4)} N/m"
+    )
+    return lines
+
+
+def solve_json(analysis: Analysis) -> dict[str, Any]:
     """The JSON object of a solve (keys keep their meaning across versions)."""
+    sheet, result, check = analysis.sheet, analysis.modes, analysis.handbook
     member = sheet.member
+    est, low, eq = analysis.estimate, analysis.lower_bound, analysis.equivalent
     return {
         "title": sheet.title,
         "modes": [
@@ -135,7 +169,38 @@ def solve_json(sheet: Worksheet, result: FEResult, check: HandbookCheck | None) 
             "parameters": list(check.parameters),
             "source": check.source,
         },
-        "warnings": list(result.warnings),
+        "warnings": list(analysis.warnings),
+        "estimate": {
+            "method": "rayleigh",
+            "shape": est.shape,
+            "expression": est.expression,
+            "frequency_hz": est.frequency_hz,
+            "formula": est.formula,
+            "coefficient": est.coefficient,
+            "notes": list(est.notes),
+        },
+        "lower_bound": None
+        if low.frequency_hz is None
+        else {"method": "dunkerley", "frequency_hz": low.frequency_hz},
+        "bracket": {
+            "lower_hz": analysis.bracket.lower_hz,
+            "fe_hz": analysis.bracket.fe_hz,
+            "upper_hz": analysis.bracket.upper_hz,
+            "width": analysis.bracket.width,
+            "inside": analysis.bracket.inside,
+        },
+        "ritz": None
+        if analysis.ritz is None
+        else {
+            "frequencies_hz": list(analysis.ritz.frequencies_hz),
+            "convergence_hz": [list(r) for r in analysis.ritz.convergence],
+            "shapes": list(analysis.ritz.shapes),
+        },
+        "equivalent": {
+            "at_m": eq.at_m,
+            "mass_kg": eq.mass_kg,
+            "stiffness_n_per_m": eq.stiffness_n_per_m,
+        },
         "member": {
             "length_m": member.length,
             "member_mass_kg": member.member_mass,

@@ -1,0 +1,95 @@
+"""Everything beamtone computes for one worksheet, in one call.
+
+The command line, the app and the report all show the same thing: the
+finite-element modes, the handbook cross-check, the Rayleigh estimate (and
+Rayleigh-Ritz where asked), Dunkerley's lower bound, the bracket, and the
+equivalent single-degree-of-freedom model.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from calc import fe, handbook, rayleigh
+from calc.worksheet import Worksheet
+
+__all__ = ["Analysis", "analyse"]
+
+
+@dataclass(frozen=True)
+class Analysis:
+    """The results of one worksheet.
+
+    Attributes
+    ----------
+    sheet : Worksheet
+    modes : fe.FEResult
+    handbook : handbook.HandbookCheck or None
+    estimate : rayleigh.RayleighEstimate
+    ritz : rayleigh.RitzResult or None
+    lower_bound : rayleigh.DunkerleyBound
+    bracket : rayleigh.Bracket
+    equivalent : rayleigh.EquivalentSystem
+    """
+
+    sheet: Worksheet
+    modes: fe.FEResult
+    handbook: handbook.HandbookCheck | None
+    estimate: rayleigh.RayleighEstimate
+    ritz: rayleigh.RitzResult | None
+    lower_bound: rayleigh.DunkerleyBound
+    bracket: rayleigh.Bracket
+    equivalent: rayleigh.EquivalentSystem
+
+    @property
+    def warnings(self) -> tuple[str, ...]:
+        """Warnings of every method, the bracket's failure first if it failed."""
+        out = list(self.modes.warnings)
+        if not self.bracket.inside:
+            out.insert(0, self.bracket.message)
+        return tuple(out)
+
+
+def analyse(sheet: Worksheet, modes: int | None = None, elements: int | None = None) -> Analysis:
+    """Solve a worksheet by every method.
+
+    Parameters
+    ----------
+    sheet : Worksheet
+    modes : int, optional
+        Overrides the worksheet's ``check.modes``.
+    elements : int, optional
+        Forces the finite-element mesh (see :func:`calc.fe.solve`).
+
+    Returns
+    -------
+    Analysis
+
+    Raises
+    ------
+    InputError
+        For anything in the worksheet that cannot be solved.
+    """
+    member = sheet.member
+    count = modes or sheet.modes
+    result = fe.solve(member, count, elements=elements)
+    settings = sheet.estimate
+    if settings.shape == "static":
+        estimate = rayleigh.rayleigh_static(member)
+    else:
+        estimate = rayleigh.rayleigh_shape(member, settings.shape)
+    ritz = None
+    if settings.shapes is not None:
+        shapes = settings.shapes if isinstance(settings.shapes, int) else list(settings.shapes)
+        ritz = rayleigh.ritz(member, shapes)
+    lower = rayleigh.dunkerley(member)
+    return Analysis(
+        sheet=sheet,
+        modes=result,
+        handbook=handbook.check(member, count),
+        estimate=estimate,
+        ritz=ritz,
+        lower_bound=lower,
+        bracket=rayleigh.bracket(lower, result, estimate),
+        equivalent=rayleigh.equivalent_system(member, result, settings.reference),
+    )

@@ -1,0 +1,924 @@
+"""Rayleigh's quotient from an assumed shape, Rayleigh-Ritz, and Dunkerley's lower bound.
+
+For an assumed deflected shape w(x) satisfying the geometric conditions of the supports,
+
+    omega^2 <= R[w] = (int EI w''^2 + P int w'^2 + sum k w(a)^2 + sum k_r w'(a)^2)
+                      / (int m w^2 + sum M w(a)^2 + sum J w'(a)^2),
+
+an upper bound on the fundamental (Rayleigh's principle; e.g. S. Timoshenko, D. H. Young and
+W. Weaver, Vibration Problems in Engineering, chapter 5).  With several shapes the Ritz
+method gives upper bounds on as many modes.  Dunkerley's sum
+1/omega_1^2 <= sum_i 1/omega_i^2 = trace(flexibility x mass) bounds the fundamental from
+below (common practice; the same text).  Together they bracket the fundamental.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+import scipy.linalg
+
+from calc import fe
+from calc.errors import InputError
+from calc.model import HOLDS, POSITION_TOLERANCE, Member, rigid_body_count
+
+__all__ = [
+    "NAMED_SHAPES",
+    "RayleighEstimate",
+    "RitzResult",
+    "DunkerleyBound",
+    "Bracket",
+    "EquivalentSystem",
+    "named_shape",
+    "polynomial_family",
+    "rayleigh_static",
+    "rayleigh_shape",
+    "ritz",
+    "dunkerley",
+    "bracket",
+    "equivalent_system",
+    "admissibility",
+]
+
+G0 = 9.80665
+"""Standard acceleration of gravity [m/s^2] (ISO 80000-3); it cancels in the quotient."""
+
+_GAUSS_POINTS = 12
+_SUBDIVISIONS = 24
+_SYMBOLIC_NODES = 80
+
+
+# --- results -------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class RayleighEstimate:
+    """Rayleigh's upper bound on the fundamental from one assumed shape.
+
+    Attributes
+    ----------
+    shape : str
+        ``"static"``, a named shape, or the expression as written.
+    expression : str or None
+        The expression in x and L actually used (None for the static shape).
+    omega : float
+        Estimated circular frequency [rad/s].
+    frequency_hz : float
+        Estimated natural frequency [Hz].
+    formula : str or None
+        Closed form where the quotient was evaluated symbolically, else None.
+    coefficient : float or None
+        C in omega = C sqrt(EI/(m L^4)) for a bare uniform member, else None.
+    coefficient_exact : str or None
+        C^2 as an exact expression, where symbolic.
+    numeric_check : float or None
+        Relative difference between the symbolic and the quadrature route, where both ran.
+    notes : tuple of str
+        Unmet natural boundary conditions and similar remarks.
+    """
+
+    shape: str
+    expression: str | None
+    omega: float
+    frequency_hz: float
+    formula: str | None = None
+    coefficient: float | None = None
+    coefficient_exact: str | None = None
+    numeric_check: float | None = None
+    notes: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class RitzResult:
+    """Rayleigh-Ritz upper bounds on the lowest modes.
+
+    Attributes
+    ----------
+    shapes : tuple of str
+        The trial functions (expressions in x and L, or the family's description).
+    frequencies_hz : tuple of float
+        Upper bounds on the first flexible modes with all functions [Hz].
+    convergence : tuple of tuple of float
+        Row n: the bounds [Hz] with the first n+1 functions.
+    """
+
+    shapes: tuple[str, ...]
+    frequencies_hz: tuple[float, ...]
+    convergence: tuple[tuple[float, ...], ...]
+
+
+@dataclass(frozen=True)
+class DunkerleyBound:
+    """Dunkerley's lower bound on the fundamental.
+
+    Attributes
+    ----------
+    frequency_hz : float or None
+        The bound [Hz]; None where it does not exist.
+    trace : float or None
+        sum over modes of 1/omega_i^2 = trace(F M) [s^2].
+    reason : str or None
+        Why there is no bound (rigid-body freedom).
+    exact : bool
+        True where the flexibility and the quadrature are exact (no axial force).
+    """
+
+    frequency_hz: float | None
+    trace: float | None
+    reason: str | None = None
+    exact: bool = True
+
+
+@dataclass(frozen=True)
+class Bracket:
+    """The fundamental bracketed: lower <= FE <= upper.
+
+    Attributes
+    ----------
+    lower_hz, fe_hz, upper_hz : float or None
+        Dunkerley bound, finite-element value, Rayleigh bound [Hz].
+    width : float or None
+        (upper - lower) / fe [-].
+    inside : bool
+        Whether the FE value lies in the bracket (within its estimated error).
+    message : str
+    """
+
+    lower_hz: float | None
+    fe_hz: float
+    upper_hz: float
+    width: float | None
+    inside: bool
+    message: str
+
+
+@dataclass(frozen=True)
+class EquivalentSystem:
+    """Single-degree-of-freedom model of the fundamental at a reference point.
+
+    Attributes
+    ----------
+    at_m : float
+        Reference point [m] from the left end.
+    mass_kg : float
+        Effective mass at that point [kg].
+    stiffness_n_per_m : float
+        Effective stiffness [N/m]; sqrt(k/m) is the FE fundamental [rad/s].
+    """
+
+    at_m: float
+    mass_kg: float
+    stiffness_n_per_m: float
+
+
+# --- trial functions -----------------------------------------------------------------------------
+
+# A trial function gives (w, w', w'') at positions x [m].
+Trial = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray, np.ndarray]]
+
+# Built-in shapes for each pair of ends, in X = x/L with the first-named end at X = 0:
+# (polynomial, trigonometric).  Each satisfies the geometric conditions of its ends; the
+# polynomials are static deflections under uniform load where the ends carry it.
+NAMED_SHAPES: dict[tuple[str, str], tuple[str, str]] = {
+    ("clamped", "clamped"): ("X**2*(1 - X)**2", "1 - cos(2*pi*X)"),
+    ("clamped", "pinned"): ("X**2*(1 - X)*(3 - 2*X)", "sin(pi*X) - sin(2*pi*X)/2"),
+    ("clamped", "guided"): ("X**2*(3 - 2*X)", "1 - cos(pi*X)"),
+    ("clamped", "free"): ("X**2*(6 - 4*X + X**2)", "1 - cos(pi*X/2)"),
+    ("pinned", "pinned"): ("X*(1 - 2*X**2 + X**3)", "sin(pi*X)"),
+    ("pinned", "guided"): ("X*(8 - 4*X**2 + X**3)", "sin(pi*X/2)"),
+    ("pinned", "free"): ("X*(1 - X)*(2 - X)", "sin(pi*X)"),
+    ("guided", "guided"): ("X**2*(3 - 2*X)", "cos(pi*X)"),
+    ("guided", "free"): ("1 - X**2*(6 - 4*X + X**2)/3", "cos(pi*X/2)"),
+    ("free", "free"): ("X**2*(1 - X)**2", "sin(pi*X)"),
+}
+SHAPE_NAMES = ("polynomial", "trigonometric")
+
+
+def named_shape(member: Member, name: str) -> str:
+    """The built-in shape ``name`` for the member's ends, as an expression in x and L.
+
+    Parameters
+    ----------
+    member : Member
+    name : str
+        ``"polynomial"`` or ``"trigonometric"``.
+
+    Returns
+    -------
+    str
+        The expression with ``x`` from the left end.
+    """
+    index = SHAPE_NAMES.index(name)
+    pair = (member.left, member.right)
+    if pair in NAMED_SHAPES:
+        template = NAMED_SHAPES[pair][index]
+        return template.replace("X", "(x/L)")
+    template = NAMED_SHAPES[(member.right, member.left)][index]
+    return template.replace("X", "(1 - x/L)")
+
+
+def _expression_trial(expr: Any, L: float) -> Trial:
+    import sympy
+
+    from calc.expressions import evaluate, symbols
+
+    x_sym, _ = symbols()
+    d1 = sympy.diff(expr, x_sym)
+    d2 = sympy.diff(d1, x_sym)
+
+    def trial(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        with np.errstate(all="ignore"):
+            return evaluate(expr, x, L), evaluate(d1, x, L), evaluate(d2, x, L)
+
+    return trial
+
+
+def _legendre_trial(coefficients: np.ndarray, L: float) -> Trial:
+    series = np.polynomial.Legendre(coefficients, domain=[0.0, L])
+    d1 = series.deriv(1)
+    d2 = series.deriv(2)
+    return lambda x: (series(x), d1(x), d2(x))
+
+
+def _rigid_trials(member: Member) -> list[Trial]:
+    """Basis of the rigid motions w = a + b x the restraints leave free."""
+    rigid = rigid_body_count(member)
+    if rigid == 0:
+        return []
+    rows = _restraint_rows(member)
+    if rows:
+        _, _, vt = np.linalg.svd(np.array(rows))
+        null = vt[-rigid:]
+    else:
+        null = np.eye(2)
+    L = member.length
+    out: list[Trial] = []
+    for a, b in null:
+
+        def trial(x: np.ndarray, a: float = a, b: float = b) -> tuple[np.ndarray, ...]:
+            return a + b * x / L, np.full_like(x, b / L), np.zeros_like(x)
+
+        out.append(trial)  # type: ignore[arg-type]
+    return out
+
+
+def _restraint_rows(member: Member) -> list[list[float]]:
+    L = member.length
+    rows: list[list[float]] = []
+    for x, kind in _supports(member):
+        holds_w, holds_slope = HOLDS[kind]
+        if holds_w:
+            rows.append([1.0, x / L])
+        if holds_slope:
+            rows.append([0.0, 1.0])
+    for sp in member.springs:
+        if sp.stiffness > 0.0:
+            rows.append([1.0, sp.at / L])
+        if sp.rotational_stiffness > 0.0:
+            rows.append([0.0, 1.0])
+    if member.axial_force != 0.0:
+        rows.append([0.0, 1.0])
+    return rows
+
+
+def _supports(member: Member) -> list[tuple[float, str]]:
+    out = [(0.0, member.left), (member.length, member.right)]
+    return out + [(s.at, s.kind) for s in member.inner_supports]
+
+
+# --- energies ------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class _Quadrature:
+    x: np.ndarray  # points [m]
+    weight: np.ndarray  # weights [m]
+    EI: np.ndarray  # [N m^2]
+    m: np.ndarray  # [kg/m]
+
+
+def _quadrature(member: Member, subdivisions: int = _SUBDIVISIONS) -> _Quadrature:
+    stations = fe._stations(member)
+    nodes, weights = np.polynomial.legendre.leggauss(_GAUSS_POINTS)
+    xs, ws, segs = [], [], []
+    for a, b in zip(stations[:-1], stations[1:], strict=True):
+        seg = member.segment_index(0.5 * (a + b))
+        edges = np.linspace(a, b, subdivisions + 1)
+        half = 0.5 * np.diff(edges)[:, None]
+        mid = 0.5 * (edges[:-1] + edges[1:])[:, None]
+        xs.append((mid + half * nodes[None, :]).ravel())
+        ws.append((half * weights[None, :]).ravel())
+        segs.append(np.full(xs[-1].size, seg))
+    seg_idx = np.concatenate(segs)
+    EI = np.array([s.bending_stiffness for s in member.segments])[seg_idx]
+    m = np.array([s.mass_per_length for s in member.segments])[seg_idx]
+    return _Quadrature(np.concatenate(xs), np.concatenate(ws), EI, m)
+
+
+def _energy_matrices(
+    member: Member, trials: list[Trial], quad: _Quadrature
+) -> tuple[np.ndarray, np.ndarray]:
+    """Stiffness and mass Gram matrices of the trial functions [N/m and kg, per unit^2]."""
+    vals = [t(quad.x) for t in trials]
+    W = np.array([v[0] for v in vals])
+    D1 = np.array([v[1] for v in vals])
+    D2 = np.array([v[2] for v in vals])
+    if not (np.all(np.isfinite(W)) and np.all(np.isfinite(D1)) and np.all(np.isfinite(D2))):
+        raise InputError(
+            "estimate.shape",
+            None,
+            "a shape that is finite, with finite first and second derivatives, along the whole "
+            "member",
+        )
+    K = (D2 * (quad.EI * quad.weight)) @ D2.T
+    if member.axial_force != 0.0:
+        K += member.axial_force * (D1 * quad.weight) @ D1.T
+    M = (W * (quad.m * quad.weight)) @ W.T
+    for sp in member.springs:
+        w, d1, _ = _point(trials, sp.at)
+        K += sp.stiffness * np.outer(w, w) + sp.rotational_stiffness * np.outer(d1, d1)
+    for pm in member.masses:
+        w, d1, _ = _point(trials, pm.at)
+        M += pm.mass * np.outer(w, w) + pm.rotary_inertia * np.outer(d1, d1)
+    return K, M
+
+
+def _point(trials: list[Trial], at: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    vals = [t(np.array([at])) for t in trials]
+    return tuple(np.array([v[i][0] for v in vals]) for i in range(3))  # type: ignore[return-value]
+
+
+def _without_rigid(
+    member: Member, trials: list[Trial], quad: _Quadrature
+) -> tuple[np.ndarray, np.ndarray, int]:
+    """Gram matrices of the trials made mass-orthogonal to the rigid motions."""
+    rigid = _rigid_trials(member)
+    K, M = _energy_matrices(member, rigid + trials, quad)
+    r = len(rigid)
+    if r == 0:
+        return K, M, 0
+    # Projection P = [-Mrr^-1 Mrt; I] maps trial coefficients to rigid-free combinations.
+    Mrr, Mrt = M[:r, :r], M[:r, r:]
+    n = len(trials)
+    P = np.vstack([-np.linalg.solve(Mrr, Mrt), np.eye(n)])
+    return P.T @ K @ P, P.T @ M @ P, r
+
+
+# --- admissibility -------------------------------------------------------------------------------
+
+
+def admissibility(member: Member, expr: Any, key: str = "estimate.shape") -> tuple[str, ...]:
+    """Check an expression shape against the geometric conditions of every support.
+
+    Conditions at the ends are checked symbolically (numerically where symbolic
+    simplification is inconclusive), at inner supports numerically.
+
+    Parameters
+    ----------
+    member : Member
+    expr : sympy.Expr
+        Shape in x [m] and L [m].
+    key : str
+        Key named in the error.
+
+    Returns
+    -------
+    tuple of str
+        Notes on unmet natural (force) conditions, which only cost accuracy.
+
+    Raises
+    ------
+    InputError
+        Where a geometric condition is violated: the quotient could then fall
+        below the true frequency.
+    """
+    import sympy
+
+    from calc.expressions import evaluate, symbols
+
+    x, L_sym = symbols()
+    L = member.length
+    d1 = sympy.diff(expr, x)
+    d2 = sympy.diff(d1, x)
+    d3 = sympy.diff(d2, x)
+    samples = np.linspace(0.0, L, 201)
+    with np.errstate(all="ignore"):
+        scale_w = float(np.nanmax(np.abs(evaluate(expr, samples, L))))
+        scale_d = float(np.nanmax(np.abs(evaluate(d1, samples, L)))) * L
+    if not math.isfinite(scale_w) or scale_w == 0.0:
+        raise InputError(key, str(expr), "a shape that is finite and not zero along the member")
+    scale = max(scale_w, scale_d)
+
+    def vanishes(f: Any, at_end: float | None, at: float) -> bool:
+        if at_end is not None:
+            value = sympy.simplify(f.subs(x, at_end))
+            if value == 0:
+                return True
+            if value.is_number:
+                return abs(complex(value)) == 0.0
+        with np.errstate(all="ignore"):
+            v = float(evaluate(f, np.array([at]), L)[0]) * (L if f is not expr else 1.0)
+        return math.isfinite(v) and abs(v) <= 1e-10 * scale
+
+    notes: list[str] = []
+    for where, kind in _supports(member):
+        holds_w, holds_slope = HOLDS[kind]
+        end: Any = None
+        if where == 0.0:
+            end, name = sympy.Integer(0), "x = 0"
+        elif where == L:
+            end, name = L_sym, "x = L"
+        else:
+            name = f"x = {where:.6g} m"
+        text = str(expr)
+        if holds_w and not vanishes(expr, end, where):
+            raise InputError(
+                key,
+                text,
+                f"a shape with w = 0 at the {kind} support at {name}",
+                "a shape that moves a support can give an estimate below the true frequency",
+            )
+        if holds_slope and not vanishes(d1, end, where):
+            raise InputError(
+                key,
+                text,
+                f"a shape with w' = 0 at the {kind} support at {name}",
+                "a shape that turns a clamped or guided support can underestimate the frequency",
+            )
+        if end is not None:
+            natural = {"pinned": [(d2, "w''")], "guided": [(d3, "w'''")]}
+            natural["free"] = [(d2, "w''"), (d3, "w'''")]
+            for f, label in natural.get(kind, []):
+                if member.axial_force == 0.0 and not _is_zero(f.subs(x, end)):
+                    notes.append(
+                        f"the shape does not meet the natural condition {label} = 0 at the {kind} "
+                        f"end ({name}); the estimate stays an upper bound, only less close"
+                    )
+    return tuple(notes)
+
+
+def _is_zero(value: Any) -> bool:
+    import sympy
+
+    try:
+        return bool(sympy.simplify(value) == 0)
+    except (TypeError, ValueError, RecursionError):
+        return False
+
+
+# --- Rayleigh ------------------------------------------------------------------------------------
+
+
+def rayleigh_shape(member: Member, text: str, key: str = "estimate.shape") -> RayleighEstimate:
+    """Rayleigh's quotient for an expression shape (or a built-in shape's name).
+
+    Parameters
+    ----------
+    member : Member
+    text : str
+        ``"polynomial"``, ``"trigonometric"``, or an expression in x and L [m].
+    key : str
+        Key named in errors.
+
+    Returns
+    -------
+    RayleighEstimate
+
+    Raises
+    ------
+    InputError
+        For an unparsable or hostile expression, or one that violates a geometric condition.
+    """
+    from calc.expressions import parse_shape
+
+    name = text.strip()
+    expression = named_shape(member, name) if name in SHAPE_NAMES else name
+    expr = parse_shape(expression, key)
+    notes = admissibility(member, expr, key)
+    quad = _quadrature(member)
+    trial = _expression_trial(expr, member.length)
+    K, M, rigid = _without_rigid(member, [trial], quad)
+    if not M[0, 0] > 0.0:
+        raise InputError(key, expression, "a shape that is not a rigid-body motion of the member")
+    omega2 = float(K[0, 0] / M[0, 0])
+    omega = math.sqrt(max(omega2, 0.0))
+    formula = coefficient = exact = check = None
+    if rigid == 0:
+        symbolic = _symbolic(member, expr)
+        if symbolic is not None:
+            omega_sym, formula, coefficient, exact = symbolic
+            check = abs(omega_sym - omega) / omega_sym
+            omega = omega_sym
+    if rigid:
+        notes = (*notes, "the shape was made mass-orthogonal to the rigid-body motions")
+    return RayleighEstimate(
+        shape=name,
+        expression=str(expr),
+        omega=omega,
+        frequency_hz=omega / (2.0 * math.pi),
+        formula=formula,
+        coefficient=coefficient,
+        coefficient_exact=exact,
+        numeric_check=check,
+        notes=notes,
+    )
+
+
+def _symbolic(member: Member, expr: Any) -> tuple[float, str, float | None, str | None] | None:
+    """Closed-form quotient for a uniform member, where sympy integrates the shape."""
+    import sympy
+
+    from calc.expressions import evaluate, symbols
+
+    if not member.is_uniform or not _integrable(expr):
+        return None
+    x, L_sym = symbols()
+    d1 = sympy.diff(expr, x)
+    d2 = sympy.diff(d1, x)
+    integrals = []
+    for f in (d2**2, d1**2, expr**2):
+        value = sympy.integrate(sympy.expand(f), (x, 0, L_sym))
+        if value.has(sympy.Integral):
+            return None
+        integrals.append(sympy.simplify(value))
+    I2, I1, I0 = integrals
+    seg = member.segments[0]
+    EI, m, L, P = seg.bending_stiffness, seg.mass_per_length, member.length, member.axial_force
+    num = EI * float(I2.subs(L_sym, L)) + P * float(I1.subs(L_sym, L))
+    den = m * float(I0.subs(L_sym, L))
+    for sp in member.springs:
+        w = float(evaluate(expr, np.array([sp.at]), L)[0])
+        s = float(evaluate(d1, np.array([sp.at]), L)[0])
+        num += sp.stiffness * w * w + sp.rotational_stiffness * s * s
+    for pm in member.masses:
+        w = float(evaluate(expr, np.array([pm.at]), L)[0])
+        s = float(evaluate(d1, np.array([pm.at]), L)[0])
+        den += pm.mass * w * w + pm.rotary_inertia * s * s
+    omega = math.sqrt(num / den)
+    c2 = sympy.simplify(L_sym**4 * I2 / I0)
+    bare = not (member.springs or member.masses or P)
+    if bare and not c2.free_symbols:
+        coefficient = math.sqrt(float(c2))
+        formula = f"omega = {coefficient:.4g}*sqrt(EI/(m*L^4)), with C^2 = {sympy.sstr(c2)}"
+        return omega, formula, coefficient, sympy.sstr(c2)
+    parts = [f"EI*({sympy.sstr(I2)})"]
+    if P:
+        parts.append(f"P*({sympy.sstr(I1)})")
+    if member.springs:
+        parts.append("sum k*w(a)^2 + k_r*w'(a)^2")
+    dens = [f"m*({sympy.sstr(I0)})"]
+    if member.masses:
+        dens.append("sum M*w(a)^2 + J*w'(a)^2")
+    formula = f"omega^2 = ({' + '.join(parts)}) / ({' + '.join(dens)})"
+    return omega, formula, None, None
+
+
+def _integrable(expr: Any) -> bool:
+    """Shapes sympy integrates quickly: polynomials times sin/cos/sinh/cosh/exp of a*x + b."""
+    import sympy
+
+    from calc.expressions import symbols
+
+    x, _ = symbols()
+    if sympy.count_ops(expr) > _SYMBOLIC_NODES:
+        return False
+    allowed = (sympy.sin, sympy.cos, sympy.sinh, sympy.cosh, sympy.exp)
+    for node in sympy.preorder_traversal(expr):
+        if isinstance(node, sympy.Function):
+            if not isinstance(node, allowed):
+                return False
+            arg = node.args[0]
+            if not arg.is_polynomial(x) or sympy.degree(arg, x) > 1:
+                return False
+        elif (
+            isinstance(node, sympy.Pow)
+            and node.base.has(x)
+            and not (node.exp.is_Integer and node.exp >= 0)
+        ):
+            return False
+    return True
+
+
+def static_shape(member: Member, elements: int = 96) -> tuple[fe.Mesh, fe.System, np.ndarray, str]:
+    """Deflection under the member's own weight and its attached weights, acting across it.
+
+    Where the member has rigid-body freedom the load is made mass-orthogonal to the rigid
+    motions, and so is the deflection (a bordered solve).  Where that leaves little of the
+    weight (nothing restrains the member across), loads whose inertia varies linearly and
+    parabolically along the member are tried as well and the lowest quotient kept; every
+    candidate is admissible, so each is an upper bound.
+
+    Returns
+    -------
+    mesh, system, u, load
+        The mesh, its assembled system, the deflection on the free DOFs, and a description
+        of the load that produced it.
+    """
+    import scipy.sparse
+
+    mesh = fe.build_mesh(member, elements)
+    system = fe.assemble(member, mesh)
+    weight = system.influence_load * G0
+    rigid = rigid_body_count(member)
+    label = "deflection under the member's own weight and the weights it carries"
+    if rigid == 0:
+        return mesh, system, _solve_static(system.K, weight), label
+    R = fe._rigid_vectors(member, mesh, system)
+    MR = system.M @ R
+    bordered = scipy.sparse.bmat([[system.K, scipy.sparse.csr_matrix(MR)], [MR.T, None]]).tocsc()
+    full = np.zeros(system.n_full)
+    xi = (mesh.x - 0.5 * member.length) / member.length
+    candidates = [(weight, label)]
+    for power, name in ((1, "linearly"), (2, "parabolically")):
+        full[0::2] = xi**power
+        candidates.append((system.M @ full[system.free], f"a load whose inertia varies {name}"))
+    best: tuple[float, np.ndarray, str] | None = None
+    for load, name in candidates:
+        flex = load - MR @ (R.T @ load)
+        if np.linalg.norm(flex) <= 1e-6 * np.linalg.norm(load):
+            continue
+        u = _solve_static(bordered, np.concatenate([flex, np.zeros(rigid)]))[: len(flex)]
+        lam = float(fe._strain_energy_quotient(member, mesh, system, u[:, None])[0])
+        if best is None or lam < best[0]:
+            best = (lam, u, name)
+    assert best is not None
+    return mesh, system, best[1], best[2] + ", made mass-orthogonal to the rigid-body motions"
+
+
+def _solve_static(K: Any, f: np.ndarray) -> np.ndarray:
+    import scipy.sparse.linalg
+
+    return np.asarray(scipy.sparse.linalg.spsolve(K.tocsc(), f))
+
+
+def rayleigh_static(member: Member) -> RayleighEstimate:
+    """Rayleigh's quotient of the static deflection shape (the default estimate).
+
+    The shape and the quotient come from the finite-element model of the member, so
+    the estimate is an upper bound on the fundamental of that model and hence on the
+    true one.
+
+    Returns
+    -------
+    RayleighEstimate
+    """
+    mesh, system, u, label = static_shape(member)
+    lam = float(fe._strain_energy_quotient(member, mesh, system, u[:, None])[0])
+    omega = math.sqrt(lam)
+    return RayleighEstimate("static", None, omega, omega / (2.0 * math.pi), notes=(label,))
+
+
+# --- Ritz ----------------------------------------------------------------------------------------
+
+
+def polynomial_family(member: Member, count: int) -> list[Trial]:
+    """Hierarchical polynomials meeting every geometric condition of the supports.
+
+    Function k is of the lowest degree that adds a new direction to the first k - 1,
+    so the families for n and n + 1 functions are nested and the Ritz bounds fall
+    monotonically as n grows.  The rigid motions the restraints leave free satisfy
+    the conditions too; they come first and are counted on top of ``count``.
+    Functions are Legendre series on [0, L] for conditioning.
+
+    Parameters
+    ----------
+    member : Member
+    count : int
+        Number of flexible functions.
+
+    Returns
+    -------
+    list of Trial
+        ``count`` plus the number of rigid-body modes functions.
+    """
+    L = member.length
+    rows = []
+    for where, kind in _supports(member):
+        holds_w, holds_slope = HOLDS[kind]
+        t = 2.0 * where / L - 1.0
+        if holds_w:
+            rows.append(("w", t))
+        if holds_slope:
+            rows.append(("d", t))
+    dim = count + rigid_body_count(member)
+    basis: list[np.ndarray] = []
+    degree = 0
+    while len(basis) < dim:
+        C = np.zeros((len(rows), degree + 1))
+        for j in range(degree + 1):
+            poly = np.polynomial.Legendre.basis(j)
+            slope = poly.deriv()
+            for i, (kind, t) in enumerate(rows):
+                C[i, j] = poly(t) if kind == "w" else slope(t)
+        space = scipy.linalg.null_space(C) if rows else np.eye(degree + 1)
+        if space.shape[1] > len(basis):
+            if basis:
+                B = np.array([np.pad(b, (0, degree + 1 - b.size)) for b in basis]).T
+                Q = scipy.linalg.orth(B)
+                space = space - Q @ (Q.T @ space)
+            new = scipy.linalg.orth(space, rcond=1e-10)
+            basis.extend(v / np.max(np.abs(v)) for v in new.T[: dim - len(basis)])
+        degree += 1
+    return [_legendre_trial(c, L) for c in basis]
+
+
+def ritz(member: Member, shapes: list[str] | int, key: str = "estimate.shapes") -> RitzResult:
+    """Rayleigh-Ritz upper bounds on the lowest flexible modes.
+
+    Parameters
+    ----------
+    member : Member
+    shapes : list of str, or int
+        Expressions in x and L, each admissible; or a count N of the built-in
+        polynomial family (lowest-degree polynomials meeting every geometric condition).
+    key : str
+        Key named in errors.
+
+    Returns
+    -------
+    RitzResult
+        Bounds with all functions, and with the first 1, 2, ... of them.
+    """
+    quad = _quadrature(member)
+    if isinstance(shapes, int):
+        r = rigid_body_count(member)
+        K, M = _energy_matrices(member, polynomial_family(member, shapes), quad)
+        rows = [
+            _bounds(K[: n + r, : n + r], M[: n + r, : n + r], r, key) for n in range(1, shapes + 1)
+        ]
+        labels = tuple(f"polynomial family, function {i + 1}" for i in range(shapes))
+        return RitzResult(labels, rows[-1], tuple(rows))
+    from calc.expressions import parse_shape
+
+    exprs = []
+    for i, text in enumerate(shapes):
+        item = f"{key}[{i}]"
+        expr = parse_shape(text, item)
+        admissibility(member, expr, item)
+        exprs.append(expr)
+    trials = [_expression_trial(e, member.length) for e in exprs]
+    K, M, _ = _without_rigid(member, trials, quad)
+    rows = [_bounds(K[:n, :n], M[:n, :n], 0, key) for n in range(1, len(trials) + 1)]
+    return RitzResult(tuple(str(e) for e in exprs), rows[-1], tuple(rows))
+
+
+def _bounds(K: np.ndarray, M: np.ndarray, rigid: int, key: str) -> tuple[float, ...]:
+    scale = np.sqrt(np.abs(np.diag(M)))
+    if np.any(scale == 0.0):
+        raise InputError(key, None, "shapes that are not rigid-body motions")
+    Ks = K / np.outer(scale, scale)
+    Ms = M / np.outer(scale, scale)
+    if np.linalg.cond(Ms) > 1e12:
+        raise InputError(key, None, "linearly independent shapes (some are combinations of others)")
+    lam = scipy.linalg.eigh(Ks, Ms, eigvals_only=True)[rigid:]
+    return tuple(float(math.sqrt(max(v, 0.0)) / (2.0 * math.pi)) for v in lam)
+
+
+# --- Dunkerley -----------------------------------------------------------------------------------
+
+
+def dunkerley(member: Member) -> DunkerleyBound:
+    """Dunkerley's lower bound from the static flexibility of the supported member.
+
+    sum_i 1/omega_i^2 = int m(x) a(x, x) dx + sum M a(x_j, x_j) + sum J b(x_j, x_j), with
+    a the deflection at x under a unit force at x and b the rotation under a unit moment.
+    Hermite beam elements give these nodally exact for a member without axial force, and on
+    each interval between stations a(x, x) is a polynomial of degree at most six, so Gauss
+    quadrature with the quadrature points as nodes gives the sum exactly (to round-off).
+
+    Returns
+    -------
+    DunkerleyBound
+    """
+    if rigid_body_count(member):
+        return DunkerleyBound(
+            None,
+            None,
+            "the member can move as a rigid body, so its flexibility is unbounded and "
+            "Dunkerley's sum gives no lower bound",
+        )
+    exact = member.axial_force == 0.0
+    points, weights = np.polynomial.legendre.leggauss(4 if exact else 8)
+    stations = fe._stations(member)
+    xs, ws = [], []
+    pieces = 1 if exact else 8
+    for a, b in zip(stations[:-1], stations[1:], strict=True):
+        edges = np.linspace(a, b, pieces + 1)
+        for lo, hi in zip(edges[:-1], edges[1:], strict=True):
+            xs.append(0.5 * (lo + hi) + 0.5 * (hi - lo) * points)
+            ws.append(0.5 * (hi - lo) * weights)
+    xq = np.concatenate(xs)
+    wq = np.concatenate(ws)
+    mesh = fe.mesh_through(member, xq)
+    system = fe.assemble(member, mesh)
+    position = {int(i): k for k, i in enumerate(system.free)}
+    m_of = np.array([member.segments[member.segment_index(x)].mass_per_length for x in xq])
+    targets: list[tuple[int, float]] = []  # (free dof, weight)
+    for x, w, m in zip(xq, wq, m_of, strict=True):
+        node = int(np.argmin(np.abs(mesh.x - x)))
+        targets.append((position[2 * node], w * m))
+    s = system.scale
+    for pm in member.masses:
+        node = mesh.node_at(pm.at)
+        if pm.mass and 2 * node in position:
+            targets.append((position[2 * node], pm.mass))
+        if pm.rotary_inertia and 2 * node + 1 in position:
+            targets.append((position[2 * node + 1], pm.rotary_inertia / s**2))
+    dofs = np.array([t[0] for t in targets])
+    factors = np.array([t[1] for t in targets])
+    unique, inverse = np.unique(dofs, return_inverse=True)
+    import scipy.sparse
+    import scipy.sparse.linalg
+
+    n = system.K.shape[0]
+    E = scipy.sparse.csc_matrix(
+        (np.ones(len(unique)), (unique, np.arange(len(unique)))), shape=(n, len(unique))
+    )
+    lu = scipy.sparse.linalg.splu(system.K.tocsc())
+    X = lu.solve(E.toarray())
+    diag = X[unique, np.arange(len(unique))]
+    trace = float(np.sum(factors * diag[inverse]))
+    if not trace > 0.0:
+        return DunkerleyBound(None, None, "the flexibility could not be computed", exact)
+    return DunkerleyBound(1.0 / (2.0 * math.pi * math.sqrt(trace)), trace, None, exact)
+
+
+# --- bracket and equivalent model ----------------------------------------------------------------
+
+
+def bracket(lower: DunkerleyBound, result: fe.FEResult, upper: RayleighEstimate) -> Bracket:
+    """Place the FE fundamental between Dunkerley's and Rayleigh's bounds.
+
+    Returns
+    -------
+    Bracket
+        ``inside`` is False (and the message says so loudly) if the FE value falls outside
+        the bracket by more than its estimated error, which must not happen.
+    """
+    mode = result.modes[0]
+    f = mode.frequency_hz
+    tol = max(mode.estimated_error, 1e-12) * f
+    lo = lower.frequency_hz
+    inside = f <= upper.frequency_hz + tol and (lo is None or lo - tol <= f)
+    width = None if lo is None else (upper.frequency_hz - lo) / f
+    if not inside:
+        message = (
+            "CHECK FAILED: the finite-element fundamental lies outside the Dunkerley-Rayleigh "
+            "bracket; the model or its input is suspect, do not use these results"
+        )
+    elif lo is None:
+        message = (
+            f"FE fundamental below the Rayleigh bound by {100 * (upper.frequency_hz - f) / f:.3g} %"
+        )
+    else:
+        message = (
+            f"lower {lo:.6g} Hz <= FE {f:.6g} Hz <= upper {upper.frequency_hz:.6g} Hz "
+            f"(width {100 * width:.3g} % of FE)"
+        )
+    return Bracket(lo, f, upper.frequency_hz, width, inside, message)
+
+
+def equivalent_system(
+    member: Member, result: fe.FEResult, at: float | None = None
+) -> EquivalentSystem:
+    """Equivalent single-degree-of-freedom model of the fundamental at a point.
+
+    Parameters
+    ----------
+    member : Member
+    result : FEResult
+        The solved modes.
+    at : float, optional
+        Reference point [m]; by default the point of largest deflection.
+
+    Returns
+    -------
+    EquivalentSystem
+        Effective mass m_e = 1/phi(at)^2 for the mode phi normalized to unit modal mass
+        [kg], and effective stiffness k_e = omega_1^2 m_e [N/m].
+
+    Raises
+    ------
+    InputError
+        Where the reference point does not move in the fundamental.
+    """
+    mode = result.modes[0]
+    if at is None:
+        i = int(np.argmax(np.abs(mode.w_modal)))
+        at = float(mode.x[i])
+    phi = fe.interpolate(mode.x, mode.w_modal, mode.theta_modal, at)
+    peak = float(np.max(np.abs(mode.w_modal)))
+    if abs(phi) <= 1e-6 * peak or not math.isfinite(phi):
+        raise InputError(
+            "estimate.reference",
+            f"{at:.6g} m",
+            "a point that moves in the fundamental mode (this one is at or near a node of it)",
+        )
+    if not -POSITION_TOLERANCE * member.length <= at <= member.length * (1 + POSITION_TOLERANCE):
+        raise InputError("estimate.reference", f"{at:.6g} m", "a point on the member")
+    mass = 1.0 / phi**2
+    return EquivalentSystem(at, mass, mode.omega**2 * mass)
