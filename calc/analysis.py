@@ -45,6 +45,11 @@ class Analysis:
     def warnings(self) -> tuple[str, ...]:
         """Warnings of every method, the bracket's failure first if it failed."""
         out = list(self.modes.warnings)
+        if self.lower_bound.uncertainty > 1e-6:
+            out.append(
+                "the member is nearly free to move as a rigid body (ill-conditioned flexibility): "
+                f"Dunkerley's bound is uncertain by about {self.lower_bound.uncertainty:.0e}"
+            )
         if not self.bracket.inside:
             out.insert(0, self.bracket.message)
         return tuple(out)

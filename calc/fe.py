@@ -16,6 +16,7 @@ Analysis, 1968, chapters 5 and 11).
 
 from __future__ import annotations
 
+import bisect
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
@@ -47,6 +48,8 @@ ACCURACY = 1e-6
 """Relative accuracy every reported natural frequency meets by default."""
 
 _EPS = np.finfo(float).eps
+ATTACHMENT_TOLERANCE = 1e-4
+"""Masses and springs closer than this fraction of the length to a station ride on its node."""
 _DENSE_LIMIT = 600  # free degrees of freedom up to which the dense solver is used
 _SAFETY = 2.0  # factor on the asymptotic Richardson estimate
 _ROUNDOFF_FACTOR = 10.0  # on eps * lambda_max / lambda_i (see _roundoff_estimate)
@@ -196,18 +199,45 @@ class FEResult:
 
 
 def _stations(member: Member) -> list[float]:
+    """Positions that are nodes of every mesh [m].
+
+    Segment ends and supports always are.  A mass or spring is a station of its own unless
+    it lies within ``ATTACHMENT_TOLERANCE`` of the member length from another station; it
+    is then carried by that station's node through a rigid offset (exact but for the
+    bending of so short a piece), since an element that short would ruin the conditioning.
+    """
     L = member.length
     tol = POSITION_TOLERANCE * L
-    points = list(member.boundaries)
-    points += [m.at for m in member.masses]
-    points += [s.at for s in member.springs]
-    points += [s.at for s in member.inner_supports]
+    points = [*member.boundaries, *(s.at for s in member.inner_supports)]
     stations: list[float] = []
     for p in sorted(min(max(p, 0.0), L) for p in points):
         if not stations or p - stations[-1] > tol:
             stations.append(p)
     stations[-1] = L
+    near = ATTACHMENT_TOLERANCE * L
+    attached = sorted({min(max(a, 0.0), L) for a in _attachment_positions(member)})
+    for p in attached:
+        i = bisect.bisect_left(stations, p)
+        gaps = [abs(stations[j] - p) for j in (i - 1, i) if 0 <= j < len(stations)]
+        if min(gaps) > near:
+            stations.insert(i, p)
     return stations
+
+
+def _attachment_positions(member: Member) -> list[float]:
+    return [m.at for m in member.masses] + [s.at for s in member.springs]
+
+
+def _node_offset(mesh: Mesh, position: float) -> tuple[int, float]:
+    """Node carrying an attachment at ``position`` [m], and its offset from that node [m]."""
+    j = mesh.node_at(position)
+    return j, float(position - mesh.x[j])
+
+
+def _block(out: list[tuple[int, int, float]], j: int, a: float, e: float, b: float) -> None:
+    """Add a * (w + e theta)^2 + b theta^2 at node j (theta in scaled units)."""
+    w, t = 2 * j, 2 * j + 1
+    out += [(w, w, a), (w, t, a * e), (t, w, a * e), (t, t, a * e * e + b)]
 
 
 def _map_attachments(
@@ -394,26 +424,27 @@ def assemble(member: Member, mesh: Mesh) -> System:
     rows = np.repeat(dofs, 4, axis=1).ravel()
     cols = np.tile(dofs, (1, 4)).ravel()
 
-    diag_k = np.zeros(n)
-    diag_m = np.zeros(n)
+    # Point masses and springs: 2x2 blocks on (w, theta) of their node; an attachment at an
+    # offset e from its node acts on w + e*theta (rigid offset).
+    point_k: list[tuple[int, int, float]] = []
+    point_m: list[tuple[int, int, float]] = []
     for pm in member.masses:
-        j = mesh.node_at(pm.at)
-        diag_m[2 * j] += pm.mass
-        diag_m[2 * j + 1] += pm.rotary_inertia / s**2
+        j, e = _node_offset(mesh, pm.at)
+        _block(point_m, j, pm.mass, e / s, pm.rotary_inertia / s**2)
     for sp in member.springs:
-        j = mesh.node_at(sp.at)
-        diag_k[2 * j] += sp.stiffness
-        diag_k[2 * j + 1] += sp.rotational_stiffness / s**2
+        j, e = _node_offset(mesh, sp.at)
+        _block(point_k, j, sp.stiffness, e / s, sp.rotational_stiffness / s**2)
 
-    def build(values: np.ndarray, diag: np.ndarray | None) -> scipy.sparse.csr_matrix:
-        mat = scipy.sparse.coo_matrix((values.ravel(), (rows, cols)), shape=(n, n)).tocsr()
-        if diag is not None:
-            mat = mat + scipy.sparse.diags(diag)
-        return mat.tocsr()
+    def build(values: np.ndarray, extra: list[tuple[int, int, float]]) -> scipy.sparse.csr_matrix:
+        r = np.concatenate([rows, np.array([t[0] for t in extra], dtype=int)])
+        c = np.concatenate([cols, np.array([t[1] for t in extra], dtype=int)])
+        v = np.concatenate([values.ravel(), np.array([t[2] for t in extra], dtype=float)])
+        return scipy.sparse.coo_matrix((v, (r, c)), shape=(n, n)).tocsr()
 
-    K_full = build(ke + P * ge, diag_k)
-    G_full = build(ge, None)
-    M_full = build(me, diag_m)
+    K_full = build(ke + P * ge, point_k)
+    G_full = build(ge, [])
+    M_full = build(me, point_m)
+    diag_k = np.asarray(build(np.zeros_like(ke), point_k).diagonal())
 
     fixed: list[int] = []
     ends = [(0, member.left), (n_nodes - 1, member.right)]
@@ -535,8 +566,8 @@ def _solve_mesh(
         raise InputError(
             "member",
             None,
-            "a model whose mass matrix is positive definite; some free degree of freedom "
-            "carries no mass, so its frequency cannot be found",
+            "a model the eigen solver can factor; its matrices are numerically singular "
+            "(a massless part, or stiffnesses of wildly different size)",
         ) from None
     name = "dense (LAPACK)" if n <= _DENSE_LIMIT else "sparse shift-invert (ARPACK)"
     flexible = vecs[:, rigid:]
@@ -615,8 +646,9 @@ def _strain_energy_quotient(
         slope2 = h * (d * d + (2.0 * a * a - a * b + 2.0 * b * b) / 15.0)
         energy = energy + member.axial_force * slope2.sum(axis=0)
     for sp in member.springs:
-        j = mesh.node_at(sp.at)
-        energy = energy + sp.stiffness * w[j] ** 2 + sp.rotational_stiffness * theta[j] ** 2
+        j, e = _node_offset(mesh, sp.at)
+        at = w[j] + e * theta[j]
+        energy = energy + sp.stiffness * at**2 + sp.rotational_stiffness * theta[j] ** 2
     kinetic = np.einsum("ij,ij->j", vecs, system.M @ vecs)
     return energy / kinetic
 
@@ -743,7 +775,10 @@ def solve(
     if elements is not None:
         wrong_way = (_omega(reported) - _omega(check))[:modes] < -1e-12 * _omega(check)[:modes]
     error = np.fmax(disc, roundoff)
-    roundoff_dominated = bool(np.any(wrong_way | ((roundoff > disc) & (error > 0.1 * accuracy))))
+    # A forced mesh is an experiment: say whenever round-off dominates.  The automatic mesh
+    # only says so where round-off keeps a mode from its accuracy target.
+    limiting = (roundoff > disc) if elements is not None else (roundoff > disc) & (error > accuracy)
+    roundoff_dominated = bool(np.any(wrong_way | limiting))
     if roundoff_dominated:
         worst = int(np.argmax(np.where(wrong_way, np.inf, roundoff / np.maximum(disc, 1e-300))))
         worst += 1

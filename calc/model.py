@@ -38,8 +38,9 @@ HOLDS = {
     "free": (False, False),
 }
 
-# Two positions closer than this fraction of the member length are one station.
-POSITION_TOLERANCE = 1e-9
+# Two positions closer than this fraction of the member length are one station (a tiny
+# element between them would only ruin the conditioning of the stiffness matrix).
+POSITION_TOLERANCE = 1e-6
 
 
 @dataclass(frozen=True)

@@ -125,12 +125,17 @@ class DunkerleyBound:
         Why there is no bound (rigid-body freedom).
     exact : bool
         True where the flexibility and the quadrature are exact (no axial force).
+    uncertainty : float
+        Estimated relative round-off in the bound: eps times an estimate of the stiffness
+        matrix's condition number; large where the member is nearly free to move as a
+        rigid body (a very soft spring), which makes the flexibility ill-conditioned.
     """
 
     frequency_hz: float | None
     trace: float | None
     reason: str | None = None
     exact: bool = True
+    uncertainty: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -817,34 +822,43 @@ def dunkerley(member: Member) -> DunkerleyBound:
     system = fe.assemble(member, mesh)
     position = {int(i): k for k, i in enumerate(system.free)}
     m_of = np.array([member.segments[member.segment_index(x)].mass_per_length for x in xq])
-    targets: list[tuple[int, float]] = []  # (free dof, weight)
+    # Probes: unit loads whose response, read back the same way, gives each flexibility term.
+    probes: list[dict[int, float]] = []
+    factors: list[float] = []
     for x, w, m in zip(xq, wq, m_of, strict=True):
         node = int(np.argmin(np.abs(mesh.x - x)))
-        targets.append((position[2 * node], w * m))
+        if 2 * node in position:
+            probes.append({position[2 * node]: 1.0})
+            factors.append(w * m)
     s = system.scale
     for pm in member.masses:
-        node = mesh.node_at(pm.at)
-        if pm.mass and 2 * node in position:
-            targets.append((position[2 * node], pm.mass))
-        if pm.rotary_inertia and 2 * node + 1 in position:
-            targets.append((position[2 * node + 1], pm.rotary_inertia / s**2))
-    dofs = np.array([t[0] for t in targets])
-    factors = np.array([t[1] for t in targets])
-    unique, inverse = np.unique(dofs, return_inverse=True)
+        node, e = fe._node_offset(mesh, pm.at)
+        wdof, tdof = position.get(2 * node), position.get(2 * node + 1)
+        translation = {k: v for k, v in ((wdof, 1.0), (tdof, e / s)) if k is not None and v}
+        if pm.mass and translation:
+            probes.append(translation)
+            factors.append(pm.mass)
+        if pm.rotary_inertia and tdof is not None:
+            probes.append({tdof: 1.0 / s})
+            factors.append(pm.rotary_inertia)
     import scipy.sparse
     import scipy.sparse.linalg
 
     n = system.K.shape[0]
-    E = scipy.sparse.csc_matrix(
-        (np.ones(len(unique)), (unique, np.arange(len(unique)))), shape=(n, len(unique))
-    )
+    V = np.zeros((n, len(probes)))
+    for j, probe in enumerate(probes):
+        for k, v in probe.items():
+            V[k, j] = v
     lu = scipy.sparse.linalg.splu(system.K.tocsc())
-    X = lu.solve(E.toarray())
-    diag = X[unique, np.arange(len(unique))]
-    trace = float(np.sum(factors * diag[inverse]))
-    if not trace > 0.0:
+    X = lu.solve(V)
+    diag = np.einsum("ij,ij->j", V, X)
+    trace = float(np.sum(np.asarray(factors) * diag))
+    if not trace > 0.0 or not math.isfinite(trace):
         return DunkerleyBound(None, None, "the flexibility could not be computed", exact)
-    return DunkerleyBound(1.0 / (2.0 * math.pi * math.sqrt(trace)), trace, None, exact)
+    # cond(K) ~ ||K|| ||K^-1||, both estimated from diagonals (K symmetric positive definite)
+    condition = 2.0 * float(np.max(np.abs(system.K.diagonal()))) * float(np.max(np.abs(diag)))
+    uncertainty = 10.0 * np.finfo(float).eps * condition
+    return DunkerleyBound(1.0 / (2.0 * math.pi * math.sqrt(trace)), trace, None, exact, uncertainty)
 
 
 # --- bracket and equivalent model ----------------------------------------------------------------
@@ -863,7 +877,9 @@ def bracket(lower: DunkerleyBound, result: fe.FEResult, upper: RayleighEstimate)
     f = mode.frequency_hz
     tol = max(mode.estimated_error, 1e-12) * f
     lo = lower.frequency_hz
-    inside = f <= upper.frequency_hz + tol and (lo is None or lo - tol <= f)
+    inside = f <= upper.frequency_hz + tol and (
+        lo is None or lo * (1.0 - lower.uncertainty) - tol <= f
+    )
     width = None if lo is None else (upper.frequency_hz - lo) / f
     if not inside:
         message = (
