@@ -55,6 +55,7 @@ _SAFETY = 2.0  # factor on the asymptotic Richardson estimate
 _ROUNDOFF_FACTOR = 10.0  # on eps * lambda_max / lambda_i (see _roundoff_estimate)
 _ELEMENT_LAMBDA_MAX = 8400.0  # largest eigenvalue of one element, times m h^4 / EI
 _MAX_REFINEMENTS = 4
+_MIN_ELEMENTS = 16  # on the coarser mesh of the two compared
 _MAX_DOFS = 400_000
 
 Eigensolver = Callable[[object, object, int, float], tuple[np.ndarray, np.ndarray]]
@@ -668,9 +669,12 @@ def _designed_size(member: Member, omega: float, accuracy: float) -> Callable[[i
     # Hermite cubic elements with consistent mass: relative frequency error about (kh)^4 / 1440
     # for a uniform beam (h^4 convergence of the eigenvalues, common practice); aim for a tenth
     # of the target on the coarser of the two meshes compared.
+    # At least _MIN_ELEMENTS over the member keeps the error estimate in its asymptotic range
+    # even for modes that barely bend it (a member bouncing on soft springs).
     kh = (1440.0 * accuracy * 0.1 * 16.0) ** 0.25
     k = _wavenumber(member, omega)
-    return lambda seg: kh / max(k[seg], 1e-300)
+    longest = member.length / _MIN_ELEMENTS
+    return lambda seg: min(kh / max(k[seg], 1e-300), longest)
 
 
 def _roundoff_estimate(sol: _Solution) -> np.ndarray:
