@@ -11,9 +11,14 @@ __all__ = ["InputError"]
 _MAX_SHOWN = 60
 
 
+def _printable(text: str) -> str:
+    """Escape control and other non-printable characters so a message stays one line."""
+    return "".join(c if c.isprintable() else repr(c)[1:-1] for c in text)
+
+
 def _show(value: object) -> str:
     text = repr(value) if not isinstance(value, str) else '"' + value + '"'
-    text = text.replace("\n", "\\n")
+    text = _printable(text)
     if len(text) > _MAX_SHOWN:
         text = text[: _MAX_SHOWN - 3] + "..."
     return text
@@ -45,10 +50,10 @@ class InputError(ValueError):
     @property
     def message(self) -> str:
         """One line naming the key, the value given and what was expected."""
-        text = f"{self.key}: got {_show(self.value)}; expected {self.expected}"
+        text = f"{_printable(self.key)}: got {_show(self.value)}; expected {self.expected}"
         if self.hint:
             text += f" ({self.hint})"
-        return text
+        return _printable(text)
 
     def __str__(self) -> str:
         return self.message

@@ -857,7 +857,7 @@ def dunkerley(member: Member) -> DunkerleyBound:
         return DunkerleyBound(None, None, "the flexibility could not be computed", exact)
     # cond(K) ~ ||K|| ||K^-1||, both estimated from diagonals (K symmetric positive definite)
     condition = 2.0 * float(np.max(np.abs(system.K.diagonal()))) * float(np.max(np.abs(diag)))
-    uncertainty = 10.0 * np.finfo(float).eps * condition
+    uncertainty = float(10.0 * np.finfo(float).eps * condition)
     return DunkerleyBound(1.0 / (2.0 * math.pi * math.sqrt(trace)), trace, None, exact, uncertainty)
 
 
@@ -877,8 +877,8 @@ def bracket(lower: DunkerleyBound, result: fe.FEResult, upper: RayleighEstimate)
     f = mode.frequency_hz
     tol = max(mode.estimated_error, 1e-12) * f
     lo = lower.frequency_hz
-    inside = f <= upper.frequency_hz + tol and (
-        lo is None or lo * (1.0 - lower.uncertainty) - tol <= f
+    inside = bool(
+        f <= upper.frequency_hz + tol and (lo is None or lo * (1.0 - lower.uncertainty) - tol <= f)
     )
     width = None if lo is None else (upper.frequency_hz - lo) / f
     if not inside:

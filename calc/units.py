@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import math
 import re
+import tokenize
 from dataclasses import dataclass
 from functools import cache
 from typing import TYPE_CHECKING
@@ -53,41 +54,52 @@ class Dimension:
         The SI unit the core works in, e.g. ``"kg/m^3"``.
     example : str
         A valid example entry for messages.
+    limits : tuple of float
+        Smallest and largest magnitude accepted, in the SI unit (zero is governed apart).
     """
 
     name: str
     pint_dimension: str
     si_unit: str
     example: str
+    limits: tuple[float, float] = (0.0, math.inf)
 
 
-LENGTH = Dimension("a length", "[length]", "m", '"1.2 m" or "48 in"')
-MASS = Dimension("a mass", "[mass]", "kg", '"2.5 kg" or "5.5 lb"')
+# Limits are the magnitudes, in SI, that any real member stays well inside; beyond them a
+# value is far more likely a slip of the unit than a design, and the arithmetic suffers.
+LENGTH = Dimension("a length", "[length]", "m", '"1.2 m" or "48 in"', (1e-9, 1e6))
+MASS = Dimension("a mass", "[mass]", "kg", '"2.5 kg" or "5.5 lb"', (1e-12, 1e9))
 DENSITY = Dimension("a density (mass per volume)", "[mass] / [length] ** 3", "kg/m^3",
-                    '"7850 kg/m^3" or "0.284 lb/in^3"')  # fmt: skip
+                    '"7850 kg/m^3" or "0.284 lb/in^3"', (1e-3, 1e6))  # fmt: skip
 PRESSURE = Dimension("a modulus (force per area)", "[mass] / [length] / [time] ** 2", "Pa",
-                     '"200 GPa" or "29000 ksi"')  # fmt: skip
-AREA = Dimension("an area", "[length] ** 2", "m^2", '"450 mm^2" or "0.7 in^2"')
+                     '"200 GPa" or "29000 ksi"', (1e3, 1e13))  # fmt: skip
+AREA = Dimension("an area", "[length] ** 2", "m^2", '"450 mm^2" or "0.7 in^2"', (1e-18, 1e6))
 SECOND_MOMENT = Dimension("a second moment of area", "[length] ** 4", "m^4",
-                          '"1.2e6 mm^4" or "2.9 in^4"')  # fmt: skip
+                          '"1.2e6 mm^4" or "2.9 in^4"', (1e-36, 1e8))  # fmt: skip
 MASS_PER_LENGTH = Dimension("a mass per length", "[mass] / [length]", "kg/m",
-                            '"0.8 kg/m" or "0.5 lb/ft"')  # fmt: skip
-FORCE = Dimension("a force", "[mass] * [length] / [time] ** 2", "N", '"2 kN" or "450 lbf"')
+                            '"0.8 kg/m" or "0.5 lb/ft"', (1e-12, 1e9))  # fmt: skip
+FORCE = Dimension("a force", "[mass] * [length] / [time] ** 2", "N", '"2 kN" or "450 lbf"',
+                  (1e-9, 1e12))  # fmt: skip
 STIFFNESS = Dimension("a stiffness (force per length)", "[mass] / [time] ** 2", "N/m",
-                      '"40 kN/m" or "200 lbf/in"')  # fmt: skip
+                      '"40 kN/m" or "200 lbf/in"', (1e-9, 1e18))  # fmt: skip
 ROTATIONAL_STIFFNESS = Dimension("a rotational stiffness (moment per radian)",
                                  "[mass] * [length] ** 2 / [time] ** 2", "N*m/rad",
-                                 '"2 kN*m/rad" or "1500 lbf*in/rad"')  # fmt: skip
+                                 '"2 kN*m/rad" or "1500 lbf*in/rad"', (1e-12, 1e18))  # fmt: skip
 ROTARY_INERTIA = Dimension("a rotary inertia (mass times length squared)",
-                           "[mass] * [length] ** 2", "kg*m^2", '"0.004 kg*m^2"')  # fmt: skip
-FREQUENCY = Dimension("a frequency", "1 / [time]", "Hz", '"60 Hz"')
+                           "[mass] * [length] ** 2", "kg*m^2", '"0.004 kg*m^2"',
+                           (1e-24, 1e12))  # fmt: skip
+FREQUENCY = Dimension("a frequency", "1 / [time]", "Hz", '"60 Hz"', (1e-9, 1e12))
 
 # A number, then a unit expression made of unit names, powers, products and quotients.
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?"
 _QUANTITY = re.compile(rf"^\s*({_NUMBER})\s*(.*?)\s*$")
-_UNIT_TEXT = re.compile(r"^[A-Za-z_µμΩ°][A-Za-z0-9_µμΩ°\s\*/\^\(\)\.·-]*$")
-_BIG_POWER = re.compile(r"(\^|\*\*)\s*\(?\s*[+-]?\d{2,}")
+_UNIT_TOKEN = re.compile(
+    r"\s*(?:(?P<name>[A-Za-zµμΩ°][A-Za-zµμΩ°_]*)|(?P<power>\*\*|\^)|(?P<op>[*/·])"
+    r"|(?P<open>\()|(?P<close>\))|(?P<number>[+-]?\d+(?:\.\d+)?))"
+)
 _MAX_TEXT = 80
+_MAX_UNIT_DEPTH = 4
+_MAX_UNIT_POWER = 12
 
 # Weight-based units given where a mass-based one belongs: name them and say what to give.
 _WEIGHT_IN_PLACE_OF = {
@@ -128,16 +140,91 @@ def _parse_units(text: str, key: str, given: str, dim: Dimension) -> pint.Unit:
     expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
     if not text:
         raise InputError(key, given, expected, "the unit is missing")
-    if not _UNIT_TEXT.match(text) or _BIG_POWER.search(text):
+    canonical = _canonical_units(text)
+    if canonical is None:
         raise InputError(key, given, expected, f"{text!r} is not a unit expression")
     try:
-        return registry().parse_units(text.replace("·", "*"))
+        return registry().parse_units(canonical)
     except pint.errors.UndefinedUnitError as exc:
         names = exc.unit_names if isinstance(exc.unit_names, str) else ", ".join(exc.unit_names)
         raise InputError(key, given, expected, f"unknown unit {names!r}") from None
     except (pint.errors.PintError, ValueError, TypeError, SyntaxError, AttributeError,
-            KeyError, IndexError, ZeroDivisionError, OverflowError):  # fmt: skip
+            KeyError, IndexError, ZeroDivisionError, OverflowError, AssertionError,
+            tokenize.TokenError):  # fmt: skip
+        # pint's own parser fails in several ways on odd text; all of them mean the same here
         raise InputError(key, given, expected, f"{text!r} is not a unit expression") from None
+
+
+def _canonical_units(text: str) -> str | None:
+    """Check a unit expression against a small grammar; return it in pint's notation or None.
+
+    unit := term (("*" | "/" | "·" | juxtaposition) term)* ; term := atom [("^" | "**") power] ;
+    atom := name | "1" | "(" unit ")" ; power := a signed number of at most 12 in size.
+    One power per term and a bounded nesting keep pint from building huge numbers.
+    """
+    tokens: list[tuple[str, str]] = []
+    pos = 0
+    while pos < len(text):
+        match = _UNIT_TOKEN.match(text, pos)
+        if match is None or match.end() == pos:
+            if text[pos:].strip() == "":
+                break
+            return None
+        kind = match.lastgroup or ""
+        tokens.append((kind, match.group(kind)))
+        pos = match.end()
+    out: list[str] = []
+    index = 0
+
+    def peek() -> str:
+        return tokens[index][0] if index < len(tokens) else ""
+
+    def atom(depth: int) -> bool:
+        nonlocal index
+        kind = peek()
+        if kind == "name":
+            out.append(tokens[index][1])
+            index += 1
+        elif kind == "number" and tokens[index][1] == "1":
+            out.append("1")
+            index += 1
+        elif kind == "open" and depth < _MAX_UNIT_DEPTH:
+            out.append("(")
+            index += 1
+            if not unit(depth + 1) or peek() != "close":
+                return False
+            out.append(")")
+            index += 1
+        else:
+            return False
+        if peek() == "power":
+            index += 1
+            if peek() != "number":
+                return False
+            power = float(tokens[index][1])
+            if abs(power) > _MAX_UNIT_POWER:
+                return False
+            out.append(f"**{tokens[index][1]}")
+            index += 1
+        return True
+
+    def unit(depth: int) -> bool:
+        nonlocal index
+        if not atom(depth):
+            return False
+        while peek() in ("op", "name", "open"):
+            if peek() == "op":
+                out.append("/" if tokens[index][1] == "/" else "*")
+                index += 1
+            else:
+                out.append("*")
+            if not atom(depth):
+                return False
+        return True
+
+    if not tokens or not unit(0) or index != len(tokens):
+        return None
+    return "".join(out)
 
 
 def parse_quantity(
@@ -147,6 +234,7 @@ def parse_quantity(
     *,
     allow_zero: bool = False,
     allow_negative: bool = False,
+    minimum: bool = True,
 ) -> float:
     """Parse a ``"number unit"`` string into an SI float of the given dimension.
 
@@ -160,6 +248,9 @@ def parse_quantity(
         Key path named in any error, e.g. ``"member.section.wall"``.
     allow_zero, allow_negative : bool
         Whether zero and negative values are acceptable.
+    minimum : bool
+        Whether a non-zero magnitude below the dimension's lower limit is refused
+        (False for positions, where tiny values are simply zero).
 
     Returns
     -------
@@ -200,7 +291,10 @@ def parse_quantity(
             if quantity.dimensionality == force_dim:
                 raise InputError(key, text, weight[1], f"{match.group(2)!r} gives {weight[0]}")
         raise InputError(key, text, expected, hint)
-    value = float(quantity.to(dim.si_unit).magnitude)
+    try:
+        value = float(quantity.to(dim.si_unit).magnitude)
+    except (OverflowError, ZeroDivisionError):
+        value = math.inf
     if not math.isfinite(value):
         raise InputError(key, text, f"a finite value; this one overflows in {dim.si_unit}")
     if value == 0.0 and not allow_zero:
@@ -208,6 +302,13 @@ def parse_quantity(
     if value < 0.0 and not allow_negative:
         sign = "zero or positive" if allow_zero else "positive"
         raise InputError(key, text, f"a {sign} {dim.name.removeprefix('a ').removeprefix('an ')}")
+    low, high = dim.limits
+    size = abs(value)
+    if size > high or (minimum and 0.0 < size < low):
+        what = dim.name.split(" (")[0]
+        zero = "zero or " if allow_zero else ""
+        span = f"{low:g} {dim.si_unit} to {high:g} {dim.si_unit}" if minimum else f"up to {high:g}"
+        raise InputError(key, text, f"{zero}{what} of {span}", f"this is {size:.3g} {dim.si_unit}")
     return value
 
 

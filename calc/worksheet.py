@@ -281,7 +281,12 @@ def _member(table: dict[str, Any]) -> tuple[tuple[Segment, ...], float]:
     axial = 0.0
     if "axial_force" in table:
         axial = parse_quantity(
-            table["axial_force"], FORCE, "member.axial_force", allow_zero=True, allow_negative=True
+            table["axial_force"],
+            FORCE,
+            "member.axial_force",
+            allow_zero=True,
+            allow_negative=True,
+            minimum=False,
         )
     material = _material(table["material"], "member.material") if "material" in table else None
     section = _section(table["section"], "member.section") if "section" in table else None
@@ -403,7 +408,7 @@ def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]
         key = f"supports.inner[{i}]"
         _keys(item, _INNER_KEYS, key)
         at = parse_quantity(_required(item, "at", key, "a position"), LENGTH, f"{key}.at",
-                            allow_zero=True, allow_negative=True)  # fmt: skip
+                            allow_zero=True, allow_negative=True, minimum=False)  # fmt: skip
         kind = _required(item, "kind", key, "one of " + ", ".join(INNER_KINDS))
         if not isinstance(kind, str) or kind not in INNER_KINDS:
             hint = _hint(kind, INNER_KINDS) if isinstance(kind, str) else None
@@ -414,7 +419,9 @@ def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]
 
 def _position(table: dict[str, Any], key: str) -> float:
     value = _required(table, "at", key, "a position from the left end")
-    return parse_quantity(value, LENGTH, f"{key}.at", allow_zero=True, allow_negative=True)
+    return parse_quantity(
+        value, LENGTH, f"{key}.at", allow_zero=True, allow_negative=True, minimum=False
+    )
 
 
 def _mass(table: dict[str, Any], key: str) -> PointMass:
@@ -495,6 +502,6 @@ def _estimate(value: object) -> EstimateSettings:
     reference = None
     if "reference" in table:
         reference = parse_quantity(
-            table["reference"], LENGTH, "estimate.reference", allow_zero=True
+            table["reference"], LENGTH, "estimate.reference", allow_zero=True, minimum=False
         )
     return EstimateSettings(shape.strip(), shapes, reference)
