@@ -187,18 +187,19 @@ Trial = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray, np.ndarray]]
 
 # Built-in shapes for each pair of ends, in X = x/L with the first-named end at X = 0:
 # (polynomial, trigonometric).  Each satisfies the geometric conditions of its ends; the
-# polynomials are static deflections under uniform load where the ends carry it.
+# polynomials are static deflections under uniform load where the ends carry it.  Where the
+# member has rigid freedom the shape is made mass-orthogonal to the rigid motions first.
 NAMED_SHAPES: dict[tuple[str, str], tuple[str, str]] = {
     ("clamped", "clamped"): ("X**2*(1 - X)**2", "1 - cos(2*pi*X)"),
-    ("clamped", "pinned"): ("X**2*(1 - X)*(3 - 2*X)", "sin(pi*X) - sin(2*pi*X)/2"),
+    ("clamped", "pinned"): ("X**2*(1 - X)*(3 - 2*X)", "sin(pi*X)*sin(pi*X/2)"),
     ("clamped", "guided"): ("X**2*(3 - 2*X)", "1 - cos(pi*X)"),
     ("clamped", "free"): ("X**2*(6 - 4*X + X**2)", "1 - cos(pi*X/2)"),
     ("pinned", "pinned"): ("X*(1 - 2*X**2 + X**3)", "sin(pi*X)"),
     ("pinned", "guided"): ("X*(8 - 4*X**2 + X**3)", "sin(pi*X/2)"),
-    ("pinned", "free"): ("X*(1 - X)*(2 - X)", "sin(pi*X)"),
+    ("pinned", "free"): ("X*(1 - 2*X**2 + X**3)", "X - sin(pi*X)/pi"),
     ("guided", "guided"): ("X**2*(3 - 2*X)", "cos(pi*X)"),
     ("guided", "free"): ("1 - X**2*(6 - 4*X + X**2)/3", "cos(pi*X/2)"),
-    ("free", "free"): ("X**2*(1 - X)**2", "sin(pi*X)"),
+    ("free", "free"): ("(2*X - 1)**4 - 6*(2*X - 1)**2", "sin(pi*X)"),
 }
 SHAPE_NAMES = ("polynomial", "trigonometric")
 
@@ -226,7 +227,7 @@ def named_shape(member: Member, name: str) -> str:
     return template.replace("X", "(1 - x/L)")
 
 
-def _expression_trial(expr: Any, L: float) -> Trial:
+def _expression_trial(expr: Any, L: float, key: str = "estimate.shape") -> Trial:
     import sympy
 
     from calc.expressions import evaluate, symbols
@@ -234,6 +235,13 @@ def _expression_trial(expr: Any, L: float) -> Trial:
     x_sym, _ = symbols()
     d1 = sympy.diff(expr, x_sym)
     d2 = sympy.diff(d1, x_sym)
+
+    if d2.has(sympy.DiracDelta) or d1.has(sympy.DiracDelta):
+        raise InputError(
+            key,
+            str(expr),
+            "a shape with a continuous slope: a kink (from abs) has unbounded curvature",
+        )
 
     def trial(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         with np.errstate(all="ignore"):
@@ -376,7 +384,9 @@ def _without_rigid(
 # --- admissibility -------------------------------------------------------------------------------
 
 
-def admissibility(member: Member, expr: Any, key: str = "estimate.shape") -> tuple[str, ...]:
+def admissibility(
+    member: Member, expr: Any, key: str = "estimate.shape", text: str | None = None
+) -> tuple[str, ...]:
     """Check an expression shape against the geometric conditions of every support.
 
     Conditions at the ends are checked symbolically (numerically where symbolic
@@ -389,6 +399,8 @@ def admissibility(member: Member, expr: Any, key: str = "estimate.shape") -> tup
         Shape in x [m] and L [m].
     key : str
         Key named in the error.
+    text : str, optional
+        The shape as the user wrote it, quoted in errors.
 
     Returns
     -------
@@ -407,6 +419,7 @@ def admissibility(member: Member, expr: Any, key: str = "estimate.shape") -> tup
 
     x, L_sym = symbols()
     L = member.length
+    shown = text if text is not None else str(expr)
     d1 = sympy.diff(expr, x)
     d2 = sympy.diff(d1, x)
     d3 = sympy.diff(d2, x)
@@ -415,7 +428,7 @@ def admissibility(member: Member, expr: Any, key: str = "estimate.shape") -> tup
         scale_w = float(np.nanmax(np.abs(evaluate(expr, samples, L))))
         scale_d = float(np.nanmax(np.abs(evaluate(d1, samples, L)))) * L
     if not math.isfinite(scale_w) or scale_w == 0.0:
-        raise InputError(key, str(expr), "a shape that is finite and not zero along the member")
+        raise InputError(key, shown, "a shape that is finite and not zero along the member")
     scale = max(scale_w, scale_d)
 
     def vanishes(f: Any, at_end: float | None, at: float) -> bool:
@@ -439,7 +452,7 @@ def admissibility(member: Member, expr: Any, key: str = "estimate.shape") -> tup
             end, name = L_sym, "x = L"
         else:
             name = f"x = {where:.6g} m"
-        text = str(expr)
+        text = shown
         if holds_w and not vanishes(expr, end, where):
             raise InputError(
                 key,
@@ -503,9 +516,9 @@ def rayleigh_shape(member: Member, text: str, key: str = "estimate.shape") -> Ra
     name = text.strip()
     expression = named_shape(member, name) if name in SHAPE_NAMES else name
     expr = parse_shape(expression, key)
-    notes = admissibility(member, expr, key)
+    notes = admissibility(member, expr, key, text)
     quad = _quadrature(member)
-    trial = _expression_trial(expr, member.length)
+    trial = _expression_trial(expr, member.length, key)
     K, M, rigid = _without_rigid(member, [trial], quad)
     if not M[0, 0] > 0.0:
         raise InputError(key, expression, "a shape that is not a rigid-body motion of the member")
@@ -573,11 +586,15 @@ def _symbolic(member: Member, expr: Any) -> tuple[float, str, float | None, str 
     parts = [f"EI*({sympy.sstr(I2)})"]
     if P:
         parts.append(f"P*({sympy.sstr(I1)})")
-    if member.springs:
-        parts.append("sum k*w(a)^2 + k_r*w'(a)^2")
+    if any(sp.stiffness for sp in member.springs):
+        parts.append("sum k*w(a)^2")
+    if any(sp.rotational_stiffness for sp in member.springs):
+        parts.append("sum k_r*w'(a)^2")
     dens = [f"m*({sympy.sstr(I0)})"]
-    if member.masses:
-        dens.append("sum M*w(a)^2 + J*w'(a)^2")
+    if any(pm.mass for pm in member.masses):
+        dens.append("sum M*w(a)^2")
+    if any(pm.rotary_inertia for pm in member.masses):
+        dens.append("sum J*w'(a)^2")
     formula = f"omega^2 = ({' + '.join(parts)}) / ({' + '.join(dens)})"
     return omega, formula, None, None
 
@@ -763,9 +780,9 @@ def ritz(member: Member, shapes: list[str] | int, key: str = "estimate.shapes") 
     for i, text in enumerate(shapes):
         item = f"{key}[{i}]"
         expr = parse_shape(text, item)
-        admissibility(member, expr, item)
+        admissibility(member, expr, item, text)
         exprs.append(expr)
-    trials = [_expression_trial(e, member.length) for e in exprs]
+    trials = [_expression_trial(e, member.length, f"{key}[{i}]") for i, e in enumerate(exprs)]
     K, M, _ = _without_rigid(member, trials, quad)
     rows = [_bounds(K[:n, :n], M[:n, :n], 0, key) for n in range(1, len(trials) + 1)]
     return RitzResult(tuple(str(e) for e in exprs), rows[-1], tuple(rows))

@@ -240,3 +240,117 @@ def test_bracket_holds_for_random_members(member: Member) -> None:
     if lower.frequency_hz is not None:
         # within its own round-off estimate (large where a soft spring nearly frees the member)
         assert lower.frequency_hz * (1.0 - lower.uncertainty) <= f + tol
+
+
+# --- expression shapes ---------------------------------------------------------------------------
+
+
+def test_quarter_cosine_on_cantilever() -> None:
+    """w = 1 - cos(pi x/(2L)) gives omega = 3.66 sqrt(EI/(mL^4)) (W. T. Thomson, Theory of
+    Vibration with Applications, Rayleigh's method; from memory); exactly
+    C^2 = pi^5/(16 (3 pi - 8)), derived here with sympy."""
+    member = uniform("clamped", "free")
+    est = rayleigh.rayleigh_shape(member, "1 - cos(pi*x/(2*L))")
+    assert est.coefficient == pytest.approx(3.66, abs=5e-3)
+    assert est.coefficient**2 == pytest.approx(math.pi**5 / (16 * (3 * math.pi - 8)), rel=1e-12)
+    assert est.formula is not None and "3.664" in est.formula
+    assert est.numeric_check is not None and est.numeric_check < 1e-10
+
+
+def test_tip_load_shape_with_tip_mass() -> None:
+    """Static tip-load shape x^2(3L - x) with tip mass M: omega^2 = 3EI/(L^3 (M + 33/140 mL))
+    (standard vibration textbooks, e.g. Thomson, Rayleigh's method with the static curve)."""
+    M = 2.0
+    member = uniform("clamped", "free", masses=(PointMass(1.0, M),))
+    EI, m, L = props(member)
+    est = rayleigh.rayleigh_shape(member, "x**2*(3*L - x)")
+    assert est.omega**2 == pytest.approx(3 * EI / (L**3 * (M + 33 / 140 * m * L)), rel=1e-12)
+    assert est.numeric_check is not None and est.numeric_check < 1e-10
+
+
+@pytest.mark.parametrize("name", ["polynomial", "trigonometric"])
+@pytest.mark.parametrize(
+    ("left", "right"),
+    [(a, b) for i, a in enumerate(handbook.END_CONDITIONS) for b in handbook.END_CONDITIONS[i:]],
+)
+def test_named_shapes_are_admissible_upper_bounds(left: str, right: str, name: str) -> None:
+    for pair in ((left, right), (right, left)):
+        member = uniform(*pair)
+        est = rayleigh.rayleigh_shape(member, name)
+        EI, m, L = props(member)
+        exact = handbook.frequency_parameters(left, right, 1)[0] ** 2 * math.sqrt(EI / (m * L**4))
+        # an upper bound (equal where the shape is the exact mode), and a useful one
+        assert exact * (1 - 1e-12) <= est.omega <= 1.05 * exact
+
+
+def test_symbolic_and_quadrature_agree_with_attachments() -> None:
+    member = uniform(
+        "pinned",
+        "pinned",
+        masses=(PointMass(0.3, 0.5, 1e-3),),
+        springs=(Spring(0.7, 2e3, 5.0),),
+    )
+    est = rayleigh.rayleigh_shape(member, "sin(pi*x/L) + sin(2*pi*x/L)/10")
+    assert est.numeric_check is not None and est.numeric_check < 1e-10
+
+
+@pytest.mark.parametrize(
+    ("left", "right", "shape", "condition"),
+    [
+        ("clamped", "free", "sin(pi*x/L)", "w' = 0"),
+        ("clamped", "free", "1 + (x/L)**2", "w = 0"),
+        ("pinned", "pinned", "(x/L)**2", "w = 0"),
+        ("clamped", "guided", "(x/L)**2", "w' = 0"),
+    ],
+)
+def test_violating_shape_is_refused(left: str, right: str, shape: str, condition: str) -> None:
+    with pytest.raises(InputError) as info:
+        rayleigh.rayleigh_shape(uniform(left, right), shape)
+    assert info.value.key == "estimate.shape"
+    assert condition in info.value.message
+
+
+def test_inner_support_condition_checked() -> None:
+    member = uniform("pinned", "pinned", inner_supports=(InnerSupport(0.5, "pinned"),))
+    with pytest.raises(InputError):
+        rayleigh.rayleigh_shape(member, "sin(pi*x/L)")
+    est = rayleigh.rayleigh_shape(member, "sin(2*pi*x/L)")
+    # the exact mode of two equal pinned spans: lambda = pi per span (Blevins 1979, Table 8-1)
+    EI, m, L = props(member)
+    assert est.omega == pytest.approx(math.pi**2 * math.sqrt(EI / (m * (L / 2) ** 4)), rel=1e-12)
+
+
+def test_kinked_shape_is_refused() -> None:
+    member = uniform("pinned", "pinned", inner_supports=(InnerSupport(0.5, "pinned"),))
+    with pytest.raises(InputError) as info:
+        rayleigh.rayleigh_shape(member, "sin(pi*x/L)*abs(1 - 2*x/L)")
+    assert "kink" in info.value.message or "continuous" in info.value.message
+
+
+def test_ritz_with_given_shapes() -> None:
+    member = uniform("clamped", "free")
+    result = rayleigh.ritz(member, ["(x/L)**2", "(x/L)**3", "(x/L)**4"])
+    exact = fe.solve(member, 2).frequencies_hz
+    assert len(result.convergence) == 3
+    assert result.convergence[0][0] >= result.convergence[1][0] >= result.convergence[2][0]
+    assert np.all(np.array(result.frequencies_hz[:2]) >= exact * (1 - 1e-9))
+    with pytest.raises(InputError) as info:
+        rayleigh.ritz(member, ["(x/L)**2", "2*(x/L)**2"])
+    assert info.value.key == "estimate.shapes"
+
+
+coefficients = st.lists(st.integers(-1000, 1000).map(lambda n: n / 1000), min_size=3, max_size=3)
+
+
+@settings(max_examples=20, deadline=None)
+@given(coefficients, st.floats(0.5, 3.0))
+def test_random_admissible_shapes_bound_the_fe_value(c: list[float], length: float) -> None:
+    """Any shape (x/L)^2 (1 + a x/L + b (x/L)^2 + d (x/L)^3) meets a clamp at x = 0."""
+    member = uniform("clamped", "free", length=length, masses=(PointMass(length, 0.3),))
+    shape = f"(x/L)**2*(1 + ({c[0]})*x/L + ({c[1]})*(x/L)**2 + ({c[2]})*(x/L)**3)"
+    est = rayleigh.rayleigh_shape(member, shape)
+    mode = fe.solve(member, 1).modes[0]
+    assert est.omega >= mode.omega * (1 - mode.estimated_error)
+    assert est.numeric_check is not None and est.numeric_check < 1e-9
+    with pytest.raises(InputError):
+        rayleigh.rayleigh_shape(member, f"{shape} + {abs(c[0]) + 0.01}")
