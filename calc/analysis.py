@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from calc import fe, handbook, rayleigh
+from calc import fe, handbook, rayleigh, similitude
 from calc.worksheet import Worksheet
 
 __all__ = ["Analysis", "analyse"]
@@ -30,6 +30,8 @@ class Analysis:
     lower_bound : rayleigh.DunkerleyBound
     bracket : rayleigh.Bracket
     equivalent : rayleigh.EquivalentSystem
+    groups : similitude.MemberGroups
+        The member's dimensionless groups, with the frequency groups of the FE modes.
     """
 
     sheet: Worksheet
@@ -40,6 +42,7 @@ class Analysis:
     lower_bound: rayleigh.DunkerleyBound
     bracket: rayleigh.Bracket
     equivalent: rayleigh.EquivalentSystem
+    groups: similitude.MemberGroups
 
     @property
     def warnings(self) -> tuple[str, ...]:
@@ -97,4 +100,5 @@ def analyse(sheet: Worksheet, modes: int | None = None, elements: int | None = N
         lower_bound=lower,
         bracket=rayleigh.bracket(lower, result, estimate),
         equivalent=rayleigh.equivalent_system(member, result, settings.reference),
+        groups=similitude.member_groups(member, [m.omega for m in result.modes]),
     )

@@ -32,6 +32,7 @@ __all__ = [
     "parse_variables",
     "variable",
     "pi_groups",
+    "formula",
 ]
 
 # Base dimensions in the order the dimension matrix lists them; others follow alphabetically.
@@ -299,18 +300,30 @@ def _root(index: int, inner: str, bare: bool) -> str:
     return sign + (inner if bare else f"({inner})")
 
 
-def _formula(terms: list[tuple[str, sympy.Rational]]) -> str:
-    """Readable product of powers: whole powers as a fraction, the rest under one root."""
+def formula(terms: list[tuple[str, Any]]) -> str:
+    """Readable product of powers: whole powers as a fraction, the rest under one root.
+
+    Parameters
+    ----------
+    terms : list of (str, rational)
+        Variable names and exact exponents (sympy Rational or fractions.Fraction).
+
+    Returns
+    -------
+    str
+        E.g. ``"f·L²·√(m/EI)"``.
+    """
     terms = [(name, e) for name, e in terms if e != 0]
     if not terms:
         return "1"
-    index = math.lcm(*(int(e.q) for _, e in terms))
+    index = math.lcm(*(int(e.denominator) for _, e in terms))
     numerator: list[str] = []
     denominator: list[str] = []
     under_num: list[str] = []
     under_den: list[str] = []
     for name, e in terms:
-        whole = int(e.p) // int(e.q) if e >= 0 else -(-int(e.p) // int(e.q))
+        p, q = int(e.numerator), int(e.denominator)
+        whole = p // q if e >= 0 else -(-p // q)
         rest = int((e - whole) * index)
         if whole > 0:
             numerator.append(_power(name, whole))
@@ -416,9 +429,7 @@ def _dependence_reason(names: list[str], matrix: sympy.Matrix, index: dict[str, 
             continue
         terms = [(b, c) for b, c in zip(basis, coefficients, strict=True) if c != 0]
         involved = [b for b, _ in terms] + [name]
-        return (
-            f"{_and(involved)} are not independent: {name} has the dimension of {_formula(terms)}"
-        )
+        return f"{_and(involved)} are not independent: {name} has the dimension of {formula(terms)}"
     raise RuntimeError("internal inconsistency: no dependent repeating variable found")
 
 
@@ -620,7 +631,7 @@ def pi_groups(
             Group(
                 symbol=f"Π{len(groups) + 1}",
                 exponents=exponents,
-                expression=_formula(list(exponents.items())),
+                expression=formula(list(exponents.items())),
                 value=_group_value(exponents, si, values) if si else None,
             )
         )

@@ -8,6 +8,7 @@ message on stderr; nothing the user wrote is modified.
 from __future__ import annotations
 
 import argparse
+import math
 import sys
 from collections.abc import Callable, Sequence
 
@@ -66,7 +67,41 @@ def build_parser() -> argparse.ArgumentParser:
         help="force a mesh of about N elements instead of the automatic one",
     )
     solve.add_argument("--json", action="store_true", help="print one JSON object")
+
+    groups = commands.add_parser(
+        "groups",
+        help="dimensionless groups of a variable list or of a worksheet's member",
+        description=(
+            "Buckingham-Pi groups.  Give variables as NAME=UNIT (e.g. f=Hz L=m EI=N*m^2 "
+            "m=kg/m), or one worksheet FILE for its member's groups and their values."
+        ),
+    )
+    groups.add_argument("items", nargs="+", metavar="NAME=UNIT|FILE")
+    groups.add_argument("--repeat", metavar="A,B,C", help="repeating variables (names)")
+    groups.add_argument("--like", metavar="OTHER", help="compare with another worksheet")
+    groups.add_argument("--sweep", metavar="GROUP", help="tabulate Omega against one group")
+    groups.add_argument("--from", dest="start", type=_finite_float("--from"), metavar="A")
+    groups.add_argument("--to", dest="stop", type=_finite_float("--to"), metavar="B")
+    groups.add_argument(
+        "--points", type=_positive_int(10_000, "points"), default=21, help="default 21"
+    )
+    groups.add_argument("--json", action="store_true", help="print one JSON object")
     return parser
+
+
+def _finite_float(what: str) -> Callable[[str], float]:
+    def parse(text: str) -> float:
+        try:
+            value = float(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(
+                f"expected a number for {what}, got {text!r}"
+            ) from None
+        if not math.isfinite(value):
+            raise argparse.ArgumentTypeError(f"expected a finite number for {what}, got {text!r}")
+        return value
+
+    return parse
 
 
 def _solve(args: argparse.Namespace) -> int:
@@ -80,6 +115,12 @@ def _solve(args: argparse.Namespace) -> int:
     else:
         sys.stdout.write(output.solve_text(analysis))
     return EXIT_OK
+
+
+def _groups(args: argparse.Namespace) -> int:
+    from cli import groups_cmd
+
+    return groups_cmd.run(args)
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -96,7 +137,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_OK
     from calc.errors import InputError
 
-    handlers = {"solve": _solve}
+    handlers = {"solve": _solve, "groups": _groups}
     try:
         return handlers[args.command](args)
     except InputError as exc:

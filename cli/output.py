@@ -196,6 +196,7 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
             "convergence_hz": [list(r) for r in analysis.ritz.convergence],
             "shapes": list(analysis.ritz.shapes),
         },
+        "groups": _groups_json(analysis),
         "equivalent": {
             "at_m": eq.at_m,
             "mass_kg": eq.mass_kg,
@@ -219,6 +220,12 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
         },
         "caution": CAUTION,
     }
+
+
+def _groups_json(analysis: Analysis) -> list[dict[str, Any]]:
+    from cli.groups_cmd import groups_json
+
+    return groups_json(analysis.groups)
 
 
 def write_json(obj: dict[str, Any]) -> None:
