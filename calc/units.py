@@ -36,6 +36,7 @@ __all__ = [
     "registry",
     "parse_quantity",
     "format_quantity",
+    "parse_frequency",
     "convert_from_si",
 ]
 
@@ -309,6 +310,34 @@ def parse_quantity(
         zero = "zero or " if allow_zero else ""
         span = f"{low:g} {dim.si_unit} to {high:g} {dim.si_unit}" if minimum else f"up to {high:g}"
         raise InputError(key, text, f"{zero}{what} of {span}", f"this is {size:.3g} {dim.si_unit}")
+    return value
+
+
+def parse_frequency(text: object, key: str) -> float:
+    """Parse a frequency in cycles per second [Hz], from Hz, rpm, rad/s and the like.
+
+    pint reads ``rpm`` and ``rad/s`` as angular velocities (radians per second); those are
+    divided by 2 pi here, so ``"1480 rpm"`` is 24.667 Hz and ``"100 rad/s"`` is 15.92 Hz.
+
+    Parameters
+    ----------
+    text : object
+        What the user wrote, e.g. ``"60 Hz"`` or ``"1480 rpm"``.
+    key : str
+        Key named in errors.
+
+    Returns
+    -------
+    float
+        The frequency [Hz].
+    """
+    value = parse_quantity(text, FREQUENCY, key)
+    match = _QUANTITY.match(str(text))
+    assert match is not None  # parse_quantity accepted it
+    units = registry().parse_units(_canonical_units(match.group(2)) or "")
+    base = (1.0 * units).to_base_units()
+    if "radian" in str(base.units):
+        value /= 2.0 * math.pi
     return value
 
 

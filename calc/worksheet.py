@@ -9,8 +9,10 @@ read, never written.
 
 from __future__ import annotations
 
+import contextlib
 import difflib
 import math
+import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -505,3 +507,120 @@ def _estimate(value: object) -> EstimateSettings:
             table["reference"], LENGTH, "estimate.reference", allow_zero=True, minimum=False
         )
     return EstimateSettings(shape.strip(), shapes, reference)
+
+
+# --- editing -------------------------------------------------------------------------------------
+
+_PART = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*)(?:\[(\d+)\])?$")
+
+
+def key_path(key: str, option: str = "--vary") -> list[str | int]:
+    """Split ``"member.segment[1].section.diameter"`` into ``["member", "segment", 1, ...]``.
+
+    Raises
+    ------
+    InputError
+        Keyed by ``option``, for text that is not a key path.
+    """
+    parts: list[str | int] = []
+    for piece in key.split("."):
+        match = _PART.match(piece.strip())
+        if match is None:
+            raise InputError(option, key, "a worksheet key such as member.length or mass[0].mass")
+        parts.append(match.group(1))
+        if match.group(2) is not None:
+            parts.append(int(match.group(2)))
+    return parts
+
+
+def find_value(data: Any, key: str, option: str = "--vary") -> object:
+    """The value at a key path in plain or tomlkit data; an InputError names what is missing.
+
+    Where the worksheet has a ``[[member.segment]]`` that takes its section or material from
+    ``[member]``, the message says to vary the member-level key instead.
+    """
+    node = data
+    walked: list[str] = []
+    for part in key_path(key, option):
+        if isinstance(part, int):
+            if not isinstance(node, list) or not 0 <= part < len(node):
+                size = len(node) if isinstance(node, list) else 0
+                raise InputError(option, key, f"an index below {size} for {'.'.join(walked)}")
+            node = node[part]
+            walked[-1] += f"[{part}]"
+            continue
+        if not isinstance(node, dict) or part not in node:
+            where = ".".join(walked) or "the worksheet"
+            hint = None
+            if walked and walked[0] == "member" and len(walked) > 1 and part in (
+                "section", "material", "added_mass"
+            ):  # fmt: skip
+                hint = f"this segment inherits member.{part}: vary that key"
+            raise InputError(option, key, f"a key that {where} has", hint)
+        node = node[part]
+        walked.append(part)
+    return node
+
+
+def replace_value(text: str, key: str, new: str, option: str = "--vary") -> str:
+    """Worksheet text with one quantity replaced, comments and layout kept (tomlkit).
+
+    The result is checked to load before it is returned.
+    """
+    import tomlkit
+
+    document = tomlkit.parse(text)
+    parts = key_path(key, option)
+    find_value(document, key, option)  # validates the path
+    node: Any = document
+    for part in parts[:-1]:
+        node = node[part]
+    node[parts[-1]] = new
+    result = tomlkit.dumps(document)
+    loads(result)
+    return result
+
+
+def write_atomic(path: str | Path, text: str) -> None:
+    """Replace a file's contents atomically: a temporary file in the same folder, flushed and
+    fsynced, then renamed over the original.  An interruption leaves the original intact.
+
+    Raises
+    ------
+    InputError
+        Keyed ``"file"`` when the folder cannot be written; the original is then untouched.
+    """
+    import os
+    import tempfile
+
+    target = Path(path)
+    folder = target.parent
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
+    except OSError as exc:
+        raise InputError("file", str(target), "a worksheet in a folder you may write",
+                         exc.strerror) from None  # fmt: skip
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
+            handle.write(text)
+            handle.flush()
+            os.fsync(handle.fileno())
+        with contextlib.suppress(OSError):  # keep the original's permissions where possible
+            os.chmod(tmp, target.stat().st_mode & 0o7777)
+        os.replace(tmp, target)
+    except OSError as exc:
+        Path(tmp).unlink(missing_ok=True)
+        raise InputError("file", str(target), "a worksheet that can be written",
+                         exc.strerror) from None  # fmt: skip
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
+    try:
+        dir_fd = os.open(folder, os.O_RDONLY)
+    except OSError:
+        return
+    try:
+        with contextlib.suppress(OSError):  # not every file system syncs folders
+            os.fsync(dir_fd)
+    finally:
+        os.close(dir_fd)

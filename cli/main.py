@@ -86,7 +86,48 @@ def build_parser() -> argparse.ArgumentParser:
         "--points", type=_positive_int(10_000, "points"), default=21, help="default 21"
     )
     groups.add_argument("--json", action="store_true", help="print one JSON object")
+
+    size = commands.add_parser(
+        "size",
+        help="the value of one quantity that meets a frequency target or clears an excitation",
+        description=(
+            "Vary one worksheet quantity (any key path, e.g. member.section.depth, mass[0].mass, "
+            "supports.inner[0].at) over a range and find where the chosen mode meets --target, "
+            "or where every mode stays outside the bands around an --excitation."
+        ),
+    )
+    size.add_argument("file", metavar="FILE")
+    _range_arguments(size)
+    goal = size.add_mutually_exclusive_group(required=True)
+    goal.add_argument("--target", metavar="FREQ", help='target frequency, e.g. "60 Hz"')
+    goal.add_argument("--excitation", metavar="FREQ", help='running speed, e.g. "1480 rpm"')
+    size.add_argument("--harmonics", default="1", metavar="1,2", help="excitation orders")
+    size.add_argument("--margin", default="20%", metavar="PCT", help="band half-width (20%%)")
+    size.add_argument("--mode", type=_positive_int(50, "mode"), default=1, help="default 1")
+    size.add_argument("--apply", action="store_true", help="write the recommended value")
+    size.add_argument("--json", action="store_true", help="print one JSON object")
+
+    sweep = commands.add_parser(
+        "sweep",
+        help="tabulate the first modes and the member mass against one quantity",
+        description="Tabulate the first modes and the member mass against one quantity.",
+    )
+    sweep.add_argument("file", metavar="FILE")
+    _range_arguments(sweep)
+    sweep.add_argument("--points", type=_positive_int(100_000, "points"), default=21)
+    sweep.add_argument("--modes", type=_positive_int(50, "modes"), help="default: worksheet's")
+    out = sweep.add_mutually_exclusive_group()
+    out.add_argument("--json", action="store_true", help="print one JSON object")
+    out.add_argument("--csv", action="store_true", help="print comma-separated values")
     return parser
+
+
+def _range_arguments(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("--vary", required=True, metavar="KEY", help="key path, e.g. member.length")
+    parser.add_argument(
+        "--between", required=True, nargs=2, metavar=("LOW", "HIGH"),
+        help='range in any unit of the key, e.g. --between "40 mm" "120 mm"',
+    )  # fmt: skip
 
 
 def _finite_float(what: str) -> Callable[[str], float]:
@@ -123,6 +164,18 @@ def _groups(args: argparse.Namespace) -> int:
     return groups_cmd.run(args)
 
 
+def _size(args: argparse.Namespace) -> int:
+    from cli import sizing_cmd
+
+    return sizing_cmd.size(args)
+
+
+def _sweep(args: argparse.Namespace) -> int:
+    from cli import sizing_cmd
+
+    return sizing_cmd.sweep(args)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; return the exit status."""
     parser = build_parser()
@@ -137,7 +190,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_OK
     from calc.errors import InputError
 
-    handlers = {"solve": _solve, "groups": _groups}
+    handlers = {"solve": _solve, "groups": _groups, "size": _size, "sweep": _sweep}
     try:
         return handlers[args.command](args)
     except InputError as exc:

@@ -1,0 +1,548 @@
+"""Sizing: the value of one worksheet quantity that meets a frequency target or clears an
+excitation, and sweeps of the modes against that quantity.
+
+A variation changes one quantity of the worksheet (any key path: ``member.length``,
+``member.section.depth``, ``mass[0].mass``, ``supports.inner[0].at``, ...), re-reads the
+worksheet through the loader (so every check of the loader still applies) and solves it by
+finite elements.  Roots are found by scanning the range, then bracketing with Brent's method,
+since a frequency need not be monotonic in the variable.
+"""
+
+from __future__ import annotations
+
+import copy
+import math
+import re
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+from scipy.optimize import brentq
+
+from calc import fe, similitude
+from calc.errors import InputError
+from calc.model import Member
+from calc.units import (
+    AREA,
+    DENSITY,
+    FORCE,
+    LENGTH,
+    MASS,
+    MASS_PER_LENGTH,
+    PRESSURE,
+    ROTARY_INERTIA,
+    ROTATIONAL_STIFFNESS,
+    SECOND_MOMENT,
+    STIFFNESS,
+    Dimension,
+    convert_from_si,
+    parse_quantity,
+)
+from calc.worksheet import Worksheet, _worksheet, find_value, key_path
+
+__all__ = [
+    "Variation",
+    "Solution",
+    "SizingResult",
+    "ExcitationLine",
+    "MarginCheck",
+    "SweepResult",
+    "variation",
+    "size_for_target",
+    "size_for_excitation",
+    "margins",
+    "sweep",
+]
+
+_SCAN = 33
+_NUMBER = re.compile(r"^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?\s*")
+_XTOL = 1e-10  # relative, on the variable
+_FIELD_DIMENSIONS: dict[str, Dimension] = {
+    "length": LENGTH,
+    "at": LENGTH,
+    "diameter": LENGTH,
+    "outside_diameter": LENGTH,
+    "wall": LENGTH,
+    "width": LENGTH,
+    "depth": LENGTH,
+    "flange": LENGTH,
+    "web": LENGTH,
+    "area": AREA,
+    "second_moment": SECOND_MOMENT,
+    "youngs_modulus": PRESSURE,
+    "density": DENSITY,
+    "added_mass": MASS_PER_LENGTH,
+    "axial_force": FORCE,
+    "mass": MASS,
+    "rotary_inertia": ROTARY_INERTIA,
+    "stiffness": STIFFNESS,
+    "rotational_stiffness": ROTATIONAL_STIFFNESS,
+}
+
+
+@dataclass(frozen=True)
+class Variation:
+    """One worksheet quantity made variable.
+
+    Attributes
+    ----------
+    sheet : Worksheet
+    key : str
+        Its key path.
+    dimension : Dimension
+    unit : str
+        The unit the worksheet uses for it (values are written back in it).
+    value : float
+        Its current value [SI].
+    """
+
+    sheet: Worksheet
+    key: str
+    dimension: Dimension
+    unit: str
+    value: float
+
+    def text(self, value: float) -> str:
+        """The value as the worksheet would write it, in the worksheet's unit."""
+        number = convert_from_si(value, self.unit)
+        return f"{number:.10g} {self.unit}"
+
+    def member(self, value: float) -> Member:
+        """The member with the quantity set to ``value`` [SI], validated by the loader."""
+        data = copy.deepcopy(self.sheet.data)
+        parts = key_path(self.key)
+        node: Any = data
+        for part in parts[:-1]:
+            node = node[part]
+        node[parts[-1]] = self.text(value)
+        if parts[-1] == "length":
+            self._follow_the_end(data, value)
+        try:
+            return _worksheet(data, self.sheet.source, self.sheet.title).member
+        except InputError as exc:
+            raise InputError(
+                "--between",
+                self.text(value),
+                f"values of {self.key} the worksheet accepts ({exc.key}: {exc.expected})",
+            ) from None
+
+    def _follow_the_end(self, data: dict[str, Any], value: float) -> None:
+        """Masses and springs at the right end stay at the end when a length changes."""
+        old = self.sheet.member.length
+        new = old + (value - self.value)
+        for table in ("mass", "spring"):
+            items = data.get(table, [])
+            for item in items if isinstance(items, list) else []:
+                text = item.get("at")
+                if not isinstance(text, str):
+                    continue
+                at = parse_quantity(text, LENGTH, "at", allow_zero=True, minimum=False)
+                if abs(at - old) <= 1e-9 * old:
+                    match = _NUMBER.match(text)
+                    unit = (text[match.end() :] if match else "m").strip() or "m"
+                    item["at"] = f"{convert_from_si(new, unit):.12g} {unit}"
+
+
+def variation(sheet: Worksheet, key: str) -> Variation:
+    """Make the worksheet quantity at ``key`` variable.
+
+    Raises
+    ------
+    InputError
+        Keyed ``--vary``, for a key that is not a quantity of this worksheet.
+    """
+    value = find_value(sheet.data, key)
+    field = key_path(key)[-1]
+    dimension = _FIELD_DIMENSIONS.get(field) if isinstance(field, str) else None
+    if dimension is None or not isinstance(value, str):
+        raise InputError(
+            "--vary", key, "a quantity of the worksheet, such as member.length or mass[0].mass"
+        )
+    si = parse_quantity(value, dimension, key, allow_zero=True, allow_negative=True, minimum=False)
+    match = _NUMBER.match(value)
+    unit = value[match.end() :] if match else value
+    return Variation(sheet, key, dimension, unit.strip(), si)
+
+
+# --- results -------------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class Solution:
+    """A value of the variable that meets the target.
+
+    Attributes
+    ----------
+    value : str
+        In the worksheet's unit.
+    value_si : float
+    frequency_hz : float
+        The chosen mode's frequency there [Hz].
+    member_mass_kg : float
+        Mass of the member itself there [kg].
+    above : str
+        ``"above"`` or ``"below"``: on which side of this value the frequency exceeds the target.
+    """
+
+    value: str
+    value_si: float
+    frequency_hz: float
+    member_mass_kg: float
+    above: str
+
+
+@dataclass(frozen=True)
+class ExcitationLine:
+    """An excitation frequency and the band the modes must stay out of [Hz]."""
+
+    harmonic: int
+    frequency_hz: float
+    low_hz: float
+    high_hz: float
+
+
+@dataclass(frozen=True)
+class MarginCheck:
+    """Modes against excitation lines.
+
+    Attributes
+    ----------
+    lines : tuple of ExcitationLine
+    frequencies_hz : tuple of float
+    inside : tuple of tuple of bool
+        inside[i][j]: mode i lies in the band of line j.
+    clear : bool
+        No mode in any band.
+    """
+
+    lines: tuple[ExcitationLine, ...]
+    frequencies_hz: tuple[float, ...]
+    inside: tuple[tuple[bool, ...], ...]
+
+    @property
+    def clear(self) -> bool:
+        return not any(any(row) for row in self.inside)
+
+
+@dataclass(frozen=True)
+class SizingResult:
+    """The outcome of a sizing run.
+
+    Attributes
+    ----------
+    variable : str
+        Key path varied.
+    unit : str
+    target_hz : float or None
+        The target (None for an excitation check).
+    mode : int
+    solutions : tuple of Solution
+    recommended : int or None
+        Index into ``solutions`` of the acceptable value with the least member mass.
+    message : str
+    margins : MarginCheck or None
+        At the recommended value, for an excitation check.
+    intervals : tuple of (str, str)
+        For an excitation check: the ranges of the variable where every mode clears every
+        band, in the worksheet's unit.
+    """
+
+    variable: str
+    unit: str
+    target_hz: float | None
+    mode: int
+    solutions: tuple[Solution, ...]
+    recommended: int | None
+    message: str
+    margins: MarginCheck | None = None
+    intervals: tuple[tuple[str, str], ...] = ()
+
+
+@dataclass(frozen=True)
+class SweepResult:
+    """Modes and member mass against the variable.
+
+    Attributes
+    ----------
+    variable : str
+    unit : str
+    values_si : ndarray
+    frequencies_hz : ndarray, shape (points, modes)
+    member_mass_kg : ndarray
+    solved : int
+        How many points needed a finite-element solve (the rest scaled exactly by groups).
+    """
+
+    variable: str
+    unit: str
+    values_si: np.ndarray
+    frequencies_hz: np.ndarray
+    member_mass_kg: np.ndarray
+    solved: int
+
+
+# --- evaluation ----------------------------------------------------------------------------------
+
+
+class _Evaluator:
+    """Solves the member at values of the variable, remembering what it solved."""
+
+    def __init__(self, var: Variation, modes: int) -> None:
+        self.var = var
+        self.modes = modes
+        self.cache: dict[float, tuple[np.ndarray, float]] = {}
+        self.solved = 0
+        self._reference: tuple[similitude.MemberGroups, np.ndarray] | None = None
+
+    def __call__(self, value: float) -> tuple[np.ndarray, float]:
+        hit = self.cache.get(value)
+        if hit is not None:
+            return hit
+        member = self.var.member(value)
+        freqs = self._scaled(member)
+        if freqs is None:
+            freqs = fe.solve(member, self.modes).frequencies_hz
+            self.solved += 1
+            if self._reference is None:
+                self._reference = (similitude.member_groups(member), freqs)
+        out = (freqs, member.member_mass)
+        self.cache[value] = out
+        return out
+
+    def _scaled(self, member: Member) -> np.ndarray | None:
+        """Frequencies by exact similitude with the first solved point, where groups match."""
+        if self._reference is None:
+            return None
+        groups, freqs = self._reference
+        mine = similitude.member_groups(member)
+        if len(mine.groups) != len(groups.groups):
+            return None
+        for a, b in zip(mine.groups, groups.groups, strict=True):
+            if a.variable != b.variable or not math.isclose(a.value, b.value, rel_tol=1e-13):
+                return None
+        return freqs * (mine.frequency_scale / groups.frequency_scale)
+
+
+def _check_range(var: Variation, low: float, high: float) -> tuple[float, float]:
+    if not (math.isfinite(low) and math.isfinite(high)) or low == high:
+        raise InputError("--between", f"{low} {high}", "two different finite values")
+    return (low, high) if low < high else (high, low)
+
+
+def _roots(g: Any, grid: np.ndarray, values: np.ndarray) -> list[float]:
+    roots = []
+    for i in range(len(grid) - 1):
+        a, b = values[i], values[i + 1]
+        if a == 0.0:
+            roots.append(float(grid[i]))
+        elif a * b < 0.0:
+            x = brentq(g, grid[i], grid[i + 1], xtol=_XTOL * abs(grid[i + 1]), rtol=1e-12)
+            roots.append(float(x))
+    if values[-1] == 0.0:
+        roots.append(float(grid[-1]))
+    return roots
+
+
+def size_for_target(
+    sheet: Worksheet, key: str, low: float, high: float, target_hz: float, mode: int = 1
+) -> SizingResult:
+    """Every value of ``key`` in [low, high] at which mode ``mode`` has frequency ``target_hz``.
+
+    Parameters
+    ----------
+    sheet : Worksheet
+    key : str
+        Key path of the quantity to vary.
+    low, high : float
+        The range [SI unit of the key].
+    target_hz : float
+        Target frequency [Hz].
+    mode : int
+        Which flexible mode (1 = fundamental).
+
+    Returns
+    -------
+    SizingResult
+        Solutions in ascending order of value; the recommended one is the acceptable value
+        (frequency at or above target) with the least member mass.
+    """
+    var = variation(sheet, key)
+    low, high = _check_range(var, low, high)
+    ev = _Evaluator(var, mode)
+
+    def g(v: float) -> float:
+        return float(ev(v)[0][mode - 1] - target_hz)
+
+    grid = np.linspace(low, high, _SCAN)
+    values = np.array([g(v) for v in grid])
+    roots = _roots(g, grid, values)
+    solutions = []
+    for r in roots:
+        freqs, mass = ev(r)
+        step = max(abs(r) * 1e-6, (high - low) * 1e-9)
+        side = "above" if g(min(r + step, high)) > g(max(r - step, low)) else "below"
+        solutions.append(Solution(var.text(r), r, float(freqs[mode - 1]), mass, side))
+    if solutions:
+        best = min(range(len(solutions)), key=lambda i: solutions[i].member_mass_kg)
+        s = solutions[best]
+        where = "larger" if s.above == "above" else "smaller"
+        message = (
+            f"mode {mode} equals {target_hz:.6g} Hz at {len(solutions)} value"
+            f"{'s' if len(solutions) > 1 else ''} of {key}; least member mass at {s.value} "
+            f"({s.member_mass_kg:.4g} kg); {where} values give a higher frequency"
+        )
+        return SizingResult(key, var.unit, target_hz, mode, tuple(solutions), best, message)
+    # no crossing: the best value in range
+    acceptable = values >= 0.0
+    if np.all(acceptable):
+        masses = [ev(v)[1] for v in grid]
+        i = int(np.argmin(masses))
+        message = (
+            f"mode {mode} stays above {target_hz:.6g} Hz over the whole range; least member "
+            f"mass at {var.text(float(grid[i]))}"
+        )
+    else:
+        i = int(np.argmax(values))
+        message = (
+            f"mode {mode} stays below {target_hz:.6g} Hz over the whole range; the highest is "
+            f"{values[i] + target_hz:.6g} Hz at {var.text(float(grid[i]))}"
+        )
+    v = float(grid[i])
+    freqs, mass = ev(v)
+    best_in_range = Solution(var.text(v), v, float(freqs[mode - 1]), mass, "none")
+    return SizingResult(key, var.unit, target_hz, mode, (best_in_range,), None, message)
+
+
+def margins(
+    frequencies_hz: tuple[float, ...] | np.ndarray,
+    excitation_hz: float,
+    harmonics: tuple[int, ...] = (1,),
+    margin: float = 0.2,
+) -> MarginCheck:
+    """Which modes fall inside the band around each excitation line.
+
+    A mode is inside the band of line h when |f - h f_e| < margin * h f_e: the separation
+    margin is common practice, and its size is the user's to set (codes and clients give
+    their own).
+
+    Returns
+    -------
+    MarginCheck
+    """
+    lines = tuple(
+        ExcitationLine(h, h * excitation_hz, h * excitation_hz * (1 - margin),
+                       h * excitation_hz * (1 + margin))
+        for h in harmonics
+    )  # fmt: skip
+    inside = tuple(tuple(line.low_hz < f < line.high_hz for line in lines) for f in frequencies_hz)
+    return MarginCheck(lines, tuple(float(f) for f in frequencies_hz), inside)
+
+
+def size_for_excitation(
+    sheet: Worksheet,
+    key: str,
+    low: float,
+    high: float,
+    excitation_hz: float,
+    harmonics: tuple[int, ...] = (1,),
+    margin: float = 0.2,
+    modes: int | None = None,
+) -> SizingResult:
+    """Values of ``key`` that keep every computed mode outside every excitation band.
+
+    Returns
+    -------
+    SizingResult
+        ``solutions`` are the edges of the acceptable intervals found in the range (where a
+        mode meets a band edge), plus the range ends where acceptable; the recommended one
+        is the acceptable value with the least member mass, with its margin table.
+    """
+    if not 0.0 < margin < 1.0:
+        raise InputError("--margin", margin, "a margin between 0 % and 100 %")
+    var = variation(sheet, key)
+    low, high = _check_range(var, low, high)
+    count = modes or sheet.modes
+    ev = _Evaluator(var, count)
+    check = margins((), excitation_hz, harmonics, margin)
+    edges = sorted({e for line in check.lines for e in (line.low_hz, line.high_hz)})
+    grid = np.linspace(low, high, _SCAN)
+    table = np.array([ev(v)[0] for v in grid])
+    candidates: set[float] = set()
+    for m in range(count):
+        for e in edges:
+
+            def g(v: float, m: int = m, e: float = e) -> float:
+                return float(ev(v)[0][m] - e)
+
+            candidates.update(_roots(g, grid, table[:, m] - e))
+    candidates.update((low, high))
+    points = sorted(candidates)
+    solutions = []
+    for v in points:
+        freqs, mass = ev(v)
+        if _clear(freqs, check.lines, tolerance=1e-9):
+            side = "range end" if v in (low, high) else "band edge"
+            solutions.append(Solution(var.text(v), v, float(freqs[0]), mass, side))
+    intervals: list[tuple[str, str]] = []
+    for a, b in zip(points[:-1], points[1:], strict=True):
+        if _clear(ev(0.5 * (a + b))[0], check.lines, tolerance=0.0):
+            if intervals and intervals[-1][1] == var.text(a):
+                intervals[-1] = (intervals[-1][0], var.text(b))
+            else:
+                intervals.append((var.text(a), var.text(b)))
+    if not solutions:
+        message = (
+            f"no value of {key} in range keeps every mode outside the excitation bands; "
+            "widen the range or change the member"
+        )
+        return SizingResult(key, var.unit, None, 1, (), None, message)
+    best = min(range(len(solutions)), key=lambda i: solutions[i].member_mass_kg)
+    chosen = solutions[best]
+    table_best = margins(ev(chosen.value_si)[0], excitation_hz, harmonics, margin)
+    spans = ", ".join(f"{a} to {b}" for a, b in intervals) or "isolated values only"
+    message = (
+        f"every mode clears the bands for {key} in: {spans}; least member mass at "
+        f"{chosen.value} ({chosen.member_mass_kg:.4g} kg)"
+    )
+    return SizingResult(
+        key, var.unit, None, 1, tuple(solutions), best, message, table_best, tuple(intervals)
+    )
+
+
+def _clear(freqs: np.ndarray, lines: tuple[ExcitationLine, ...], tolerance: float) -> bool:
+    for f in freqs:
+        for line in lines:
+            if line.low_hz * (1 + tolerance) < f < line.high_hz * (1 - tolerance):
+                return False
+    return True
+
+
+def sweep(
+    sheet: Worksheet, key: str, low: float, high: float, points: int, modes: int | None = None
+) -> SweepResult:
+    """Tabulate the first modes and the member mass against one quantity.
+
+    Points whose dimensionless groups equal those of an already solved point are scaled
+    exactly instead of solved again (a uniform member without attachments, varied in length
+    or material, needs one solve in all).
+
+    Returns
+    -------
+    SweepResult
+    """
+    if points < 2:
+        raise InputError("--points", points, "at least 2 points")
+    var = variation(sheet, key)
+    low, high = _check_range(var, low, high)
+    count = modes or sheet.modes
+    ev = _Evaluator(var, count)
+    grid = np.linspace(low, high, points)
+    rows = [ev(float(v)) for v in grid]
+    return SweepResult(
+        key,
+        var.unit,
+        grid,
+        np.array([r[0] for r in rows]),
+        np.array([r[1] for r in rows]),
+        ev.solved,
+    )

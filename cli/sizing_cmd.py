@@ -1,0 +1,213 @@
+"""``beamtone size`` and ``beamtone sweep``."""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import sys
+from pathlib import Path
+from typing import Any
+
+from calc.errors import InputError
+from cli.output import CAUTION, write_json
+
+__all__ = ["size", "sweep"]
+
+MARGIN_NOTE = (
+    "Separation margins around excitation frequencies are common practice; the margin is "
+    "yours to set, and the applicable code or client specification governs."
+)
+
+
+def _range(args: argparse.Namespace, var: Any) -> tuple[float, float]:
+    from calc.units import parse_quantity
+
+    low_text, high_text = args.between
+    low = parse_quantity(low_text, var.dimension, "--between", allow_zero=True,
+                         allow_negative=True, minimum=False)  # fmt: skip
+    high = parse_quantity(high_text, var.dimension, "--between", allow_zero=True,
+                          allow_negative=True, minimum=False)  # fmt: skip
+    return low, high
+
+
+def _margin(text: str) -> float:
+    raw = text.strip()
+    number = raw[:-1].strip() if raw.endswith("%") else raw
+    try:
+        value = float(number) / 100.0
+    except ValueError:
+        raise InputError("--margin", text, 'a percentage, e.g. "20%"') from None
+    if not 0.0 < value < 1.0:
+        raise InputError("--margin", text, "a percentage between 0 % and 100 %")
+    return value
+
+
+def _harmonics(text: str) -> tuple[int, ...]:
+    try:
+        orders = tuple(int(p) for p in text.split(",") if p.strip())
+    except ValueError:
+        raise InputError(
+            "--harmonics", text, "whole numbers separated by commas, e.g. 1,2"
+        ) from None
+    if not orders or any(not 1 <= h <= 100 for h in orders):
+        raise InputError("--harmonics", text, "orders from 1 to 100, e.g. 1,2")
+    return tuple(sorted(set(orders)))
+
+
+def size(args: argparse.Namespace) -> int:
+    """Run ``beamtone size``."""
+    from calc import sizing
+    from calc.units import parse_frequency
+    from calc.worksheet import load, replace_value, write_atomic
+
+    path = Path(args.file)
+    sheet = load(path)
+    var = sizing.variation(sheet, args.vary)
+    low, high = _range(args, var)
+    if args.target is not None:
+        target = parse_frequency(args.target, "--target")
+        result = sizing.size_for_target(sheet, args.vary, low, high, target, args.mode)
+    else:
+        excitation = parse_frequency(args.excitation, "--excitation")
+        result = sizing.size_for_excitation(
+            sheet, args.vary, low, high, excitation, _harmonics(args.harmonics),
+            _margin(args.margin),
+        )  # fmt: skip
+    applied = None
+    if args.apply and result.recommended is not None:
+        chosen = result.solutions[result.recommended]
+        original = path.read_text(encoding="utf-8")
+        write_atomic(path, replace_value(original, args.vary, chosen.value))
+        applied = chosen.value
+    if args.json:
+        obj: dict[str, Any] = {
+            "variable": result.variable,
+            "target_hz": result.target_hz,
+            "mode": result.mode,
+            "solutions": [
+                {
+                    "value": s.value,
+                    "value_si": s.value_si,
+                    "frequency_hz": s.frequency_hz,
+                    "member_mass_kg": s.member_mass_kg,
+                    "above": s.above,
+                }
+                for s in result.solutions
+            ],
+            "recommended": result.recommended,
+            "message": result.message,
+            "applied": applied,
+        }
+        if result.margins is not None:
+            obj["margins"] = _margins_json(result.margins)
+            obj["intervals"] = [list(i) for i in result.intervals]
+            obj["note"] = MARGIN_NOTE
+        write_json(obj)
+        return 0
+    lines = [f"beamtone size: {sheet.title}", "", f"  {result.message}", ""]
+    if result.solutions:
+        last = "higher f" if result.target_hz is not None else "where"
+        head = f"  {'':2}{args.vary:>30}   {'f1 [Hz]':>12}   {'member mass':>12}   {last}"
+        lines.append(head)
+        for i, s in enumerate(result.solutions):
+            mark = "->" if i == result.recommended else "  "
+            side = {"above": "for larger values", "below": "for smaller values"}.get(
+                s.above, s.above
+            )
+            lines.append(
+                f"  {mark}{s.value:>30}   {s.frequency_hz:12.6g}   {s.member_mass_kg:9.4g} kg   "
+                f"{side}"
+            )
+    if result.margins is not None:
+        lines += ["", *_margin_lines(result.margins), "", f"  {MARGIN_NOTE}"]
+    if args.apply:
+        lines.append("")
+        lines.append(
+            f"  applied: {args.vary} = {applied!r} written to {path}"
+            if applied
+            else "  nothing applied: no acceptable value in range"
+        )
+    lines += ["", CAUTION]
+    sys.stdout.write("\n".join(lines) + "\n")
+    return 0
+
+
+def _margins_json(check: Any) -> dict[str, Any]:
+    return {
+        "lines": [
+            {
+                "harmonic": ln.harmonic,
+                "frequency_hz": ln.frequency_hz,
+                "band_hz": [ln.low_hz, ln.high_hz],
+            }
+            for ln in check.lines
+        ],
+        "frequencies_hz": list(check.frequencies_hz),
+        "inside": [list(row) for row in check.inside],
+        "clear": check.clear,
+    }
+
+
+def _margin_lines(check: Any) -> list[str]:
+    head = "  mode      f [Hz]   " + "   ".join(
+        f"{ln.harmonic}x {ln.frequency_hz:.4g} Hz ({ln.low_hz:.4g}-{ln.high_hz:.4g})"
+        for ln in check.lines
+    )
+    lines = [head]
+    for i, (f, row) in enumerate(zip(check.frequencies_hz, check.inside, strict=True), start=1):
+        flags = "   ".join(("INSIDE BAND" if hit else "clear").ljust(24) for hit in row)
+        lines.append(f"  {i:>4}  {f:10.5g}   {flags}")
+    return lines
+
+
+def sweep(args: argparse.Namespace) -> int:
+    """Run ``beamtone sweep``."""
+    from calc import sizing
+    from calc.worksheet import load
+
+    sheet = load(args.file)
+    var = sizing.variation(sheet, args.vary)
+    low, high = _range(args, var)
+    result = sizing.sweep(sheet, args.vary, low, high, args.points, args.modes)
+    if args.json:
+        write_json(
+            {
+                "variable": result.variable,
+                "unit": result.unit,
+                "points": [
+                    {
+                        "value": var.text(float(v)),
+                        "value_si": float(v),
+                        "frequencies_hz": [float(f) for f in row],
+                        "member_mass_kg": float(m),
+                    }
+                    for v, row, m in zip(
+                        result.values_si, result.frequencies_hz, result.member_mass_kg, strict=True
+                    )
+                ],
+                "solved": result.solved,
+            }
+        )
+        return 0
+    modes = result.frequencies_hz.shape[1]
+    header = [f"{args.vary} [{result.unit}]"] + [f"f{i} [Hz]" for i in range(1, modes + 1)]
+    header.append("member mass [kg]")
+    rows = [
+        [var.text(float(v)).split()[0], *(f"{f:.8g}" for f in row), f"{m:.6g}"]
+        for v, row, m in zip(
+            result.values_si, result.frequencies_hz, result.member_mass_kg, strict=True
+        )
+    ]
+    if args.csv:
+        writer = csv.writer(sys.stdout, lineterminator="\n")
+        writer.writerow(header)
+        writer.writerows(rows)
+        return 0
+    widths = [max(len(r[c]) for r in [header, *rows]) for c in range(len(header))]
+    out = ["   ".join(h.rjust(w) for h, w in zip(header, widths, strict=True))]
+    out += ["   ".join(c.rjust(w) for c, w in zip(r, widths, strict=True)) for r in rows]
+    out.append(
+        f"({result.solved} finite-element solves; other points scaled exactly by the groups)"
+    )
+    sys.stdout.write("\n".join(out) + "\n")
+    return 0

@@ -1,0 +1,205 @@
+"""Sizing and sweeps against closed forms, handbook roots and direct solves."""
+
+from __future__ import annotations
+
+import math
+import os
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from calc import fe, handbook, sizing
+from calc.errors import InputError
+from calc.worksheet import load, loads, replace_value, write_atomic
+
+LAMBDA1 = 1.87510407  # clamped-free (R. D. Blevins 1979, Table 8-1)
+
+CANTILEVER = """\
+format = 1
+title = "bar cantilever"   # a comment that must survive --apply
+
+[member]
+length = "800 mm"
+material = { youngs_modulus = "200 GPa", density = "7850 kg/m^3" }
+section = { shape = "rectangle", width = "30 mm", depth = "10 mm" }   # keep me
+
+[supports]
+left = "clamped"
+right = "free"
+"""
+
+E, RHO, B = 200e9, 7850.0, 0.03
+
+
+def cantilever_f(length: float, depth: float) -> float:
+    """f = lambda^2/(2 pi L^2) sqrt(EI/m), EI/m = E d^2/(12 rho) for a rectangle."""
+    return LAMBDA1**2 / (2 * math.pi * length**2) * depth * math.sqrt(E / (12 * RHO))
+
+
+def test_depth_for_target_matches_closed_form() -> None:
+    sheet = loads(CANTILEVER)
+    target = 40.0
+    result = sizing.size_for_target(sheet, "member.section.depth", 0.002, 0.05, target)
+    assert len(result.solutions) == 1 and result.recommended == 0
+    s = result.solutions[0]
+    exact = target * 2 * math.pi * 0.8**2 / LAMBDA1**2 * math.sqrt(12 * RHO / E)
+    assert s.value_si == pytest.approx(exact, rel=1e-6)
+    assert s.value.endswith(" mm")  # written in the worksheet's unit
+    assert s.above == "above"  # deeper is stiffer relative to its mass
+
+
+def test_length_for_target_matches_closed_form() -> None:
+    sheet = loads(CANTILEVER)
+    result = sizing.size_for_target(sheet, "member.length", 0.2, 2.0, 25.0)
+    (s,) = result.solutions
+    assert cantilever_f(s.value_si, 0.01) == pytest.approx(25.0, rel=1e-6)
+    assert s.above == "below"
+
+
+def test_tip_mass_a_cantilever_can_carry() -> None:
+    """The largest tip mass for a target, checked through the tip-mass frequency equation."""
+    text = CANTILEVER + '\n[[mass]]\nat = "800 mm"\nmass = "1 kg"\n'
+    sheet = loads(text)
+    target = 10.0
+    result = sizing.size_for_target(sheet, "mass[0].mass", 0.01, 20.0, target)
+    (s,) = result.solutions
+    seg = sheet.member.segments[0]
+    mL = seg.mass_per_length * 0.8
+    lam = handbook.tip_mass_parameters(s.value_si / mL, 0.0, 1)[0]
+    f = lam**2 / (2 * math.pi * 0.8**2) * math.sqrt(seg.bending_stiffness / seg.mass_per_length)
+    assert f == pytest.approx(target, rel=1e-6)
+
+
+def test_every_solution_re_solved_hits_its_target() -> None:
+    sheet = load(Path(__file__).resolve().parents[2] / "worksheets" / "stepped-spindle.toml")
+    key = "member.segment[2].section.diameter"
+    result = sizing.size_for_target(sheet, key, 0.02, 0.08, 340.0)
+    assert result.solutions
+    var = sizing.variation(sheet, key)
+    for s in result.solutions:
+        f = fe.solve(var.member(s.value_si), 1).modes[0].frequency_hz
+        assert f == pytest.approx(340.0, rel=1e-3)
+
+
+def test_non_monotonic_variable_gives_both_crossings() -> None:
+    """Moving the inner hanger of a three-span pipe: the fundamental peaks in between."""
+    sheet = load(Path(__file__).resolve().parents[2] / "worksheets" / "pipe-on-hangers.toml")
+    result = sizing.size_for_target(sheet, "supports.inner[0].at", 1.0, 4.5, 20.0)
+    assert len(result.solutions) == 2
+    low, high = result.solutions
+    assert low.above == "above" and high.above == "below"
+    var = sizing.variation(sheet, "supports.inner[0].at")
+    for s in result.solutions:
+        assert fe.solve(var.member(s.value_si), 1).modes[0].frequency_hz == pytest.approx(
+            20.0, rel=1e-3
+        )
+
+
+def test_no_crossing_says_so() -> None:
+    sheet = loads(CANTILEVER)
+    result = sizing.size_for_target(sheet, "member.section.depth", 0.002, 0.004, 500.0)
+    assert result.recommended is None
+    assert "below" in result.message
+    assert len(result.solutions) == 1 and result.solutions[0].value_si == pytest.approx(0.004)
+
+
+def test_margins_flag_exactly_the_modes_inside() -> None:
+    check = sizing.margins((10.0, 19.0, 21.0, 29.0, 45.0), 25.0, (1, 2), 0.2)
+    # bands: 20..30 and 40..60 Hz
+    assert check.inside == (
+        (False, False),
+        (False, False),
+        (True, False),
+        (True, False),
+        (False, True),
+    )
+    assert not check.clear
+
+
+def test_excitation_sizing_keeps_every_mode_clear() -> None:
+    sheet = loads(CANTILEVER)
+    result = sizing.size_for_excitation(
+        sheet, "member.length", 0.3, 1.5, 1480 / 60, (1, 2), 0.2, modes=3
+    )
+    assert result.recommended is not None and result.margins is not None
+    assert result.margins.clear
+    var = sizing.variation(sheet, "member.length")
+    for s in result.solutions:
+        freqs = fe.solve(var.member(s.value_si), 3).frequencies_hz
+        check = sizing.margins(freqs * (1 - 1e-7), 1480 / 60, (1, 2), 0.2)
+        assert sum(map(sum, check.inside)) <= 1  # on a band edge at most
+
+
+def test_sweep_agrees_with_direct_solves_and_scales_by_groups() -> None:
+    sheet = loads(CANTILEVER)
+    result = sizing.sweep(sheet, "member.length", 0.4, 1.2, 9, modes=3)
+    assert result.solved == 1  # a bare uniform member: one solve, the rest by similitude
+    var = sizing.variation(sheet, "member.length")
+    for v, row in zip(result.values_si, result.frequencies_hz, strict=True):
+        direct = fe.solve(var.member(float(v)), 3)
+        error = max(m.estimated_error for m in direct.modes)
+        assert row == pytest.approx(direct.frequencies_hz, rel=max(2 * error, 1e-9))
+
+
+def test_sweep_with_attachments_solves_each_point() -> None:
+    text = CANTILEVER + '\n[[mass]]\nat = "500 mm"\nmass = "0.4 kg"\n'
+    sheet = loads(text)
+    result = sizing.sweep(sheet, "mass[0].at", 0.1, 0.8, 5, modes=2)
+    assert result.solved == 5
+    assert np.all(np.diff(result.frequencies_hz[:, 0]) < 0)  # a mass further out lowers f1
+    assert np.all(result.member_mass_kg == result.member_mass_kg[0])
+
+
+def test_apply_changes_only_that_value(tmp_path: Path) -> None:
+    path = tmp_path / "c.toml"
+    path.write_text(CANTILEVER)
+    new = replace_value(CANTILEVER, "member.section.depth", "12.5 mm")
+    write_atomic(path, new)
+    before, after = CANTILEVER.splitlines(), path.read_text().splitlines()
+    changed = [(a, b) for a, b in zip(before, after, strict=True) if a != b]
+    assert changed == [
+        (
+            'section = { shape = "rectangle", width = "30 mm", depth = "10 mm" }   # keep me',
+            'section = { shape = "rectangle", width = "30 mm", depth = "12.5 mm" }   # keep me',
+        )
+    ]
+    assert load(path).member.segments[0].section.depth == pytest.approx(0.0125)
+
+
+def test_failure_before_rename_leaves_the_original(
+    tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    path = tmp_path / "c.toml"
+    path.write_text(CANTILEVER)
+
+    def crash(src: object, dst: object) -> None:
+        raise OSError(5, "simulated crash")
+
+    monkeypatch.setattr(os, "replace", crash)
+    with pytest.raises(InputError) as info:
+        write_atomic(path, "garbage")
+    assert info.value.key == "file"
+    assert path.read_text() == CANTILEVER
+    assert list(tmp_path.iterdir()) == [path]  # no temporary file left behind
+
+
+def test_replace_value_refuses_a_result_that_would_not_load() -> None:
+    with pytest.raises(InputError):
+        replace_value(CANTILEVER, "member.section.depth", "12.5 kg")
+
+
+@pytest.mark.parametrize(
+    ("key", "message"),
+    [
+        ("member.section.diameter", "member.section has"),
+        ("mass[0].mass", "the worksheet has"),
+        ("supports.left", "a quantity"),
+        ("member..length", "a worksheet key"),
+    ],
+)
+def test_bad_keys(key: str, message: str) -> None:
+    with pytest.raises(InputError) as info:
+        sizing.variation(loads(CANTILEVER), key)
+    assert info.value.key == "--vary"
+    assert message in info.value.message
