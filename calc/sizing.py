@@ -52,6 +52,9 @@ __all__ = [
     "size_for_excitation",
     "margins",
     "sweep",
+    "quantity_keys",
+    "parse_margin",
+    "parse_harmonics",
 ]
 
 _SCAN = 33
@@ -546,3 +549,49 @@ def sweep(
         np.array([r[1] for r in rows]),
         ev.solved,
     )
+
+
+def quantity_keys(data: dict[str, Any]) -> list[str]:
+    """Key paths of every quantity in worksheet data that sizing can vary, in file order."""
+    out: list[str] = []
+
+    def walk(node: Any, prefix: str) -> None:
+        if isinstance(node, dict):
+            for name, value in node.items():
+                key = f"{prefix}.{name}" if prefix else name
+                if isinstance(value, str) and name in _FIELD_DIMENSIONS:
+                    out.append(key)
+                elif name != "record":
+                    walk(value, key)
+        elif isinstance(node, list):
+            for i, item in enumerate(node):
+                walk(item, f"{prefix}[{i}]")
+
+    walk(data, "")
+    return out
+
+
+def parse_margin(text: str) -> float:
+    """A margin such as ``"20%"`` as a fraction (0.2); InputError keyed ``--margin``."""
+    raw = text.strip()
+    number = raw[:-1].strip() if raw.endswith("%") else raw
+    try:
+        value = float(number) / 100.0
+    except ValueError:
+        raise InputError("--margin", text, 'a percentage, e.g. "20%"') from None
+    if not 0.0 < value < 1.0:
+        raise InputError("--margin", text, "a percentage between 0 % and 100 %")
+    return value
+
+
+def parse_harmonics(text: str) -> tuple[int, ...]:
+    """Excitation orders such as ``"1,2"``; InputError keyed ``--harmonics``."""
+    try:
+        orders = tuple(int(p) for p in text.split(",") if p.strip())
+    except ValueError:
+        raise InputError(
+            "--harmonics", text, "whole numbers separated by commas, e.g. 1,2"
+        ) from None
+    if not orders or any(not 1 <= h <= 100 for h in orders):
+        raise InputError("--harmonics", text, "orders from 1 to 100, e.g. 1,2")
+    return tuple(sorted(set(orders)))

@@ -176,10 +176,46 @@ def _sweep(args: argparse.Namespace) -> int:
     return sizing_cmd.sweep(args)
 
 
+_COMMANDS = ("solve", "groups", "size", "sweep", "verify", "report")
+
+
+def _app(path: str | None) -> int:
+    """Open the terminal app, on a worksheet file or (without one) on a new one."""
+    from calc.errors import InputError
+
+    if path is not None:
+        from calc.worksheet import load
+
+        try:
+            load(path)  # refuse a damaged file before the screen is taken over
+        except InputError as exc:
+            sys.stderr.write(f"beamtone: {exc.message}\n")
+            return EXIT_INPUT
+    if not sys.stdin.isatty() or not sys.stdout.isatty():
+        sys.stderr.write(
+            "beamtone: the app needs a terminal; use a command such as "
+            "'beamtone solve FILE' (see 'beamtone --help')\n"
+        )
+        return EXIT_INPUT
+    from tui.app import run
+
+    run(path)
+    return EXIT_OK
+
+
 def main(argv: Sequence[str] | None = None) -> int:
-    """Run the command line; return the exit status."""
+    """Run the command line; return the exit status.
+
+    With no arguments the terminal app opens on a new worksheet; with one argument that
+    is not a command, the app opens that worksheet.
+    """
+    arguments = list(sys.argv[1:] if argv is None else argv)
+    if not arguments:
+        return _app(None)
+    if len(arguments) == 1 and arguments[0] not in _COMMANDS and not arguments[0].startswith("-"):
+        return _app(arguments[0])
     parser = build_parser()
-    args = parser.parse_args(argv)
+    args = parser.parse_args(arguments)
     if args.version:
         from importlib.metadata import version
 

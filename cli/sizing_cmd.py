@@ -8,7 +8,6 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from calc.errors import InputError
 from cli.output import CAUTION, write_json
 
 __all__ = ["size", "sweep"]
@@ -30,33 +29,10 @@ def _range(args: argparse.Namespace, var: Any) -> tuple[float, float]:
     return low, high
 
 
-def _margin(text: str) -> float:
-    raw = text.strip()
-    number = raw[:-1].strip() if raw.endswith("%") else raw
-    try:
-        value = float(number) / 100.0
-    except ValueError:
-        raise InputError("--margin", text, 'a percentage, e.g. "20%"') from None
-    if not 0.0 < value < 1.0:
-        raise InputError("--margin", text, "a percentage between 0 % and 100 %")
-    return value
-
-
-def _harmonics(text: str) -> tuple[int, ...]:
-    try:
-        orders = tuple(int(p) for p in text.split(",") if p.strip())
-    except ValueError:
-        raise InputError(
-            "--harmonics", text, "whole numbers separated by commas, e.g. 1,2"
-        ) from None
-    if not orders or any(not 1 <= h <= 100 for h in orders):
-        raise InputError("--harmonics", text, "orders from 1 to 100, e.g. 1,2")
-    return tuple(sorted(set(orders)))
-
-
 def size(args: argparse.Namespace) -> int:
     """Run ``beamtone size``."""
     from calc import sizing
+    from calc.sizing import parse_harmonics, parse_margin
     from calc.units import parse_frequency
     from calc.worksheet import load, replace_value, write_atomic
 
@@ -70,8 +46,8 @@ def size(args: argparse.Namespace) -> int:
     else:
         excitation = parse_frequency(args.excitation, "--excitation")
         result = sizing.size_for_excitation(
-            sheet, args.vary, low, high, excitation, _harmonics(args.harmonics),
-            _margin(args.margin),
+            sheet, args.vary, low, high, excitation, parse_harmonics(args.harmonics),
+            parse_margin(args.margin),
         )  # fmt: skip
     applied = None
     if args.apply and result.recommended is not None:

@@ -1,0 +1,163 @@
+"""The beamtone terminal app: a thin App that opens a worksheet on the workbench screen."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from textual.app import App
+from textual.binding import Binding
+
+from calc.errors import InputError
+from tui.dialogs.choices import HelpDialog, PathDialog, TemplateDialog, UnsavedDialog
+from tui.document import TEMPLATES, Document, Template
+from tui.screens.groups import GroupsScreen
+from tui.screens.sizing import SizingScreen
+from tui.screens.workbench import Workbench
+from tui.widgets.results import ResultsView
+
+__all__ = ["BeamtoneApp", "run"]
+
+
+class BeamtoneApp(App[None]):
+    """Edit and solve a worksheet at the terminal."""
+
+    CSS_PATH = "beamtone.tcss"
+    TITLE = "beamtone"
+    BINDINGS = [Binding("ctrl+q", "quit_safely", "quit", priority=True, show=False)]
+
+    def __init__(self, path: str | Path | None = None) -> None:
+        super().__init__()
+        self.start_path = Path(path) if path is not None else None
+        self.document = Document.from_template(TEMPLATES[0])
+        self.ask_template = path is None
+
+    def on_mount(self) -> None:
+        if self.start_path is not None:
+            self.document = Document.open(self.start_path)
+        self.push_screen(Workbench(self.document))
+        if self.ask_template:
+            self.push_screen(TemplateDialog(), self._template_chosen)
+
+    # --- state ------------------------------------------------------------------------------
+
+    @property
+    def workbench(self) -> Workbench:
+        for screen in self.screen_stack:
+            if isinstance(screen, Workbench):
+                return screen
+        raise LookupError("no workbench")
+
+    def refresh_title(self) -> None:
+        """Title: the file name and a modified marker."""
+        name = self.document.path.name if self.document.path else "(not saved)"
+        self.title = f"beamtone: {name}{' *' if self.document.modified else ''}"
+        self.sub_title = self.document.title
+
+    async def _replace(self, document: Document) -> None:
+        self.document = document
+        bench = self.workbench
+        bench.document = document
+        await bench.reload()
+        self.refresh_title()
+
+    async def _template_chosen(self, template: Template | None) -> None:
+        if template is not None and template != TEMPLATES[0]:
+            await self._replace(Document.from_template(template))
+
+    # --- actions ------------------------------------------------------------------------------
+
+    def action_help(self) -> None:
+        self.push_screen(HelpDialog())
+
+    def action_save(self) -> None:
+        if self.document.path is None:
+            self.action_save_as()
+            return
+        self._save(self.document.path)
+
+    def action_save_as(self) -> None:
+        current = str(self.document.path) if self.document.path else "worksheet.toml"
+        self.push_screen(PathDialog("Save the worksheet as:", current), self._save_to)
+
+    def _save_to(self, path: str | None) -> None:
+        if path:
+            self._save(Path(path))
+
+    def _save(self, path: Path) -> bool:
+        try:
+            saved = self.document.save(path)
+        except InputError as exc:
+            self.notify(f"not saved: {exc.message}", severity="error", timeout=8)
+            return False
+        self.refresh_title()
+        self.notify(f"saved {saved}")
+        return True
+
+    def action_open(self) -> None:
+        self._unless_unsaved("open another worksheet", self._ask_open)
+
+    def _ask_open(self) -> None:
+        self.push_screen(PathDialog("Open the worksheet:"), self._open)
+
+    async def _open(self, path: str | None) -> None:
+        if not path:
+            return
+        try:
+            document = Document.open(path)
+        except InputError as exc:
+            # a damaged file: say so, keep the current worksheet
+            self.notify(f"not opened: {exc.message}", severity="error", timeout=10)
+            return
+        await self._replace(document)
+
+    def action_new(self) -> None:
+        self._unless_unsaved("start a new worksheet", self._ask_new)
+
+    def _ask_new(self) -> None:
+        self.push_screen(TemplateDialog(), self._new)
+
+    async def _new(self, template: Template | None) -> None:
+        if template is not None:
+            await self._replace(Document.from_template(template))
+
+    def action_sizing(self) -> None:
+        self.push_screen(SizingScreen(self.document), self._sized)
+
+    async def _sized(self, change: tuple[str, str] | None) -> None:
+        if change is None:
+            return
+        key, value = change
+        self.document.set(key, value)
+        await self.workbench.reload()
+        self.refresh_title()
+        self.notify(f"applied {key} = {value}")
+
+    def action_groups(self) -> None:
+        analysis = self.workbench.query_one(ResultsView).analysis
+        self.push_screen(GroupsScreen(analysis))
+
+    def action_quit_safely(self) -> None:
+        self._unless_unsaved("quit", self.exit)
+
+    def _unless_unsaved(self, what: str, then: object) -> None:
+        if not self.document.modified:
+            then()  # type: ignore[operator]
+            return
+
+        def answered(choice: str | None) -> None:
+            if choice == "save":
+                if self.document.path is None:
+                    self.action_save_as()
+                    return
+                if not self._save(self.document.path):
+                    return
+                then()  # type: ignore[operator]
+            elif choice == "discard":
+                then()  # type: ignore[operator]
+
+        self.push_screen(UnsavedDialog(what), answered)
+
+
+def run(path: str | None = None) -> None:
+    """Run the app on a worksheet file, or on a new one from a template."""
+    BeamtoneApp(path).run()

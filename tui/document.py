@@ -1,0 +1,292 @@
+"""The worksheet being edited: its TOML document, file, and modified state.
+
+Every field of the app writes its text here as typed, so nothing typed is lost even while it
+is wrong; the worksheet is validated (by ``calc.worksheet``) only when it is solved or saved.
+Comments and layout of an opened file are kept (tomlkit).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from importlib import resources
+from pathlib import Path
+from typing import Any
+
+import tomlkit
+import tomlkit.exceptions
+from tomlkit.items import AoT, Table
+
+from calc.errors import InputError
+from calc.worksheet import Worksheet, key_path, loads, write_atomic
+
+__all__ = ["Template", "TEMPLATES", "Document"]
+
+_ROW_DEFAULTS: dict[str, dict[str, str]] = {
+    "mass": {"at": "0 m", "mass": "1 kg"},
+    "spring": {"at": "0 m", "stiffness": "10 kN/m"},
+}
+
+
+@dataclass(frozen=True)
+class Template:
+    """A starting worksheet shipped with the app."""
+
+    name: str
+    description: str
+    filename: str
+
+    def text(self) -> str:
+        """The template's TOML text."""
+        return resources.files("tui").joinpath("templates", self.filename).read_text("utf-8")
+
+
+TEMPLATES: tuple[Template, ...] = (
+    Template(
+        "Cantilever carrying an instrument",
+        "a tube fixed at its base, instrument at the tip",
+        "cantilever-instrument.toml",
+    ),
+    Template(
+        "Guided slide",
+        "fixed at one end, sliding without rotating at the other",
+        "guided-slide.toml",
+    ),
+    Template(
+        "Span carrying a machine", "simply supported beam with a heavy mass", "span-machine.toml"
+    ),
+    Template("Stepped shaft", "three diameters on two bearing springs", "stepped-shaft.toml"),
+    Template("Free-free bar", "a bar hung on soft cords", "free-bar.toml"),
+)
+
+
+@dataclass
+class Document:
+    """An editable worksheet.
+
+    Attributes
+    ----------
+    doc : tomlkit.TOMLDocument
+        The worksheet as edited.
+    path : Path or None
+        The file it was opened from or saved to.
+    modified : bool
+        Whether it differs from what was last opened or saved.
+    """
+
+    doc: tomlkit.TOMLDocument
+    path: Path | None = None
+    modified: bool = False
+    _saved_text: str = field(default="", repr=False)
+
+    # --- opening ---------------------------------------------------------------------------
+
+    @classmethod
+    def from_text(cls, text: str, path: Path | None = None) -> Document:
+        """A document from TOML text; InputError (key ``file``) if it does not parse."""
+        try:
+            doc = tomlkit.parse(text)
+        except tomlkit.exceptions.ParseError as exc:
+            raise InputError(
+                "file", str(path or "text"), "valid TOML", f"line {exc.line}, column {exc.col}"
+            ) from None
+        except (tomlkit.exceptions.TOMLKitError, ValueError, RecursionError) as exc:
+            raise InputError("file", str(path or "text"), "valid TOML", str(exc)[:100]) from None
+        return cls(doc, path, False, text)
+
+    @classmethod
+    def open(cls, path: str | Path) -> Document:
+        """Open a worksheet file; it must load without error (else InputError)."""
+        from calc.worksheet import load
+
+        p = Path(path).expanduser()
+        load(p)  # the same checks as the command line: refuse a damaged file
+        return cls.from_text(p.read_text(encoding="utf-8"), p)
+
+    @classmethod
+    def from_template(cls, template: Template) -> Document:
+        """A new, unsaved document from a template."""
+        document = cls.from_text(template.text())
+        document.modified = False
+        return document
+
+    # --- reading ---------------------------------------------------------------------------
+
+    def text(self) -> str:
+        """The worksheet as TOML text."""
+        return tomlkit.dumps(self.doc)
+
+    def plain(self) -> dict[str, Any]:
+        """The worksheet as plain Python data."""
+        return self.doc.unwrap()
+
+    def get(self, key: str, default: Any = None) -> Any:
+        """The value at a key path (plain), or ``default`` where absent."""
+        node: Any = self.doc
+        for part in key_path(key, "field"):
+            try:
+                node = node[part]
+            except (KeyError, IndexError, TypeError):
+                return default
+        return node.unwrap() if hasattr(node, "unwrap") else node
+
+    def has(self, key: str) -> bool:
+        """Whether the key path exists."""
+        marker = object()
+        return self.get(key, marker) is not marker
+
+    def rows(self, table: str) -> list[dict[str, Any]]:
+        """The entries of an array of tables (``mass``, ``spring``, ``member.segment``)."""
+        value = self.get(table, [])
+        return value if isinstance(value, list) else []
+
+    def worksheet(self) -> Worksheet:
+        """Validate and load the worksheet (InputError names the first problem)."""
+        source = str(self.path) if self.path else "<app>"
+        return loads(self.text(), source)
+
+    @property
+    def title(self) -> str:
+        value = self.get("title", "")
+        return value if isinstance(value, str) else ""
+
+    # --- editing ---------------------------------------------------------------------------
+
+    def set(self, key: str, value: Any) -> None:
+        """Set the value at a key path, creating tables on the way (inline for sections)."""
+        parts = key_path(key, "field")
+        node: Any = self.doc
+        for i, part in enumerate(parts[:-1]):
+            nxt = parts[i + 1]
+            if isinstance(part, int):
+                node = node[part]
+                continue
+            if part not in node:
+                inline = part in ("section", "material") or isinstance(nxt, int)
+                node[part] = tomlkit.inline_table() if inline else tomlkit.table()
+            elif part in ("section", "material") and isinstance(node[part], str):
+                node[part] = tomlkit.inline_table()
+            node = node[part]
+        last = parts[-1]
+        old = node.get(last) if isinstance(last, str) and hasattr(node, "get") else None
+        old = old.unwrap() if hasattr(old, "unwrap") else old
+        if old == value:
+            return
+        node[last] = value
+        self.modified = True
+
+    def delete(self, key: str) -> None:
+        """Remove the key at a key path if present."""
+        parts = key_path(key, "field")
+        node: Any = self.doc
+        for part in parts[:-1]:
+            try:
+                node = node[part]
+            except (KeyError, IndexError):
+                return
+        try:
+            del node[parts[-1]]
+        except (KeyError, IndexError):
+            return
+        self.modified = True
+
+    def replace_section(self, key: str, section: dict[str, str]) -> None:
+        """Replace a section table (e.g. ``member.section``) as a whole, inline."""
+        table = tomlkit.inline_table()
+        table.update(section)
+        self.set(key, table)
+
+    def add_row(self, table: str, values: dict[str, str] | None = None) -> int:
+        """Append an entry to an array of tables; return its index."""
+        row = tomlkit.table()
+        row.update(values or _ROW_DEFAULTS.get(table, {}))
+        parts = key_path(table, "field")
+        node: Any = self.doc
+        for part in parts[:-1]:
+            node = node[part]
+        name = parts[-1]
+        if name not in node or not isinstance(node[name], AoT):
+            existing = node.get(name) if hasattr(node, "get") else None
+            node[name] = tomlkit.aot()
+            if isinstance(existing, list):
+                for item in existing:
+                    t = tomlkit.table()
+                    t.update(item)
+                    node[name].append(t)
+        node[name].append(row)
+        self.modified = True
+        return len(node[name]) - 1
+
+    def remove_row(self, table: str, index: int) -> None:
+        """Remove one entry of an array of tables (and the array when it empties)."""
+        rows = self.rows(table)
+        if not 0 <= index < len(rows):
+            return
+        parts = key_path(table, "field")
+        node: Any = self.doc
+        for part in parts[:-1]:
+            node = node[part]
+        del node[parts[-1]][index]
+        if len(node[parts[-1]]) == 0:
+            del node[parts[-1]]
+        self.modified = True
+
+    def make_stepped(self) -> None:
+        """Turn a uniform member into one segment, so more segments can be added."""
+        member = self.doc["member"]
+        if "segment" in member:
+            return
+        segment = tomlkit.table()
+        segment["length"] = member.get("length", "1 m")
+        if "section" in member:
+            section = tomlkit.inline_table()
+            section.update(member["section"].unwrap())
+            segment["section"] = section
+            del member["section"]
+        if "length" in member:
+            del member["length"]
+        member["segment"] = tomlkit.aot()
+        member["segment"].append(segment)
+        self.modified = True
+
+    def inner_supports(self) -> list[dict[str, Any]]:
+        """The inner supports ``[{at, kind}]``."""
+        value = self.get("supports.inner", [])
+        return value if isinstance(value, list) else []
+
+    def set_inner_supports(self, supports: list[dict[str, str]]) -> None:
+        """Replace ``supports.inner`` as an inline array of inline tables."""
+        supports_table: Table = self.doc["supports"]
+        if not supports:
+            if "inner" in supports_table:
+                del supports_table["inner"]
+                self.modified = True
+            return
+        array = tomlkit.array()
+        for item in supports:
+            t = tomlkit.inline_table()
+            t.update(item)
+            array.append(t)
+        supports_table["inner"] = array
+        self.modified = True
+
+    # --- saving ----------------------------------------------------------------------------
+
+    def save(self, path: str | Path | None = None) -> Path:
+        """Validate, then write atomically; the document is then unmodified.
+
+        Raises
+        ------
+        InputError
+            When the worksheet does not validate (nothing is written), or the file
+            cannot be written (the old file stays intact).
+        """
+        target = Path(path).expanduser() if path is not None else self.path
+        if target is None:
+            raise InputError("file", None, "a file name to save to (save as)")
+        text = self.text()
+        loads(text, str(target))
+        write_atomic(target, text)
+        self.path = target
+        self.modified = False
+        self._saved_text = text
+        return target

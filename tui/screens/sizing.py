@@ -1,0 +1,194 @@
+"""Sizing view: vary one quantity to meet a frequency target or clear an excitation."""
+
+from __future__ import annotations
+
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.screen import Screen
+from textual.widgets import Button, DataTable, Footer, Header, Input, Label, Select, Static
+
+from calc.errors import InputError
+from tui.document import Document
+
+__all__ = ["SizingScreen"]
+
+
+class SizingScreen(Screen[tuple[str, str] | None]):
+    """Returns ``(key, value)`` to apply to the worksheet, or None."""
+
+    BINDINGS = [
+        Binding("escape", "back", "back"),
+        Binding("ctrl+r", "solve", "solve"),
+    ]
+
+    def __init__(self, document: Document) -> None:
+        super().__init__()
+        self.document = document
+        self.result: object | None = None
+
+    def compose(self) -> ComposeResult:
+        from calc.sizing import quantity_keys
+
+        keys = quantity_keys(self.document.plain())
+        yield Header()
+        with Vertical(id="sizing"):
+            yield Static("Size one value of the worksheet", classes="step")
+            with Horizontal(classes="pair"):
+                yield Label("vary", classes="pairlabel")
+                yield Select(
+                    [(k, k) for k in keys],
+                    prompt="a quantity of the worksheet",
+                    id="vary",
+                    compact=True,
+                )
+            with Horizontal(classes="pair"):
+                yield Label("between", classes="pairlabel")
+                yield Input(placeholder="low, e.g. 20 mm", id="low", compact=True)
+                yield Input(placeholder="high, e.g. 80 mm", id="high", compact=True)
+            with Horizontal(classes="pair"):
+                yield Label("goal", classes="pairlabel")
+                yield Select(
+                    [("frequency target", "target"), ("clear an excitation", "excitation")],
+                    value="target",
+                    allow_blank=False,
+                    id="goal",
+                    compact=True,
+                )
+            with Horizontal(classes="pair"):
+                yield Label("frequency", classes="pairlabel")
+                yield Input(placeholder="60 Hz, or 1480 rpm", id="frequency", compact=True)
+                yield Label("mode", classes="pairlabel")
+                yield Input("1", id="mode", compact=True)
+            with Horizontal(classes="pair"):
+                yield Label("margin", classes="pairlabel")
+                yield Input("20%", id="margin", compact=True)
+                yield Label("orders", classes="pairlabel")
+                yield Input("1", id="harmonics", compact=True)
+            with Horizontal(classes="buttons"):
+                yield Button("solve", id="solve", variant="primary")
+                yield Button("apply the chosen value", id="apply", disabled=True)
+                yield Button("back", id="back")
+            yield Static("", id="sizing-message")
+            yield DataTable(id="solutions", cursor_type="row")
+            yield Static(
+                "Separation margins are common practice; the margin is yours to set and the "
+                "applicable code governs.",
+                classes="note",
+            )
+        yield Footer()
+
+    def on_mount(self) -> None:
+        table = self.query_one("#solutions", DataTable)
+        table.add_columns("value", "f1 [Hz]", "member mass [kg]", "note")
+
+    def action_back(self) -> None:
+        self.dismiss(None)
+
+    @on(Button.Pressed, "#back")
+    def _back(self) -> None:
+        self.dismiss(None)
+
+    @on(Button.Pressed, "#solve")
+    def action_solve(self) -> None:
+        vary = self.query_one("#vary", Select).value
+        if vary is Select.NULL:
+            self._say("pick the quantity to vary")
+            return
+        values = {
+            i: self.query_one(f"#{i}", Input).value
+            for i in ("low", "high", "frequency", "mode", "margin", "harmonics")
+        }
+        goal = str(self.query_one("#goal", Select).value)
+        self._say("solving…")
+        self.query_one("#apply", Button).disabled = True
+        self._run(self.document.text(), str(vary), goal, values)
+
+    @work(thread=True, exclusive=True, group="sizing", exit_on_error=False)
+    def _run(self, text: str, key: str, goal: str, values: dict[str, str]) -> None:
+        from calc import sizing
+        from calc.units import parse_frequency, parse_quantity
+        from calc.worksheet import loads
+
+        try:
+            sheet = loads(text, "<app>")
+            var = sizing.variation(sheet, key)
+            low = parse_quantity(
+                values["low"],
+                var.dimension,
+                "low",
+                allow_zero=True,
+                allow_negative=True,
+                minimum=False,
+            )
+            high = parse_quantity(
+                values["high"],
+                var.dimension,
+                "high",
+                allow_zero=True,
+                allow_negative=True,
+                minimum=False,
+            )
+            frequency = parse_frequency(values["frequency"], "frequency")
+            if goal == "target":
+                try:
+                    mode = int(values["mode"])
+                except ValueError:
+                    raise InputError("mode", values["mode"], "a mode number, 1 or more") from None
+                if not 1 <= mode <= 50:
+                    raise InputError("mode", mode, "a mode number from 1 to 50")
+                result = sizing.size_for_target(sheet, key, low, high, frequency, mode)
+            else:
+                result = sizing.size_for_excitation(
+                    sheet,
+                    key,
+                    low,
+                    high,
+                    frequency,
+                    sizing.parse_harmonics(values["harmonics"]),
+                    sizing.parse_margin(values["margin"]),
+                )
+        except InputError as exc:
+            self.app.call_from_thread(self._say, exc.message, True)
+            return
+        except Exception as exc:  # the outermost layer of this work: never a traceback
+            self.app.call_from_thread(
+                self._say, f"internal error: {type(exc).__name__}: {exc}", True
+            )
+            return
+        self.app.call_from_thread(self._show, result)
+
+    def _say(self, text: str, error: bool = False) -> None:
+        message = self.query_one("#sizing-message", Static)
+        message.update(text)
+        message.set_class(error, "error")
+
+    def _show(self, result: object) -> None:
+        from calc.sizing import SizingResult
+
+        assert isinstance(result, SizingResult)
+        self.result = result
+        self._say(result.message)
+        table = self.query_one("#solutions", DataTable)
+        table.clear()
+        for i, s in enumerate(result.solutions):
+            note = "recommended" if i == result.recommended else s.above
+            table.add_row(
+                s.value, f"{s.frequency_hz:.6g}", f"{s.member_mass_kg:.4g}", note, key=str(i)
+            )
+        if result.recommended is not None:
+            table.move_cursor(row=result.recommended)
+        self.query_one("#apply", Button).disabled = not result.solutions or (
+            result.recommended is None
+        )
+
+    @on(Button.Pressed, "#apply")
+    def _apply(self) -> None:
+        from calc.sizing import SizingResult
+
+        if not isinstance(self.result, SizingResult) or not self.result.solutions:
+            return
+        row = self.query_one("#solutions", DataTable).cursor_row
+        chosen = self.result.solutions[min(max(row, 0), len(self.result.solutions) - 1)]
+        self.dismiss((self.result.variable, chosen.value))

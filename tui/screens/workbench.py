@@ -1,0 +1,148 @@
+"""The main screen: the entry form on the left, live results and mode shapes on the right."""
+
+from __future__ import annotations
+
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.timer import Timer
+from textual.widgets import Footer, Header
+
+from calc.errors import InputError
+from tui.document import Document
+from tui.widgets.form import WorksheetForm
+from tui.widgets.modeplot import ModePlot, PlotData
+from tui.widgets.results import ResultsView
+
+__all__ = ["Workbench"]
+
+DEBOUNCE = 0.25  # seconds of quiet typing before a solve
+
+
+class Workbench(Screen[None]):
+    """Edit a worksheet and see its results."""
+
+    BINDINGS = [
+        Binding("ctrl+s", "app.save", "save"),
+        Binding("f2", "app.save_as", "save as"),
+        Binding("ctrl+o", "app.open", "open"),
+        Binding("ctrl+n", "app.new", "new"),
+        Binding("f5", "app.sizing", "size"),
+        Binding("f6", "app.groups", "groups"),
+        Binding("f1", "app.help", "help"),
+        Binding("ctrl+q", "app.quit_safely", "quit"),
+    ]
+
+    def __init__(self, document: Document) -> None:
+        super().__init__()
+        self.document = document
+        # pending: a solve is scheduled or running for the latest inputs
+        self._timer: Timer | None = None
+        self._version = 0
+        self.solves = 0
+        self.pending = False
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        with Horizontal(id="split"):
+            yield WorksheetForm(self.document, id="form")
+            with VerticalScroll(id="results-column"):
+                yield ModePlot(id="plot")
+                yield ResultsView(id="results")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self.app.refresh_title()  # type: ignore[attr-defined]
+        self.schedule(now=True)
+
+    # --- solving ---------------------------------------------------------------------------
+
+    @on(WorksheetForm.Changed)
+    def _changed(self, event: WorksheetForm.Changed) -> None:
+        self.app.refresh_title()  # type: ignore[attr-defined]
+        self.schedule()
+
+    def schedule(self, now: bool = False) -> None:
+        """Solve after a short pause in typing (at once with ``now``)."""
+        self._version += 1
+        self.pending = True
+        if self._timer is not None:
+            self._timer.stop()
+        results = self.query_one(ResultsView)
+        if results.analysis is not None:
+            results.mark("computing")
+        if now:
+            self._solve()
+        else:
+            self._timer = self.set_timer(DEBOUNCE, self._solve)
+
+    def _solve(self) -> None:
+        self._run(self.document.text(), self._version)
+
+    @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
+    def _run(self, text: str, version: int) -> None:
+        from calc.analysis import analyse
+        from calc.worksheet import loads
+
+        try:
+            analysis = analyse(loads(text, "<app>"))
+        except InputError as exc:
+            self.app.call_from_thread(self._failed, exc, version)
+            return
+        except Exception as exc:  # the outermost layer of the app's work: never a traceback
+            problem = InputError(
+                "member",
+                None,
+                "a model beamtone can solve",
+                f"internal error, please report: {type(exc).__name__}: {exc}",
+            )
+            self.app.call_from_thread(self._failed, problem, version)
+            return
+        self.app.call_from_thread(self._done, analysis, version)
+
+    def _done(self, analysis: object, version: int) -> None:
+        if version != self._version:
+            return  # the inputs changed again meanwhile; a newer solve is on its way
+        self.pending = False
+        self.solves += 1
+        results = self.query_one(ResultsView)
+        results.show(analysis)  # type: ignore[arg-type]
+        self.query_one(ModePlot).show(_plot_data(analysis))
+
+    def _failed(self, exc: InputError, version: int) -> None:
+        if version != self._version:
+            return
+        self.pending = False
+        results = self.query_one(ResultsView)
+        results.mark("stale" if results.analysis is not None else "failed", exc.message)
+        self.query_one(WorksheetForm).show_error(exc)
+        plot = self.query_one(ModePlot)
+        plot.show(plot.data, stale=True)
+
+    async def reload(self) -> None:
+        """Rebuild the form after the document was replaced or changed from outside."""
+        form = self.query_one(WorksheetForm)
+        form.document = self.document
+        await form.rebuild()
+        self.schedule(now=True)
+
+
+def _plot_data(analysis: object) -> PlotData:
+    from calc.analysis import Analysis
+
+    assert isinstance(analysis, Analysis)
+    member = analysis.sheet.member
+    modes = analysis.modes.modes[:3]
+    supports = [(0.0, member.left), (member.length, member.right)]
+    supports += [(s.at, s.kind) for s in member.inner_supports]
+    return PlotData(
+        length=member.length,
+        x=modes[0].x,
+        shapes=[m.w for m in modes],
+        labels=[f"{m.number}: {m.frequency_hz:.4g} Hz" for m in modes],
+        supports=supports,
+        masses=[p.at for p in member.masses],
+        springs=[s.at for s in member.springs],
+    )

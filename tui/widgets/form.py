@@ -1,0 +1,439 @@
+"""The guided entry form: member, ends, what it carries, assumed shape, in that order.
+
+The form reads its values from the :class:`~tui.document.Document` and writes every edit
+back to it as typed.  Structural edits (another section shape, a mass added or removed)
+rebuild the form from the document.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from textual import on
+from textual.app import ComposeResult
+from textual.containers import Horizontal, VerticalScroll
+from textual.message import Message
+from textual.widgets import Button, Label, Select, Static
+
+from calc import materials
+from calc.errors import InputError
+from calc.model import END_KINDS, INNER_KINDS
+from calc.sections import SHAPES
+from calc.units import (
+    DENSITY,
+    FORCE,
+    LENGTH,
+    MASS,
+    MASS_PER_LENGTH,
+    PRESSURE,
+    ROTARY_INERTIA,
+    ROTATIONAL_STIFFNESS,
+    STIFFNESS,
+)
+from tui.document import Document
+from tui.widgets.quantity import QuantityField, TextField
+
+__all__ = ["WorksheetForm"]
+
+_CUSTOM = "(custom)"
+_SHAPE_DEFAULTS = {
+    "rectangle": {"width": "50 mm", "depth": "10 mm"},
+    "round": {"diameter": "30 mm"},
+    "round-tube": {"outside_diameter": "48 mm", "wall": "3 mm"},
+    "box": {"width": "50 mm", "depth": "50 mm", "wall": "3 mm"},
+    "i-beam": {"width": "100 mm", "depth": "200 mm", "flange": "8 mm", "web": "6 mm"},
+    "properties": {"area": "450 mm^2", "second_moment": "1e5 mm^4"},
+}
+_LABELS = {
+    "outside_diameter": "outside dia.",
+    "second_moment": "second moment",
+    "youngs_modulus": "Young's mod.",
+    "rotary_inertia": "rot. inertia",
+    "rotational_stiffness": "rot. stiffness",
+    "added_mass": "added mass",
+    "axial_force": "axial force",
+}
+
+
+def _label(name: str) -> str:
+    return _LABELS.get(name, name.replace("_", " "))
+
+
+class WorksheetForm(VerticalScroll):
+    """The entry form over a document."""
+
+    class Changed(Message):
+        """The document changed (``structural`` when the form was rebuilt)."""
+
+        def __init__(self, structural: bool = False) -> None:
+            super().__init__()
+            self.structural = structural
+
+    def __init__(self, document: Document, id: str | None = None) -> None:  # noqa: A002
+        super().__init__(id=id)
+        self.document = document
+
+    # --- building --------------------------------------------------------------------------
+
+    def compose(self) -> ComposeResult:
+        doc = self.document
+        yield Static("1  Member", classes="step")
+        yield TextField("title", "title", str(doc.get("title", "")))
+        segments = doc.rows("member.segment")
+        if not segments:
+            yield QuantityField("member.length", "length", LENGTH, _text(doc.get("member.length")))
+        yield from self._material()
+        yield from self._section(
+            "member.section", doc.get("member.section"), optional=bool(segments)
+        )
+        for i, seg in enumerate(segments):
+            key = f"member.segment[{i}]"
+            with Horizontal(classes="rowhead"):
+                yield Label(f"segment {i}", classes="rowtitle")
+                yield Button("remove", id=f"remove-segment-{i}", classes="small")
+            yield QuantityField(f"{key}.length", "length", LENGTH, _text(seg.get("length")))
+            if isinstance(seg.get("section"), dict):
+                yield from self._section(f"{key}.section", seg["section"], picker=False)
+        yield Button("+ segment (step the member)", id="add-segment", classes="small")
+        yield Static("", id="derived", classes="derived")
+
+        yield Static("2  Ends", classes="step")
+        with Horizontal(classes="pair"):
+            yield Label("left end", classes="pairlabel")
+            yield Select(
+                [(k, k) for k in END_KINDS],
+                value=_choice(doc.get("supports.left"), END_KINDS),
+                allow_blank=False,
+                id="supports-left",
+                compact=True,
+            )
+        with Horizontal(classes="pair"):
+            yield Label("right end", classes="pairlabel")
+            yield Select(
+                [(k, k) for k in END_KINDS],
+                value=_choice(doc.get("supports.right"), END_KINDS),
+                allow_blank=False,
+                id="supports-right",
+                compact=True,
+            )
+        for i, sup in enumerate(doc.inner_supports()):
+            with Horizontal(classes="rowhead"):
+                yield Label(f"inner support {i}", classes="rowtitle")
+                yield Select(
+                    [(k, k) for k in INNER_KINDS],
+                    value=_choice(sup.get("kind"), INNER_KINDS),
+                    allow_blank=False,
+                    id=f"inner-kind-{i}",
+                    compact=True,
+                )
+                yield Button("remove", id=f"remove-inner-{i}", classes="small")
+            yield QuantityField(
+                f"supports.inner[{i}].at", "at", LENGTH, _text(sup.get("at")), position=True
+            )
+        yield Button("+ inner support", id="add-inner", classes="small")
+
+        yield Static("3  What it carries", classes="step")
+        yield QuantityField(
+            "member.added_mass",
+            "added mass",
+            MASS_PER_LENGTH,
+            _text(doc.get("member.added_mass")),
+            allow_zero=True,
+            optional=True,
+        )
+        yield QuantityField(
+            "member.axial_force",
+            "axial force",
+            FORCE,
+            _text(doc.get("member.axial_force")),
+            allow_zero=True,
+            allow_negative=True,
+            position=True,
+            optional=True,
+        )
+        for i, row in enumerate(doc.rows("mass")):
+            key = f"mass[{i}]"
+            with Horizontal(classes="rowhead"):
+                yield Label(f"mass {i}", classes="rowtitle")
+                yield Button("remove", id=f"remove-mass-{i}", classes="small")
+            yield QuantityField(f"{key}.at", "at", LENGTH, _text(row.get("at")), position=True)
+            yield QuantityField(
+                f"{key}.mass", "mass", MASS, _text(row.get("mass")), allow_zero=True
+            )
+            yield QuantityField(
+                f"{key}.rotary_inertia",
+                "rot. inertia",
+                ROTARY_INERTIA,
+                _text(row.get("rotary_inertia")),
+                allow_zero=True,
+                optional=True,
+            )
+        for i, row in enumerate(doc.rows("spring")):
+            key = f"spring[{i}]"
+            with Horizontal(classes="rowhead"):
+                yield Label(f"spring {i}", classes="rowtitle")
+                yield Button("remove", id=f"remove-spring-{i}", classes="small")
+            yield QuantityField(f"{key}.at", "at", LENGTH, _text(row.get("at")), position=True)
+            yield QuantityField(
+                f"{key}.stiffness",
+                "stiffness",
+                STIFFNESS,
+                _text(row.get("stiffness")),
+                allow_zero=True,
+                optional=True,
+            )
+            yield QuantityField(
+                f"{key}.rotational_stiffness",
+                "rot. stiffness",
+                ROTATIONAL_STIFFNESS,
+                _text(row.get("rotational_stiffness")),
+                allow_zero=True,
+                optional=True,
+            )
+        with Horizontal(classes="buttons"):
+            yield Button("+ mass", id="add-mass", classes="small")
+            yield Button("+ spring", id="add-spring", classes="small")
+
+        yield Static("4  Assumed shape and checks", classes="step")
+        yield TextField(
+            "estimate.shape",
+            "shape",
+            _text(doc.get("estimate.shape")),
+            "static (default), polynomial, trigonometric, or 1 - cos(pi*x/(2*L))",
+        )
+        ritz = doc.get("estimate.shapes")
+        yield TextField(
+            "estimate.shapes",
+            "Ritz functions",
+            "" if ritz is None else str(ritz),
+            "e.g. 4 (blank: none)",
+        )
+        yield TextField("check.modes", "modes", _text(doc.get("check.modes")), "5 (default)")
+
+    def _material(self) -> ComposeResult:
+        value = self.document.get("member.material")
+        names = list(materials.LIBRARY)
+        current = _CUSTOM if isinstance(value, dict) else _choice(value, (*names, _CUSTOM))
+        options = [(n, n) for n in names] + [(_CUSTOM, _CUSTOM)]
+        with Horizontal(classes="pair"):
+            yield Label("material", classes="pairlabel")
+            yield Select(options, value=current, allow_blank=False, id="material", compact=True)
+        if isinstance(value, dict):
+            yield QuantityField(
+                "member.material.youngs_modulus",
+                "Young's mod.",
+                PRESSURE,
+                _text(value.get("youngs_modulus")),
+            )
+            yield QuantityField(
+                "member.material.density", "density", DENSITY, _text(value.get("density"))
+            )
+
+    def _section(
+        self, key: str, section: Any, *, optional: bool = False, picker: bool = True
+    ) -> ComposeResult:
+        if not isinstance(section, dict):
+            if optional:
+                return
+            section = {}
+        shape = section.get("shape", "properties" if "area" in section else "rectangle")
+        if picker:
+            with Horizontal(classes="pair"):
+                yield Label("section", classes="pairlabel")
+                yield Select(
+                    [(s, s) for s in SHAPES],
+                    value=_choice(shape, tuple(SHAPES)),
+                    allow_blank=False,
+                    id="shape",
+                    compact=True,
+                )
+        spec = SHAPES.get(shape)
+        if spec is None:
+            return
+        for name, dim in spec.required:
+            yield QuantityField(f"{key}.{name}", _label(name), dim, _text(section.get(name)))
+        for name, dim in spec.optional:
+            yield QuantityField(
+                f"{key}.{name}", _label(name), dim, _text(section.get(name)), optional=True
+            )
+
+    # --- edits -----------------------------------------------------------------------------
+
+    @on(QuantityField.Edited)
+    def _edited(self, event: QuantityField.Edited) -> None:
+        event.stop()
+        key, text = event.key, event.text
+        if key in ("check.modes", "estimate.shapes"):
+            self._set_integer(key, text)
+        elif key == "estimate.shape":
+            if text.strip():
+                self.document.set(key, text)
+            else:
+                self.document.delete(key)
+        elif not text.strip() and _optional(key):
+            self.document.delete(key)
+        else:
+            self.document.set(key, text)
+        self.update_derived()
+        self.post_message(self.Changed())
+
+    def _set_integer(self, key: str, text: str) -> None:
+        stripped = text.strip()
+        if not stripped:
+            self.document.delete(key)
+            return
+        try:
+            self.document.set(key, int(stripped))
+        except ValueError:
+            self.document.set(key, stripped)
+
+    @on(Select.Changed)
+    async def _selected(self, event: Select.Changed) -> None:
+        event.stop()
+        select_id = event.select.id or ""
+        value = event.value
+        doc = self.document
+        if select_id in ("supports-left", "supports-right"):
+            doc.set(select_id.replace("-", "."), value)
+        elif select_id.startswith("inner-kind-"):
+            i = int(select_id.rsplit("-", 1)[1])
+            supports = [dict(s) for s in doc.inner_supports()]
+            if supports[i].get("kind") != value:
+                supports[i]["kind"] = value
+                doc.set_inner_supports(supports)
+        elif select_id == "material":
+            old = doc.get("member.material")
+            if value == _CUSTOM and not isinstance(old, dict):
+                base = materials.lookup(str(old)) if isinstance(old, str) else None
+                E = f"{(base.youngs_modulus if base else 200e9) / 1e9:g} GPa"
+                rho = f"{(base.density if base else 7850.0):g} kg/m^3"
+                doc.replace_section("member.material", {"youngs_modulus": E, "density": rho})
+                await self.rebuild()
+            elif value != _CUSTOM and old != value:
+                rebuild = isinstance(old, dict)
+                doc.set("member.material", value)
+                if rebuild:
+                    await self.rebuild()
+        elif select_id == "shape":
+            current = doc.get("member.section") or {}
+            if current.get("shape") != value:
+                fresh = {"shape": value, **_SHAPE_DEFAULTS[str(value)]}
+                for name in fresh:
+                    if name in current and name != "shape":
+                        fresh[name] = current[name]
+                if value == "properties":
+                    del fresh["shape"]
+                doc.replace_section("member.section", fresh)
+                await self.rebuild()
+        else:
+            return
+        self.update_derived()
+        self.post_message(self.Changed())
+
+    @on(Button.Pressed)
+    async def _pressed(self, event: Button.Pressed) -> None:
+        button = event.button.id or ""
+        doc = self.document
+        if button == "add-mass":
+            doc.add_row("mass", {"at": _end(doc), "mass": "1 kg"})
+        elif button == "add-spring":
+            doc.add_row("spring", {"at": _end(doc), "stiffness": "10 kN/m"})
+        elif button == "add-inner":
+            supports = [dict(s) for s in doc.inner_supports()]
+            supports.append({"at": _middle(doc), "kind": "pinned"})
+            doc.set_inner_supports(supports)
+        elif button == "add-segment":
+            doc.make_stepped()
+            rows = doc.rows("member.segment")
+            last = dict(rows[-1]) if rows else {"length": "0.5 m"}
+            doc.add_row("member.segment", last)
+        elif button.startswith("remove-"):
+            _, what, index = button.split("-")
+            i = int(index)
+            if what == "inner":
+                supports = [dict(s) for n, s in enumerate(doc.inner_supports()) if n != i]
+                doc.set_inner_supports(supports)
+            else:
+                table = {"mass": "mass", "spring": "spring", "segment": "member.segment"}[what]
+                doc.remove_row(table, i)
+        else:
+            return
+        event.stop()
+        await self.rebuild()
+        self.post_message(self.Changed(structural=True))
+
+    async def rebuild(self) -> None:
+        """Rebuild the form from the document (after a structural change)."""
+        await self.recompose()
+        self.update_derived()
+
+    def on_mount(self) -> None:
+        self.update_derived()
+
+    # --- feedback --------------------------------------------------------------------------
+
+    def update_derived(self) -> None:
+        """Show section and member properties of the worksheet as it stands, if it loads."""
+        derived = self.query("#derived")
+        if not derived:
+            return
+        try:
+            member = self.document.worksheet().member
+        except InputError:
+            derived.first(Static).update("")
+            return
+        parts = []
+        for i, seg in enumerate(member.segments):
+            sec = seg.section
+            name = f"segment {i}: " if len(member.segments) > 1 else ""
+            E = seg.material.youngs_modulus / 1e9
+            parts.append(
+                f"{name}A = {sec.area * 1e6:.5g} mm², I = {sec.second_moment * 1e12:.5g} mm⁴, "
+                f"m = {seg.mass_per_length:.4g} kg/m, E = {E:.4g} GPa"
+            )
+        parts.append(f"member mass {member.member_mass:.4g} kg, length {member.length:.4g} m")
+        derived.first(Static).update("\n".join(parts))
+
+    def show_error(self, exc: InputError) -> bool:
+        """Mark the field the error names; False where no field shows that key."""
+        for field in self.query(".quantity, .text"):
+            if getattr(field, "key", None) == exc.key:
+                field.show_error(f"expected {exc.expected}")  # type: ignore[attr-defined]
+                return True
+        return False
+
+
+def _text(value: Any) -> str:
+    return "" if value is None else str(value)
+
+
+def _choice(value: Any, options: tuple[str, ...]) -> str:
+    return value if isinstance(value, str) and value in options else options[0]
+
+
+def _optional(key: str) -> bool:
+    last = key.rsplit(".", 1)[-1]
+    return last in (
+        "added_mass",
+        "axial_force",
+        "rotary_inertia",
+        "stiffness",
+        "rotational_stiffness",
+        "depth",
+    )
+
+
+def _end(doc: Document) -> str:
+    try:
+        length = doc.worksheet().member.length
+    except InputError:
+        return "0 m"
+    return f"{length:.6g} m"
+
+
+def _middle(doc: Document) -> str:
+    try:
+        length = doc.worksheet().member.length
+    except InputError:
+        return "0.5 m"
+    return f"{length / 2:.6g} m"

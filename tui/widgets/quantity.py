@@ -1,0 +1,163 @@
+"""A field for one quantity: ``value unit`` text, its SI value beside it, or what is wrong."""
+
+from __future__ import annotations
+
+from textual import on
+from textual.app import ComposeResult
+from textual.containers import Horizontal, Vertical
+from textual.message import Message
+from textual.widgets import Input, Label, Static
+
+from calc.errors import InputError
+from calc.units import Dimension, parse_quantity
+
+__all__ = ["QuantityField", "TextField"]
+
+
+class QuantityField(Vertical):
+    """Label, input and the parsed SI value (or an inline error) of one worksheet quantity.
+
+    Posts :class:`QuantityField.Edited` with its key path and the text as typed, whether or
+    not the text is valid: nothing typed is lost.
+    """
+
+    DEFAULT_CSS = """
+    QuantityField { height: auto; margin: 0 0 0 1; }
+    QuantityField > Horizontal { height: 1; }
+    QuantityField Label { width: 13; color: $text-muted; }
+    QuantityField Input { width: 14; height: 1; border: none; padding: 0 1; }
+    QuantityField .si { width: 1fr; padding: 0 0 0 1; color: $text-muted; }
+    QuantityField > .problem { display: none; color: $error; padding: 0 0 0 2; }
+    QuantityField.-invalid > .problem { display: block; }
+    QuantityField.-invalid .si { color: $error; text-style: bold; }
+    QuantityField.-invalid Input { background: $error 20%; }
+    """
+
+    class Edited(Message):
+        """The text of a field changed."""
+
+        def __init__(self, field: QuantityField, key: str, text: str) -> None:
+            super().__init__()
+            self.field = field
+            self.key = key
+            self.text = text
+
+    def __init__(
+        self,
+        key: str,
+        label: str,
+        dimension: Dimension,
+        value: str = "",
+        *,
+        allow_zero: bool = False,
+        allow_negative: bool = False,
+        position: bool = False,
+        optional: bool = False,
+    ) -> None:
+        super().__init__(classes="quantity")
+        self.optional = optional
+        self._posted = value
+        self.key = key
+        self.label = label
+        self.dimension = dimension
+        self.value = value
+        self.allow_zero = allow_zero
+        self.allow_negative = allow_negative
+        self.position = position
+
+    def compose(self) -> ComposeResult:
+        example = self.dimension.example.split(" or ")[0].strip('"')
+        placeholder = "(none)" if self.optional else example
+        with Horizontal():
+            yield Label(self.label)
+            yield Input(self.value, placeholder=placeholder, compact=True, id=_dom_id(self.key))
+            yield Static("", classes="si")
+        yield Static("", classes="problem")
+
+    def on_mount(self) -> None:
+        self._check(self.value)
+
+    @on(Input.Changed)
+    def _changed(self, event: Input.Changed) -> None:
+        event.stop()
+        self.value = event.value
+        self._check(event.value)
+        if event.value != self._posted:  # not for the value the field was built with
+            self._posted = event.value
+            self.post_message(self.Edited(self, self.key, event.value))
+
+    def _check(self, text: str) -> None:
+        si = self.query_one(".si", Static)
+        problem = self.query_one(".problem", Static)
+        if self.optional and not text.strip():
+            self.remove_class("-invalid")
+            si.update("none")
+            return
+        try:
+            value = parse_quantity(
+                text,
+                self.dimension,
+                self.key,
+                allow_zero=self.allow_zero or self.position,
+                allow_negative=self.allow_negative,
+                minimum=not self.position,
+            )
+        except InputError as exc:
+            self.add_class("-invalid")
+            si.update("✗")
+            problem.update(f"expected {exc.expected}" + (f" ({exc.hint})" if exc.hint else ""))
+            return
+        self.remove_class("-invalid")
+        si.update(f"{value:.5g}\u00a0{self.dimension.si_unit}")
+
+    def show_error(self, message: str) -> None:
+        """Mark the field with an error found when the worksheet was solved."""
+        self.add_class("-invalid")
+        self.query_one(".si", Static).update("✗")
+        self.query_one(".problem", Static).update(message)
+
+    @property
+    def valid(self) -> bool:
+        return not self.has_class("-invalid")
+
+
+class TextField(Horizontal):
+    """Label and input for plain text (title, shape expression)."""
+
+    DEFAULT_CSS = """
+    TextField { height: 1; margin: 0 0 0 1; }
+    TextField > Label { width: 13; color: $text-muted; }
+    TextField > Input { width: 1fr; height: 1; border: none; padding: 0 1; }
+    TextField.-invalid > Input { background: $error 20%; }
+    """
+
+    def __init__(self, key: str, label: str, value: str = "", placeholder: str = "") -> None:
+        super().__init__(classes="text")
+        self.key = key
+        self.label = label
+        self.value = value
+        self.placeholder = placeholder
+        self._posted = value
+
+    def compose(self) -> ComposeResult:
+        yield Label(self.label)
+        yield Input(self.value, placeholder=self.placeholder, compact=True, id=_dom_id(self.key))
+
+    @on(Input.Changed)
+    def _changed(self, event: Input.Changed) -> None:
+        event.stop()
+        self.value = event.value
+        self.remove_class("-invalid")
+        if event.value != self._posted:
+            self._posted = event.value
+            self.post_message(QuantityField.Edited(self, self.key, event.value))  # type: ignore[arg-type]
+
+    def show_error(self, message: str) -> None:
+        self.add_class("-invalid")
+        self.tooltip = message
+
+
+def _dom_id(key: str) -> str:
+    """A DOM id for a key path: ``mass[0].at`` -> ``f-mass-0-at``."""
+    out = "f-" + key.replace("[", "-").replace("]", "").replace(".", "-").replace("_", "-")
+    return out
