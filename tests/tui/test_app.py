@@ -61,14 +61,19 @@ def bar_fundamental(length: float) -> float:
     return LAMBDA1**2 / (2 * math.pi * length**2) * math.sqrt(EI / m)
 
 
-async def settled(pilot, app: BeamtoneApp) -> ResultsView:  # noqa: ANN001
-    """Wait until the last scheduled solve has been shown."""
-    for _ in range(200):
+async def settled(pilot, app: BeamtoneApp, since: int | None = None) -> ResultsView:  # noqa: ANN001
+    """Wait until a solve after ``since`` finished solves (or the first) has been shown."""
+    for _ in range(400):
         await pilot.pause(0.05)
         bench = app.workbench
-        if not bench.pending:
+        done = bench.finished > (since if since is not None else 0)
+        if done and not bench.pending:
             return bench.query_one(ResultsView)
     raise AssertionError("the app did not settle")
+
+
+def finished(app: BeamtoneApp) -> int:
+    return app.workbench.finished
 
 
 async def type_into(pilot, app: BeamtoneApp, dom_id: str, text: str) -> None:  # noqa: ANN001
@@ -93,8 +98,9 @@ async def test_changing_the_length_changes_the_frequency(bar: Path) -> None:
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 40)) as pilot:
         await settled(pilot, app)
+        n = finished(app)
         await type_into(pilot, app, "f-member-length", "500 mm")
-        view = await settled(pilot, app)
+        view = await settled(pilot, app, n)
         assert view.state == "current"
         f = view.analysis.modes.modes[0].frequency_hz
         assert f == pytest.approx(bar_fundamental(0.5), rel=1e-6)
@@ -108,18 +114,20 @@ async def test_bad_unit_shows_inline_error_and_marks_results_stale(bar: Path) ->
     async with app.run_test(size=(100, 40)) as pilot:
         good = await settled(pilot, app)
         before = good.analysis
+        n = finished(app)
         await type_into(pilot, app, "f-member-length", "1 kg")
         field = app.workbench.query_one("#f-member-length", Input).parent.parent
         assert isinstance(field, QuantityField)
         assert field.has_class("-invalid")
         assert "a length" in str(field.query_one(".problem").render())
-        view = await settled(pilot, app)
+        view = await settled(pilot, app, n)
         assert view.state == "stale"
         assert view.analysis is before  # the last good results stay, marked
         assert "OUT OF DATE" in str(view._banner())  # noqa: SLF001
         assert app.document.get("member.length") == "1 kg"  # nothing typed is lost
+        n = finished(app)
         await type_into(pilot, app, "f-member-length", "1 m")
-        view = await settled(pilot, app)
+        view = await settled(pilot, app, n)
         assert view.state == "current"
 
 
@@ -159,8 +167,9 @@ async def test_size_a_dimension_and_apply_it(bar: Path) -> None:
             if screen.result is not None:
                 break
         assert screen.result is not None and screen.result.recommended == 0
+        n = finished(app)
         await pilot.click("#apply")
-        view = await settled(pilot, app)
+        view = await settled(pilot, app, n)
         assert app.screen is app.workbench
         assert view.analysis.modes.modes[0].frequency_hz == pytest.approx(20.0, rel=1e-5)
         assert app.document.modified
@@ -171,10 +180,11 @@ async def test_save_reopen_and_compare(bar: Path, tmp_path: Path) -> None:
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 60)) as pilot:
         await settled(pilot, app)
+        n = finished(app)
         await type_into(pilot, app, "f-member-length", "750 mm")
         await pilot.click("#add-spring")
         await pilot.pause(0.2)
-        await settled(pilot, app)
+        await settled(pilot, app, n)
         await pilot.press("ctrl+s")
         await pilot.pause(0.2)
         assert not app.document.modified and "*" not in app.title

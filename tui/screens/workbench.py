@@ -18,7 +18,7 @@ from tui.widgets.results import ResultsView
 
 __all__ = ["Workbench"]
 
-DEBOUNCE = 0.25  # seconds of quiet typing before a solve
+DEBOUNCE = 0.05  # seconds of quiet typing before a solve
 
 
 class Workbench(Screen[None]):
@@ -41,7 +41,8 @@ class Workbench(Screen[None]):
         # pending: a solve is scheduled or running for the latest inputs
         self._timer: Timer | None = None
         self._version = 0
-        self.solves = 0
+        self.solves = 0  # solves shown
+        self.finished = 0  # solves finished, shown or failed
         self.pending = False
 
     def compose(self) -> ComposeResult:
@@ -79,15 +80,15 @@ class Workbench(Screen[None]):
             self._timer = self.set_timer(DEBOUNCE, self._solve)
 
     def _solve(self) -> None:
-        self._run(self.document.text(), self._version)
+        self._run(self.document.plain(), self._version)
 
     @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
-    def _run(self, text: str, version: int) -> None:
+    def _run(self, data: dict, version: int) -> None:
         from calc.analysis import analyse
-        from calc.worksheet import loads
+        from calc.worksheet import from_data
 
         try:
-            analysis = analyse(loads(text, "<app>"))
+            analysis = analyse(from_data(data, "<app>"))
         except InputError as exc:
             self.app.call_from_thread(self._failed, exc, version)
             return
@@ -107,14 +108,17 @@ class Workbench(Screen[None]):
             return  # the inputs changed again meanwhile; a newer solve is on its way
         self.pending = False
         self.solves += 1
+        self.finished += 1
         results = self.query_one(ResultsView)
         results.show(analysis)  # type: ignore[arg-type]
         self.query_one(ModePlot).show(_plot_data(analysis))
+        self.query_one(WorksheetForm).update_derived(analysis.sheet.member)  # type: ignore[attr-defined]
 
     def _failed(self, exc: InputError, version: int) -> None:
         if version != self._version:
             return
         self.pending = False
+        self.finished += 1
         results = self.query_one(ResultsView)
         results.mark("stale" if results.analysis is not None else "failed", exc.message)
         self.query_one(WorksheetForm).show_error(exc)

@@ -17,7 +17,7 @@ from textual.widgets import Button, Label, Select, Static
 
 from calc import materials
 from calc.errors import InputError
-from calc.model import END_KINDS, INNER_KINDS
+from calc.model import END_KINDS, INNER_KINDS, Member
 from calc.sections import SHAPES
 from calc.units import (
     DENSITY,
@@ -72,6 +72,7 @@ class WorksheetForm(VerticalScroll):
     def __init__(self, document: Document, id: str | None = None) -> None:  # noqa: A002
         super().__init__(id=id)
         self.document = document
+        self._member: Member | None = None
 
     # --- building --------------------------------------------------------------------------
 
@@ -274,7 +275,6 @@ class WorksheetForm(VerticalScroll):
             self.document.delete(key)
         else:
             self.document.set(key, text)
-        self.update_derived()
         self.post_message(self.Changed())
 
     def _set_integer(self, key: str, text: str) -> None:
@@ -327,7 +327,6 @@ class WorksheetForm(VerticalScroll):
                 await self.rebuild()
         else:
             return
-        self.update_derived()
         self.post_message(self.Changed())
 
     @on(Button.Pressed)
@@ -365,22 +364,16 @@ class WorksheetForm(VerticalScroll):
     async def rebuild(self) -> None:
         """Rebuild the form from the document (after a structural change)."""
         await self.recompose()
-        self.update_derived()
-
-    def on_mount(self) -> None:
-        self.update_derived()
+        if self._member is not None:
+            self.update_derived(self._member)
 
     # --- feedback --------------------------------------------------------------------------
 
-    def update_derived(self) -> None:
-        """Show section and member properties of the worksheet as it stands, if it loads."""
+    def update_derived(self, member: Member) -> None:
+        """Show the section and member properties of the last solved member."""
+        self._member = member
         derived = self.query("#derived")
         if not derived:
-            return
-        try:
-            member = self.document.worksheet().member
-        except InputError:
-            derived.first(Static).update("")
             return
         parts = []
         for i, seg in enumerate(member.segments):

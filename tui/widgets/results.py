@@ -7,6 +7,8 @@ from typing import TYPE_CHECKING
 from rich.console import Group, RenderableType
 from rich.table import Table
 from rich.text import Text
+from textual.app import ComposeResult
+from textual.containers import Vertical
 from textual.widgets import Static
 
 from cli.output import CAUTION
@@ -17,20 +19,30 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = ["ResultsView", "summary"]
 
 
-class ResultsView(Static):
+class ResultsView(Vertical):
     """Shows an :class:`~calc.analysis.Analysis`; states ``current``, ``computing``, ``stale``
-    (the inputs have an error: these results belong to earlier inputs) or ``failed``."""
+    (the inputs have an error: these results belong to earlier inputs) or ``failed``.
+
+    A change of state redraws only the one-line banner; the results below are redrawn only
+    when new ones arrive (or dimmed when they go out of date).
+    """
 
     DEFAULT_CSS = """
     ResultsView { height: auto; padding: 0 1; }
-    ResultsView.-stale, ResultsView.-failed { color: $text-disabled; }
+    ResultsView > #banner { height: auto; }
+    ResultsView > #body { height: auto; }
+    ResultsView.-stale > #body, ResultsView.-failed > #body { color: $text-disabled; }
     """
 
     def __init__(self, id: str | None = None) -> None:  # noqa: A002 - textual's name
-        super().__init__("", id=id)
+        super().__init__(id=id)
         self.analysis: Analysis | None = None
         self.state = "empty"
         self.problem = ""
+
+    def compose(self) -> ComposeResult:
+        yield Static(self._banner(), id="banner")
+        yield Static(Text(CAUTION, style="italic"), id="body")
 
     def show(self, analysis: Analysis) -> None:
         """Show fresh results."""
@@ -38,21 +50,17 @@ class ResultsView(Static):
         self.state = "current"
         self.problem = ""
         self.set_classes("")
-        self.update(self._view())
+        self.query_one("#banner", Static).update(self._banner())
+        self.query_one("#body", Static).update(
+            Group(summary(analysis), Text(CAUTION, style="italic"))
+        )
 
     def mark(self, state: str, problem: str = "") -> None:
         """Mark the shown results ``computing``, ``stale`` or ``failed``."""
         self.state = state
         self.problem = problem
         self.set_classes(f"-{state}" if state in ("stale", "failed") else "")
-        self.update(self._view())
-
-    def _view(self) -> RenderableType:
-        parts: list[RenderableType] = [self._banner()]
-        if self.analysis is not None:
-            parts.append(summary(self.analysis))
-        parts.append(Text(CAUTION, style="italic"))
-        return Group(*parts)
+        self.query_one("#banner", Static).update(self._banner())
 
     def _banner(self) -> Text:
         if self.state == "current":
