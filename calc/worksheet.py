@@ -38,6 +38,7 @@ from calc.units import (
 __all__ = [
     "FORMAT", "MAX_BYTES", "MAX_MODES", "MAX_RITZ", "EstimateSettings", "Worksheet", "load",
     "loads",
+    "from_data",
 ]  # fmt: skip
 
 FORMAT = 1
@@ -51,6 +52,7 @@ MAX_MODES = 50
 
 _TOP_KEYS = (
     "format", "title", "notes", "member", "supports", "mass", "spring", "check", "estimate",
+    "record",
 )  # fmt: skip
 _MEMBER_KEYS = ("length", "material", "section", "added_mass", "axial_force", "segment")
 _SEGMENT_KEYS = ("length", "material", "section", "added_mass")
@@ -157,6 +159,25 @@ def loads(text: str, source: str = "<text>") -> Worksheet:
     return _parse(text, source, default_title="")
 
 
+def from_data(data: dict[str, Any], source: str = "<data>") -> Worksheet:
+    """Validate a worksheet given as plain Python data (what TOML parses to).
+
+    Parameters
+    ----------
+    data : dict
+        Tables as dicts, arrays as lists, quantities as ``"number unit"`` strings.
+    source : str
+        Where it came from, for messages.
+
+    Returns
+    -------
+    Worksheet
+    """
+    if not isinstance(data, dict):
+        raise InputError("file", type(data).__name__, "a worksheet table")
+    return _worksheet(data, source, default_title="")
+
+
 def _from_bytes(raw: bytes, source: str, default_title: str) -> Worksheet:
     if b"\x00" in raw:
         raise InputError("file", source, "a TOML text file", "it contains binary data")
@@ -257,6 +278,8 @@ def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Workshe
         data.get("spring", []), "spring", "[[spring]] entries with at and stiffness")))  # fmt: skip
     modes = _check(data.get("check", {}))
     estimate = _estimate(data.get("estimate", {}))
+    # The stored results of beamtone solve --record; calc.record reads and checks them.
+    _table(data.get("record", {}), "record", "the calculation record beamtone solve --record writes")
     member = Member(segments, left, right, masses, springs, inner, axial)
     return Worksheet(title, notes, member, modes, estimate, source, data)
 
