@@ -11,7 +11,7 @@ import math
 import re
 import tokenize
 from dataclasses import dataclass
-from functools import cache
+from functools import cache, lru_cache
 from typing import TYPE_CHECKING
 
 from calc.errors import InputError
@@ -229,6 +229,57 @@ def _canonical_units(text: str) -> str | None:
 
 
 def parse_quantity(
+    text: object,
+    dim: Dimension,
+    key: str,
+    *,
+    allow_zero: bool = False,
+    allow_negative: bool = False,
+    minimum: bool = True,
+) -> float:
+    """Parse a ``"number unit"`` string into an SI float of the given dimension.
+
+    Parameters
+    ----------
+    text : object
+        What the user wrote; anything but a string is refused.
+    dim : Dimension
+        The dimension the field needs.
+    key : str
+        Key path named in any error, e.g. ``"member.section.wall"``.
+    allow_zero, allow_negative : bool
+        Whether zero and negative values are acceptable.
+    minimum : bool
+        Whether a non-zero magnitude below the dimension's lower limit is refused
+        (False for positions, where tiny values are simply zero).
+
+    Returns
+    -------
+    float
+        The value in the SI unit of ``dim`` (``dim.si_unit``).
+
+    Raises
+    ------
+    InputError
+        On a non-string, a bad number, an unknown unit, a wrong dimension, a
+        non-finite value, or a sign the field does not allow.
+    """
+    if isinstance(text, str) and len(text) <= _MAX_TEXT:
+        # repeated solves (sizing, sweeps, the app) parse the same texts again and again
+        return _parse_cached(text, dim, key, allow_zero, allow_negative, minimum)
+    return _parse_quantity(text, dim, key, allow_zero=allow_zero,
+                           allow_negative=allow_negative, minimum=minimum)  # fmt: skip
+
+
+@lru_cache(maxsize=4096)
+def _parse_cached(
+    text: str, dim: Dimension, key: str, allow_zero: bool, allow_negative: bool, minimum: bool
+) -> float:
+    return _parse_quantity(text, dim, key, allow_zero=allow_zero,
+                           allow_negative=allow_negative, minimum=minimum)  # fmt: skip
+
+
+def _parse_quantity(
     text: object,
     dim: Dimension,
     key: str,

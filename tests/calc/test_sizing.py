@@ -203,3 +203,17 @@ def test_bad_keys(key: str, message: str) -> None:
         sizing.variation(loads(CANTILEVER), key)
     assert info.value.key == "--vary"
     assert message in info.value.message
+
+
+def test_long_sweep_interpolates_within_tolerance_of_direct_solves() -> None:
+    """Sweeps over 64 points interpolate between verified solves: every point must still
+    agree with an independent solve to the solver's accuracy (1e-6)."""
+    sheet = load(Path(__file__).resolve().parents[2] / "worksheets" / "stepped-spindle.toml")
+    result = sizing.sweep(sheet, "mass[1].at", 0.41, 0.5, 300, modes=3)
+    assert result.solved < 300  # work reused between neighbouring points
+    var = sizing.variation(sheet, "mass[1].at")
+    for i in range(0, 300, 23):
+        member = var.member(float(result.values_si[i]))
+        direct = fe.solve(member, 3).frequencies_hz
+        assert result.frequencies_hz[i] == pytest.approx(direct, rel=1e-6)
+        assert result.member_mass_kg[i] == pytest.approx(member.member_mass, rel=1e-12)
