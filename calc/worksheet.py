@@ -279,7 +279,7 @@ def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Workshe
     modes = _check(data.get("check", {}))
     estimate = _estimate(data.get("estimate", {}))
     # The stored results of beamtone solve --record; calc.record reads and checks them.
-    _table(data.get("record", {}), "record", "the calculation record beamtone solve --record writes")
+    _table(data.get("record", {}), "record", "the record beamtone solve --record writes")
     member = Member(segments, left, right, masses, springs, inner, axial)
     return Worksheet(title, notes, member, modes, estimate, source, data)
 

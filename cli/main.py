@@ -67,6 +67,39 @@ def build_parser() -> argparse.ArgumentParser:
         help="force a mesh of about N elements instead of the automatic one",
     )
     solve.add_argument("--json", action="store_true", help="print one JSON object")
+    solve.add_argument(
+        "--record", action="store_true",
+        help="store the results in the worksheet's [record] table (comments kept)",
+    )  # fmt: skip
+
+    verify = commands.add_parser(
+        "verify",
+        help="solve again and check the results stored by solve --record",
+        description=(
+            "Solve a worksheet again and compare with its [record]: exit 0 when every stored "
+            "result reproduces within tolerance and the inputs are unchanged, 1 when not (or "
+            "when there is no record), 2 on bad input."
+        ),
+    )
+    verify.add_argument("file", metavar="FILE")
+    verify.add_argument("--json", action="store_true", help="print one JSON object")
+
+    report = commands.add_parser(
+        "report",
+        help="write a calculation record for the design file (Markdown, or one HTML file)",
+        description=(
+            "Write a calculation record of a worksheet: inputs, methods and formulas, results, "
+            "cross-checks, groups, a figure of the first mode shapes, warnings and references."
+        ),
+    )
+    report.add_argument("file", metavar="FILE")
+    report.add_argument("-o", "--output", required=True, metavar="NAME.md", help="file to write")
+    report.add_argument("--html", action="store_true", help="one self-contained HTML file")
+    report.add_argument("--excitation", metavar="FREQ", help='add margins, e.g. "1480 rpm"')
+    report.add_argument("--harmonics", metavar="1,2", help="excitation orders (default 1)")
+    report.add_argument("--margin", metavar="PCT", help="band half-width (default 20%%)")
+    report.add_argument("--modes", type=_positive_int(50, "modes"), help="default: worksheet's")
+    report.add_argument("--elements", type=_positive_int(200_000, "elements"), metavar="N")
 
     groups = commands.add_parser(
         "groups",
@@ -151,10 +184,17 @@ def _solve(args: argparse.Namespace) -> int:
     from cli import output
 
     analysis = analyse(load(args.file), args.modes, args.elements)
+    note = None
+    if args.record:
+        from cli import record_cmd
+
+        note = record_cmd.store(args.file, analysis, args.elements)
     if args.json:
         output.write_json(output.solve_json(analysis))
     else:
         sys.stdout.write(output.solve_text(analysis))
+    if note:
+        (sys.stderr if args.json else sys.stdout).write(f"{note}\n")
     return EXIT_OK
 
 
@@ -174,6 +214,18 @@ def _sweep(args: argparse.Namespace) -> int:
     from cli import sizing_cmd
 
     return sizing_cmd.sweep(args)
+
+
+def _verify(args: argparse.Namespace) -> int:
+    from cli import record_cmd
+
+    return record_cmd.verify(args)
+
+
+def _report(args: argparse.Namespace) -> int:
+    from cli import record_cmd
+
+    return record_cmd.report(args)
 
 
 _COMMANDS = ("solve", "groups", "size", "sweep", "verify", "report")
@@ -226,7 +278,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         return EXIT_OK
     from calc.errors import InputError
 
-    handlers = {"solve": _solve, "groups": _groups, "size": _size, "sweep": _sweep}
+    handlers = {
+        "solve": _solve, "groups": _groups, "size": _size, "sweep": _sweep,
+        "verify": _verify, "report": _report,
+    }  # fmt: skip
     try:
         return handlers[args.command](args)
     except InputError as exc:
