@@ -269,9 +269,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     parser = build_parser()
     args = parser.parse_args(arguments)
     if args.version:
-        from importlib.metadata import version
+        from calc.record import tool_version
 
-        print(f"beamtone {version('beamtone')}")
+        print(f"beamtone {tool_version()}")
         return EXIT_OK
     if args.command is None:
         parser.print_help()

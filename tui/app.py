@@ -84,13 +84,21 @@ class BeamtoneApp(App[None]):
             self._save(Path(path))
 
     def _save(self, path: Path) -> bool:
+        bench = self.workbench
+        view = bench.query_one(ResultsView)
+        current = view.analysis if view.state == "current" and not bench.pending else None
         try:
-            saved = self.document.save(path)
+            saved = self.document.save(path, current)
         except InputError as exc:
             self.notify(f"not saved: {exc.message}", severity="error", timeout=8)
             return False
         self.refresh_title()
-        self.notify(f"saved {saved}")
+        recorded = (
+            "with its calculation record"
+            if current is not None
+            else "(no record: results not current)"
+        )
+        self.notify(f"saved {saved} {recorded}")
         return True
 
     def action_open(self) -> None:

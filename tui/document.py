@@ -271,8 +271,17 @@ class Document:
 
     # --- saving ----------------------------------------------------------------------------
 
-    def save(self, path: str | Path | None = None) -> Path:
+    def save(self, path: str | Path | None = None, analysis: Any = None) -> Path:
         """Validate, then write atomically; the document is then unmodified.
+
+        Parameters
+        ----------
+        path : str or Path, optional
+            Where to write (default: the file it came from).
+        analysis : calc.analysis.Analysis, optional
+            Results of exactly these inputs: written into the worksheet as its calculation
+            record (``[record]``).  Without them, an old record is removed, so a saved
+            worksheet never carries results of other inputs.
 
         Raises
         ------
@@ -280,11 +289,18 @@ class Document:
             When the worksheet does not validate (nothing is written), or the file
             cannot be written (the old file stays intact).
         """
+        from calc.record import build_record, inputs_digest, with_record
+
         target = Path(path).expanduser() if path is not None else self.path
         if target is None:
             raise InputError("file", None, "a file name to save to (save as)")
+        if "record" in self.doc:
+            del self.doc["record"]
         text = self.text()
-        loads(text, str(target))
+        sheet = loads(text, str(target))
+        if analysis is not None and inputs_digest(analysis.sheet.data) == inputs_digest(sheet.data):
+            text = with_record(text, build_record(analysis))
+            self.doc = tomlkit.parse(text)
         write_atomic(target, text)
         self.path = target
         self.modified = False

@@ -191,10 +191,18 @@ async def test_save_reopen_and_compare(bar: Path, tmp_path: Path) -> None:
         edited = app.document.plain()
     text = bar.read_text()
     assert "# comment kept on save" in text
-    assert Document.open(bar).plain() == edited
+    reopened = Document.open(bar).plain()
+    assert "record" in reopened  # saved with its calculation record
+    assert {k: v for k, v in reopened.items() if k != "record"} == {
+        k: v for k, v in edited.items() if k != "record"
+    }
     sheet = load(bar)
     assert sheet.member.length == pytest.approx(0.75)
     assert len(sheet.member.springs) == 1
+    from calc.record import verify
+
+    result = verify(sheet)
+    assert result is not None and result.passed  # the stored results reproduce
 
 
 @sync
