@@ -9,7 +9,13 @@ from __future__ import annotations
 
 import argparse
 import math
+import os
 import sys
+
+# The matrices here are small and banded: threaded BLAS only adds overhead (measured in
+# benchmarks/run.py).  Set before numpy loads; the user's own setting wins.
+os.environ.setdefault("OPENBLAS_NUM_THREADS", "1")
+os.environ.setdefault("OMP_NUM_THREADS", "1")
 from collections.abc import Callable, Sequence
 
 __all__ = ["main", "run"]
