@@ -94,21 +94,20 @@ class TemplateDialog(ModalScreen[Template | None]):
         self.dismiss(TEMPLATES[int(event.option.id or 0)])
 
 
-HELP = """\
-beamtone: natural frequencies of a beam-like member, early in design.
-
-Fill in the steps on the left from top to bottom: the member (length or segments, material,
-section), its ends, what it carries, the assumed shape.  Every quantity takes a number and a
-unit, in any unit of the right kind (mm, in, kN/m, lbf/in, ksi, lb/in^3, ...); its SI value
-shows beside it, or what is wrong.  Results on the right follow as you type; while an entry
-is wrong they are marked OUT OF DATE.
-
-keys
-  ctrl+s   save           f2      save as        ctrl+o   open        ctrl+n   new
-  f5       size a value   f6      groups         f1       this help   ctrl+q   quit
-  tab / shift+tab  next / previous field; the mouse works too
-
-"""
+HELP = (
+    "beamtone: natural frequencies of a beam-like member, early in design.\n\n"
+    "Fill in the steps on the left from top to bottom: the member (length or segments, "
+    "material, section), its ends, what it carries, the assumed shape. Every quantity takes a "
+    "number and a unit, in any unit of the right kind (mm, in, kN/m, lbf/in, ksi, lb/in^3, "
+    "...); its SI value shows beside it, or what is wrong. Results on the right follow as you "
+    "type; while an entry is wrong they are marked OUT OF DATE.\n\n"
+    "keys\n"
+    "  ctrl+s  save          f2      save as\n"
+    "  ctrl+o  open          ctrl+n  new from a template\n"
+    "  f5      size a value  f6      dimensionless groups\n"
+    "  f1      this help     ctrl+q  quit\n"
+    "  tab, shift+tab: next and previous field; the mouse works too\n\n"
+)
 
 
 class HelpDialog(ModalScreen[None]):

@@ -82,6 +82,7 @@ class SizingScreen(Screen[tuple[str, str] | None]):
     def on_mount(self) -> None:
         table = self.query_one("#solutions", DataTable)
         table.add_columns("value", "f1 [Hz]", "member mass [kg]", "note")
+        self.query_one("#vary", Select).focus()
 
     def action_back(self) -> None:
         self.dismiss(None)
