@@ -43,7 +43,6 @@ from numbers import Integral, Real
 from typing import TYPE_CHECKING
 
 import numpy as np
-from scipy.optimize import brentq
 
 if TYPE_CHECKING:  # pragma: no cover
     from calc.model import Member
@@ -188,17 +187,42 @@ def _check_ratio(name: str, value: object) -> float:
 
 
 def _refine(residual: _Residual, a: float, b: float) -> float:
-    """Refine a bracketed root of ``residual`` on ``[a, b]`` with Brent's method."""
-    return float(
-        brentq(
-            lambda x: float(residual(np.float64(x))),
-            a,
-            b,
-            xtol=_XTOL,
-            rtol=_RTOL,
-            maxiter=_MAXITER,
-        )
-    )
+    """Refine a bracketed root of ``residual`` on ``[a, b]``.
+
+    Regula falsi with the Anderson-Bjorck step (superlinear, and the bracket is kept at
+    every step), down to a bracket of ``_XTOL + _RTOL |x|``; a plain bisection step is taken
+    whenever the interpolated point would not shrink the bracket enough.  Written here
+    rather than taken from scipy.optimize to keep start-up light.
+    """
+    fa = float(residual(np.float64(a)))
+    fb = float(residual(np.float64(b)))
+    if fa == 0.0:
+        return a
+    if fb == 0.0:
+        return b
+    for _ in range(_MAXITER):
+        width = b - a
+        if abs(width) <= _XTOL + _RTOL * max(abs(a), abs(b)):
+            break
+        x = b - fb * width / (fb - fa) if fb != fa else 0.5 * (a + b)
+        if (
+            not (min(a, b) < x < max(a, b))
+            or abs(x - a) < 1e-3 * abs(width)
+            or (abs(b - x) < 1e-3 * abs(width))
+        ):
+            x = 0.5 * (a + b)
+        fx = float(residual(np.float64(x)))
+        if fx == 0.0:
+            return x
+        if (fx > 0.0) == (fb > 0.0):
+            # the new point replaces b; keep a, and scale fa down (Anderson-Bjorck)
+            m = 1.0 - fx / fb
+            fa = fa * (m if m > 0.0 else 0.5)
+            b, fb = x, fx
+        else:
+            a, fa = b, fb
+            b, fb = x, fx
+    return 0.5 * (a + b)
 
 
 def _scan_roots(residual: _Residual, grid: Iterator[np.ndarray], count: int) -> list[float]:

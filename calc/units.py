@@ -127,7 +127,12 @@ def registry() -> pint.UnitRegistry:
     """
     import pint
 
-    return pint.UnitRegistry()
+    # pint caches its parsed definitions on disk (a tenth of the start-up time once cached);
+    # where the cache folder cannot be used, the registry is built from scratch.
+    try:
+        return pint.UnitRegistry(cache_folder=":auto:")
+    except (OSError, ValueError, TypeError, ImportError):
+        return pint.UnitRegistry()
 
 
 @cache

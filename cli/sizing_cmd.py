@@ -8,6 +8,7 @@ import sys
 from pathlib import Path
 from typing import Any
 
+from calc.errors import InputError
 from cli.output import CAUTION, write_json
 
 __all__ = ["size", "sweep"]
@@ -144,6 +145,10 @@ def sweep(args: argparse.Namespace) -> int:
     sheet = load(args.file)
     var = sizing.variation(sheet, args.vary)
     low, high = _range(args, var)
+    if args.vary2 is not None:
+        return _sweep2(args, sheet, var, low, high)
+    if args.between2 is not None:
+        raise InputError("--between2", " ".join(args.between2), "--vary2 KEY as well")
     result = sizing.sweep(sheet, args.vary, low, high, args.points, args.modes)
     if args.json:
         write_json(
@@ -186,4 +191,54 @@ def sweep(args: argparse.Namespace) -> int:
         f"({result.solved} finite-element solves; other points scaled exactly by the groups)"
     )
     sys.stdout.write("\n".join(out) + "\n")
+    return 0
+
+
+def _sweep2(args: argparse.Namespace, sheet: Any, var: Any, low: float, high: float) -> int:
+    from calc import sizing
+    from calc.units import parse_quantity
+
+    if args.between2 is None:
+        raise InputError("--vary2", args.vary2, "a range for it too: --between2 LOW HIGH")
+    var2 = sizing.variation(sheet, args.vary2)
+    low2, high2 = (
+        parse_quantity(t, var2.dimension, "--between2", allow_zero=True, allow_negative=True,
+                       minimum=False)
+        for t in args.between2
+    )  # fmt: skip
+    result = sizing.sweep2(
+        sheet, (args.vary, low, high, args.points), (args.vary2, low2, high2, args.points2),
+        args.modes,
+    )  # fmt: skip
+    g1, g2 = result.values_si
+    modes = result.frequencies_hz.shape[2]
+    if args.json:
+        write_json(
+            {
+                "variables": list(result.variables),
+                "units": list(result.units),
+                "points": [
+                    {
+                        "values_si": [float(g1[i]), float(g2[j])],
+                        "frequencies_hz": [float(f) for f in result.frequencies_hz[i, j]],
+                        "member_mass_kg": float(result.member_mass_kg[i, j]),
+                    }
+                    for i in range(len(g1))
+                    for j in range(len(g2))
+                ],
+                "solved": result.solved,
+            }
+        )
+        return 0
+    header = [f"{args.vary} [{var.unit}]", f"{args.vary2} [{var2.unit}]"]
+    header += [f"f{i} [Hz]" for i in range(1, modes + 1)] + ["member mass [kg]"]
+    writer = csv.writer(sys.stdout, lineterminator="\n")
+    writer.writerow(header)
+    for i in range(len(g1)):
+        for j in range(len(g2)):
+            writer.writerow(
+                [var.text(float(g1[i])).split()[0], var2.text(float(g2[j])).split()[0]]
+                + [f"{f:.8g}" for f in result.frequencies_hz[i, j]]
+                + [f"{result.member_mass_kg[i, j]:.6g}"]
+            )
     return 0
