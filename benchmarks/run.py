@@ -95,6 +95,97 @@ def bench_solves(repeat: int) -> list[tuple[str, float, float | None]]:
     return rows
 
 
+def _run_seconds(command: list[str]) -> float:
+    import subprocess
+
+    start = time.perf_counter()
+    subprocess.run(command, check=True, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    return time.perf_counter() - start
+
+
+def bench_cold(runs: int) -> list[tuple[str, float, float | None]]:
+    """Cold ``beamtone solve --json`` per example against the bare numeric imports."""
+    python = sys.executable
+    bare = [python, "-c", "import numpy, scipy.linalg, pint"]
+    rows = []
+    env_cli = [python, "-m", "cli.main", "solve"]
+    for path in sorted((ROOT / "worksheets").glob("*.toml")):
+        cli_times, bare_times = [], []
+        for _ in range(runs):  # interleaved, so both see the same machine state
+            bare_times.append(_run_seconds(bare))
+            cli_times.append(_run_seconds([*env_cli, str(path), "--json"]))
+        ratio = statistics.median(cli_times) / statistics.median(bare_times)
+        rows.append((f"cold solve --json / bare import of numpy, scipy.linalg, pint: {path.name}",
+                     ratio, 1.5, "ratio"))  # fmt: skip
+    return rows  # type: ignore[return-value]
+
+
+def bench_warm_ratio(repeat: int) -> list[tuple[str, float, float | None, str]]:
+    """Warm fe.solve of the typical worksheet against the bare eigen solve it needs."""
+    import scipy.sparse.linalg
+
+    from calc import fe
+    from calc.worksheet import loads
+
+    member = loads(ten_attachment_text()).member
+    result = fe.solve(member, 5)
+    size = result.elements
+    mesh = fe.build_mesh(member, size)
+    system = fe.assemble(member, mesh)
+    shift = -fe._shift_scale(member)  # noqa: SLF001 - the same shift the solver uses
+
+    def bare() -> None:
+        scipy.sparse.linalg.eigsh(system.K.tocsc(), k=5, M=system.M.tocsc(), sigma=shift)
+
+    def dense() -> None:
+        fe.default_eigensolver(system.K, system.M, 5, shift)
+
+    t_solve = median_time(lambda: fe.solve(member, 5), repeat)
+    t_bare = min(median_time(bare, repeat), median_time(dense, repeat))
+    return [
+        ("warm fe.solve, 11 attachments, 5 modes, 1e-6 accuracy [s]", t_solve, None, "s"),
+        ("warm fe.solve / fastest bare eigen solve of its converged matrices", t_solve / t_bare,
+         3.0, "ratio"),
+    ]  # fmt: skip
+
+
+def bench_growth(sizes: list[int]) -> list[tuple[str, float, float | None, str]]:
+    """fe.solve time against the number of attachments, with the fitted growth exponent."""
+    import numpy as np
+    import scipy.linalg
+
+    from calc import fe
+    from calc.materials import LIBRARY
+    from calc.model import Member, PointMass, Segment, Spring
+    from calc.sections import build_section
+
+    section = build_section("round-tube", {"outside_diameter": 0.06, "wall": 0.004})
+    rows = []
+    times = []
+    for n in sizes:
+        xs = np.linspace(0.0, 10.0, n + 2)[1:-1]
+        member = Member(
+            (Segment(10.0, LIBRARY["steel"], section),), "pinned", "pinned",
+            tuple(PointMass(float(x), 0.05) for x in xs[::2]),
+            tuple(Spring(float(x), 500.0) for x in xs[1::2]),
+        )  # fmt: skip
+        t = median_time(lambda m=member: fe.solve(m, 5), 1 if n >= 1000 else 3)
+        times.append(t)
+        result = fe.solve(member, 5)
+        line = f"fe.solve with {n} attachments ({result.degrees_of_freedom} DOF)"
+        if result.degrees_of_freedom <= 2500:
+            mesh = fe.build_mesh(member, result.elements)
+            system = fe.assemble(member, mesh)
+            K, M = system.K.toarray(), system.M.toarray()
+            t_dense = median_time(lambda K=K, M=M: scipy.linalg.eigh(K, M), 1)
+            line += f"; full dense eigh of the same matrices {t_dense * 1000:.0f} ms"
+        rows.append((line, t, None, "s"))
+    slope = float(np.polyfit(np.log(sizes[1:]), np.log(times[1:]), 1)[0])
+    rows.append((f"growth exponent of solve time, {sizes[1]} to {sizes[-1]} attachments", slope,
+                 1.2, "exponent"))  # fmt: skip
+    return rows
+
+
 def bench_sizing(repeat: int, sweep_points: int) -> list[tuple[str, float, float | None]]:
     from calc import sizing
     from calc.worksheet import load
@@ -108,6 +199,23 @@ def bench_sizing(repeat: int, sweep_points: int) -> list[tuple[str, float, float
         (f"{sweep_points}-point sweep, uniform bar length (scaled by groups)",
          median_time(lambda: sizing.sweep(bar, "member.length", 0.3, 1.0, sweep_points), 1), 1.0),
     ]  # fmt: skip
+    mast = load(ROOT / "worksheets" / "sensor-mast.toml")
+    side = 100 if sweep_points >= 2000 else 20
+    rows.append(
+        (
+            f"{side}x{side} two-way sweep, mast length x tube diameter",
+            median_time(
+                lambda: sizing.sweep2(
+                    mast,
+                    ("member.length", 0.8, 1.6, side),
+                    ("member.section.outside_diameter", 0.03, 0.07, side),
+                    3,
+                ),
+                1,
+            ),
+            5.0,
+        )
+    )
     rows.append((f"{sweep_points}-point sweep with attachments (spindle wheel-hub position)",
                  median_time(lambda: sizing.sweep(spindle, "mass[1].at", 0.41, 0.5, sweep_points),
                              1), 1.0))  # fmt: skip
@@ -157,6 +265,35 @@ def bench_app(edits: int) -> list[tuple[str, float, float | None]]:
     ]  # fmt: skip
 
 
+def import_times() -> list[tuple[str, float, float | None, str]]:
+    """Start-up: what ``beamtone --help`` and a solve import (python -X importtime)."""
+    import subprocess
+
+    rows = []
+    for label, code in (
+        ("import for beamtone --help", "import cli.main"),
+        ("import for beamtone solve", "import cli.main, calc.analysis, calc.worksheet, cli.output"),
+    ):
+        out = subprocess.run(
+            [sys.executable, "-X", "importtime", "-c", code],
+            capture_output=True, text=True, cwd=ROOT, check=True,
+        ).stderr  # fmt: skip
+        total = 0.0
+        heavy = set()
+        for line in out.splitlines():
+            if line.startswith("import time:") and "|" in line:
+                parts = line.split("|")
+                name = parts[2].strip()
+                if not parts[2].startswith("  ") and parts[1].strip().isdigit():
+                    total += int(parts[1]) / 1e6
+                for mod in ("sympy", "textual", "matplotlib", "numpy", "scipy", "pint"):
+                    if name == mod:
+                        heavy.add(mod)
+        note = ", ".join(sorted(heavy)) or "no numpy, scipy, pint, sympy or textual"
+        rows.append((f"{label} (loads: {note})", total, None, "s"))
+    return rows
+
+
 def machine() -> str:
     import numpy
     import scipy
@@ -173,9 +310,13 @@ def main() -> int:
     parser.add_argument("--output", help="results file (default: benchmarks/results.md, full runs)")
     args = parser.parse_args()
     repeat = 2 if args.quick else 7
-    rows = bench_solves(repeat)
-    rows += bench_sizing(repeat, 100 if args.quick else 2000)
-    rows += bench_app(3 if args.quick else 15)
+    rows = [(*r, "s") for r in bench_solves(repeat)]
+    rows += bench_cold(1 if args.quick else 5)
+    rows += bench_warm_ratio(repeat)
+    rows += bench_growth([10, 30, 100] if args.quick else [10, 30, 100, 300, 1000, 3000, 5000])
+    rows += [(*r, "s") for r in bench_sizing(repeat, 100 if args.quick else 2000)]
+    rows += [(*r, "s") for r in bench_app(3 if args.quick else 15)]
+    rows += import_times()
     lines = [
         "# beamtone benchmark results",
         "",
@@ -186,10 +327,15 @@ def main() -> int:
         "| benchmark | median | goal | met |",
         "|---|---:|---:|---|",
     ]
-    for name, seconds, goal in rows:
-        met = "" if goal is None else ("yes" if seconds <= goal else "NO")
-        goal_text = "" if goal is None else f"{goal * 1000:.0f} ms"
-        lines.append(f"| {name} | {seconds * 1000:.1f} ms | {goal_text} | {met} |")
+    for name, value, goal, kind in rows:
+        met = "" if goal is None else ("yes" if value <= goal else "NO")
+        if kind == "s":
+            shown = f"{value * 1000:.1f} ms"
+            goal_text = "" if goal is None else f"{goal * 1000:.0f} ms"
+        else:
+            shown = f"{value:.2f}" + ("x" if kind == "ratio" else "")
+            goal_text = "" if goal is None else f"{goal:g}" + ("x" if kind == "ratio" else "")
+        lines.append(f"| {name} | {shown} | {goal_text} | {met} |")
     text = "\n".join(lines) + "\n"
     sys.stdout.write(text)
     output = args.output or (None if args.quick else str(ROOT / "benchmarks" / "results.md"))
