@@ -48,10 +48,11 @@ class Analysis:
     def warnings(self) -> tuple[str, ...]:
         """Warnings of every method, the bracket's failure first if it failed."""
         out = list(self.modes.warnings)
-        if self.lower_bound.uncertainty > 1e-6:
+        if self.lower_bound.uncertainty > 1e-4:
             out.append(
-                "the member is nearly free to move as a rigid body (ill-conditioned flexibility): "
-                f"Dunkerley's bound is uncertain by about {self.lower_bound.uncertainty:.0e}"
+                "the flexibility is ill-conditioned (springs very stiff or very soft against "
+                "the member): Dunkerley's bound is uncertain by about "
+                f"{self.lower_bound.uncertainty:.0e}"
             )
         if not self.bracket.inside:
             out.insert(0, self.bracket.message)

@@ -293,33 +293,7 @@ def _parse_quantity(
     allow_negative: bool = False,
     minimum: bool = True,
 ) -> float:
-    """Parse a ``"number unit"`` string into an SI float of the given dimension.
-
-    Parameters
-    ----------
-    text : object
-        What the user wrote; anything but a string is refused.
-    dim : Dimension
-        The dimension the field needs.
-    key : str
-        Key path named in any error, e.g. ``"member.section.wall"``.
-    allow_zero, allow_negative : bool
-        Whether zero and negative values are acceptable.
-    minimum : bool
-        Whether a non-zero magnitude below the dimension's lower limit is refused
-        (False for positions, where tiny values are simply zero).
-
-    Returns
-    -------
-    float
-        The value in the SI unit of ``dim`` (``dim.si_unit``).
-
-    Raises
-    ------
-    InputError
-        On a non-string, a bad number, an unknown unit, a wrong dimension, a
-        non-finite value, or a sign the field does not allow.
-    """
+    """The uncached work of :func:`parse_quantity` (same arguments and result)."""
     expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
     if isinstance(text, bool) or not isinstance(text, str):
         hint = f"a {type(text).__name__} is not a quantity: write it as a quoted string"

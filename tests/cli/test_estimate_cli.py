@@ -13,7 +13,7 @@ from pathlib import Path
 
 import pytest
 
-from cli.main import main
+from tests.cli.inprocess import run
 
 ROOT = Path(__file__).resolve().parents[2]
 
@@ -33,12 +33,6 @@ right = "free"
 [estimate]
 shape = {shape}
 """
-
-
-def run(capsys: pytest.CaptureFixture[str], *args: str) -> tuple[int, str, str]:
-    status = main(list(args))
-    out, err = capsys.readouterr()
-    return status, out, err
 
 
 def test_json_carries_every_method(capsys: pytest.CaptureFixture[str]) -> None:

@@ -8,15 +8,10 @@ from pathlib import Path
 import pytest
 
 from cli.main import main
+from tests.cli.inprocess import run
 
 ROOT = Path(__file__).resolve().parents[2]
 MAST = str(ROOT / "worksheets" / "sensor-mast.toml")
-
-
-def run(capsys: pytest.CaptureFixture[str], *args: str) -> tuple[int, str, str]:
-    status = main(list(args))
-    out, err = capsys.readouterr()
-    return status, out, err
 
 
 def test_beam_variable_list_json(capsys: pytest.CaptureFixture[str]) -> None:

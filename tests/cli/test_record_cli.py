@@ -10,18 +10,9 @@ import pytest
 import tomlkit
 
 from calc.worksheet import replace_value
-from cli.main import main
+from tests.cli.inprocess import run
 
 ROOT = Path(__file__).resolve().parents[2]
-
-
-def run(capsys: pytest.CaptureFixture[str], *args: str) -> tuple[int, str, str]:
-    try:
-        status = main(list(args))
-    except SystemExit as exc:  # argparse errors
-        status = int(exc.code or 0)
-    out, err = capsys.readouterr()
-    return status, out, err
 
 
 @pytest.fixture

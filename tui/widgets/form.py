@@ -44,6 +44,24 @@ _SHAPE_DEFAULTS = {
     "i-beam": {"width": "100 mm", "depth": "200 mm", "flange": "8 mm", "web": "6 mm"},
     "properties": {"area": "450 mm^2", "second_moment": "1e5 mm^4"},
 }
+# The fields of each attachment row: (key, label, dimension, QuantityField options).
+_ROW_FIELDS: dict[str, tuple[tuple[str, str, Any, dict[str, bool]], ...]] = {
+    "mass": (
+        ("at", "at", LENGTH, {"position": True}),
+        ("mass", "mass", MASS, {"allow_zero": True}),
+        ("rotary_inertia", "rot. inertia", ROTARY_INERTIA, {"allow_zero": True, "optional": True}),
+    ),
+    "spring": (
+        ("at", "at", LENGTH, {"position": True}),
+        ("stiffness", "stiffness", STIFFNESS, {"allow_zero": True, "optional": True}),
+        (
+            "rotational_stiffness",
+            "rot. stiffness",
+            ROTATIONAL_STIFFNESS,
+            {"allow_zero": True, "optional": True},
+        ),
+    ),
+}
 _LABELS = {
     "outside_diameter": "outside dia.",
     "second_moment": "second moment",
@@ -152,45 +170,8 @@ class WorksheetForm(VerticalScroll):
             position=True,
             optional=True,
         )
-        for i, row in enumerate(doc.rows("mass")):
-            key = f"mass[{i}]"
-            with Horizontal(classes="rowhead"):
-                yield Label(f"mass {i}", classes="rowtitle")
-                yield Button("remove", id=f"remove-mass-{i}", classes="small")
-            yield QuantityField(f"{key}.at", "at", LENGTH, _text(row.get("at")), position=True)
-            yield QuantityField(
-                f"{key}.mass", "mass", MASS, _text(row.get("mass")), allow_zero=True
-            )
-            yield QuantityField(
-                f"{key}.rotary_inertia",
-                "rot. inertia",
-                ROTARY_INERTIA,
-                _text(row.get("rotary_inertia")),
-                allow_zero=True,
-                optional=True,
-            )
-        for i, row in enumerate(doc.rows("spring")):
-            key = f"spring[{i}]"
-            with Horizontal(classes="rowhead"):
-                yield Label(f"spring {i}", classes="rowtitle")
-                yield Button("remove", id=f"remove-spring-{i}", classes="small")
-            yield QuantityField(f"{key}.at", "at", LENGTH, _text(row.get("at")), position=True)
-            yield QuantityField(
-                f"{key}.stiffness",
-                "stiffness",
-                STIFFNESS,
-                _text(row.get("stiffness")),
-                allow_zero=True,
-                optional=True,
-            )
-            yield QuantityField(
-                f"{key}.rotational_stiffness",
-                "rot. stiffness",
-                ROTATIONAL_STIFFNESS,
-                _text(row.get("rotational_stiffness")),
-                allow_zero=True,
-                optional=True,
-            )
+        for table in ("mass", "spring"):
+            yield from self._rows(table)
         with Horizontal(classes="buttons"):
             yield Button("+ mass", id="add-mass", classes="small")
             yield Button("+ spring", id="add-spring", classes="small")
@@ -210,6 +191,16 @@ class WorksheetForm(VerticalScroll):
             "e.g. 4 (blank: none)",
         )
         yield TextField("check.modes", "modes", _text(doc.get("check.modes")), "5 (default)")
+
+    def _rows(self, table: str) -> ComposeResult:
+        """The entries of ``[[mass]]`` or ``[[spring]]``, each with a remove button."""
+        for i, row in enumerate(self.document.rows(table)):
+            with Horizontal(classes="rowhead"):
+                yield Label(f"{table} {i}", classes="rowtitle")
+                yield Button("remove", id=f"remove-{table}-{i}", classes="small")
+            for name, label, dim, options in _ROW_FIELDS[table]:
+                value = _text(row.get(name))
+                yield QuantityField(f"{table}[{i}].{name}", label, dim, value, **options)
 
     def _material(self) -> ComposeResult:
         value = self.document.get("member.material")
