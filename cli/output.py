@@ -5,6 +5,7 @@ from __future__ import annotations
 import json
 import math
 import sys
+import textwrap
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -46,7 +47,7 @@ def solve_text(analysis: Analysis) -> str:
     attached = sum(p.mass for p in member.masses)
     mass_note = f", {_fmt(attached, 4)} kg attached" if member.masses else ""
     lines.append(
-        f"  member    {_fmt(member.length, 5)} m, {n_seg} segment{'s' if n_seg > 1 else ''}, "
+        f"  member    {member.length:.6g} m, {n_seg} segment{'s' if n_seg > 1 else ''}, "
         f"{_fmt(member.member_mass, 4)} kg{mass_note}"
     )
     lines.append(f"  ends      {_ends(member)}")
@@ -92,7 +93,8 @@ def solve_text(analysis: Analysis) -> str:
         lines.append("  " + "   ".join(cells))
     lines.append("")
     if check is not None:
-        lines.append(f"  handbook  {check.case}: {check.source}")
+        lines.append(f"  handbook  {check.case}")
+        lines += [f"            {part}" for part in textwrap.wrap(check.source, 78)]
     lines.append(
         f"  checks    mass orthogonality {result.mass_orthogonality:.1e}, stiffness "
         f"orthogonality {result.stiffness_orthogonality:.1e}; K {result.stiffness_definiteness}, "
