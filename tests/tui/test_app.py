@@ -10,7 +10,7 @@ from pathlib import Path
 from typing import Any
 
 import pytest
-from textual.widgets import Input, Select
+from textual.widgets import Button, Input, Select
 
 from calc.worksheet import load
 from tui.app import BeamtoneApp
@@ -76,6 +76,15 @@ def finished(app: BeamtoneApp) -> int:
     return app.workbench.finished
 
 
+async def press(pilot, app: BeamtoneApp, selector: str) -> None:  # noqa: ANN001
+    """Press a button of the current screen (scrolled into view first, then clicked)."""
+    button = app.screen.query_one(selector, Button)
+    button.scroll_visible(animate=False)
+    await pilot.pause(0.05)
+    button.press()
+    await pilot.pause(0.2)
+
+
 async def type_into(pilot, app: BeamtoneApp, dom_id: str, text: str) -> None:  # noqa: ANN001
     field = app.workbench.query_one(f"#{dom_id}", Input)
     field.value = text
@@ -136,12 +145,12 @@ async def test_add_and_remove_a_mass(bar: Path) -> None:
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 60)) as pilot:
         bare = (await settled(pilot, app)).analysis.modes.modes[0].frequency_hz
-        await pilot.click("#add-mass")
+        await press(pilot, app, "#add-mass")
         await pilot.pause(0.2)
         assert len(app.document.rows("mass")) == 1
         loaded = (await settled(pilot, app)).analysis.modes.modes[0].frequency_hz
         assert loaded < bare
-        await pilot.click("#remove-mass-0")
+        await press(pilot, app, "#remove-mass-0")
         await pilot.pause(0.2)
         assert app.document.rows("mass") == []
         again = (await settled(pilot, app)).analysis.modes.modes[0].frequency_hz
@@ -161,14 +170,14 @@ async def test_size_a_dimension_and_apply_it(bar: Path) -> None:
         screen.query_one("#low", Input).value = "4 mm"
         screen.query_one("#high", Input).value = "30 mm"
         screen.query_one("#frequency", Input).value = "20 Hz"
-        await pilot.click("#solve")
+        await press(pilot, app, "#solve")
         for _ in range(100):
             await pilot.pause(0.05)
             if screen.result is not None:
                 break
         assert screen.result is not None and screen.result.recommended == 0
         n = finished(app)
-        await pilot.click("#apply")
+        await press(pilot, app, "#apply")
         view = await settled(pilot, app, n)
         assert app.screen is app.workbench
         assert view.analysis.modes.modes[0].frequency_hz == pytest.approx(20.0, rel=1e-5)
@@ -182,7 +191,7 @@ async def test_save_reopen_and_compare(bar: Path, tmp_path: Path) -> None:
         await settled(pilot, app)
         n = finished(app)
         await type_into(pilot, app, "f-member-length", "750 mm")
-        await pilot.click("#add-spring")
+        await press(pilot, app, "#add-spring")
         await pilot.pause(0.2)
         await settled(pilot, app, n)
         await pilot.press("ctrl+s")
@@ -214,7 +223,7 @@ async def test_quit_with_unsaved_changes_asks(bar: Path) -> None:
         await pilot.press("ctrl+q")
         await pilot.pause(0.2)
         assert isinstance(app.screen, UnsavedDialog)
-        await pilot.click("#cancel")
+        await press(pilot, app, "#cancel")
         await pilot.pause(0.1)
         assert app.is_running and app.screen is app.workbench
     assert bar.read_text() == BAR  # nothing was written
@@ -241,7 +250,7 @@ async def test_damaged_file_keeps_the_current_worksheet(bar: Path, tmp_path: Pat
         await pilot.pause(0.2)
         assert isinstance(app.screen, PathDialog)
         app.screen.query_one("#path", Input).value = str(damaged)
-        await pilot.click("#ok")
+        await press(pilot, app, "#ok")
         await pilot.pause(0.3)
         assert app.document.path == bar
         assert app.screen is app.workbench
