@@ -143,6 +143,31 @@ class Variation:
         if parts[-1] == "length":
             self._follow_the_end(data, value)
 
+    def rewrite(self, text: str, value: float) -> str:
+        """Worksheet text with the quantity set to ``value`` [SI] in the worksheet's unit,
+        comments and layout kept; masses and springs at the right end follow a change of
+        length, exactly as the solves did.  The result is checked to load."""
+        import tomlkit
+
+        from calc.worksheet import loads
+
+        document = tomlkit.parse(text)
+        plain = document.unwrap()
+        self.apply(plain, value)
+        node: Any = document
+        parts = key_path(self.key)
+        for part in parts[:-1]:
+            node = node[part]
+        node[parts[-1]] = self.text(value)
+        for table in ("mass", "spring"):
+            for i, item in enumerate(plain.get(table, []) if isinstance(plain.get(table), list)
+                                     else []):  # fmt: skip
+                if item.get("at") != document[table][i].get("at"):
+                    document[table][i]["at"] = item["at"]
+        result = tomlkit.dumps(document)
+        loads(result)
+        return result
+
     def _follow_the_end(self, data: dict[str, Any], value: float) -> None:
         """Masses and springs at the right end stay at the end when a length changes."""
         old = self.sheet.member.length
@@ -157,7 +182,7 @@ class Variation:
                 if abs(at - old) <= 1e-9 * old:
                     match = _NUMBER.match(text)
                     unit = (text[match.end() :] if match else "m").strip() or "m"
-                    item["at"] = f"{convert_from_si(new, unit):.12g} {unit}"
+                    item["at"] = f"{convert_from_si(new, unit):.10g} {unit}"
 
 
 def variation(sheet: Worksheet, key: str) -> Variation:

@@ -529,6 +529,17 @@ def _estimate(value: object) -> EstimateSettings:
         reference = parse_quantity(
             table["reference"], LENGTH, "estimate.reference", allow_zero=True, minimum=False
         )
+    # Expressions are read now, so every command refuses a bad one (the named shapes and
+    # "static" need no parsing); admissibility needs the member and is checked when solved.
+    if shape.strip() not in ("static", "polynomial", "trigonometric"):
+        from calc.expressions import parse_shape
+
+        parse_shape(shape.strip(), "estimate.shape")
+    if isinstance(shapes, tuple):
+        from calc.expressions import parse_shape
+
+        for i, item in enumerate(shapes):
+            parse_shape(item, f"estimate.shapes[{i}]")
     return EstimateSettings(shape.strip(), shapes, reference)
 
 

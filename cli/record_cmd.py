@@ -50,6 +50,9 @@ def verify(args: argparse.Namespace) -> int:
     sheet = load(args.file)
     result = record.verify(sheet)
     if result is None:
+        from calc.analysis import analyse
+
+        analyse(sheet)  # bad input is bad input (exit 2), record or not
         message = (
             f"no record to verify: {args.file} has no [record] table; write one with "
             f"beamtone solve {args.file} --record"

@@ -35,7 +35,7 @@ def size(args: argparse.Namespace) -> int:
     from calc import sizing
     from calc.sizing import parse_harmonics, parse_margin
     from calc.units import parse_frequency
-    from calc.worksheet import load, replace_value, write_atomic
+    from calc.worksheet import load, write_atomic
 
     path = Path(args.file)
     sheet = load(path)
@@ -54,7 +54,7 @@ def size(args: argparse.Namespace) -> int:
     if args.apply and result.recommended is not None:
         chosen = result.solutions[result.recommended]
         original = path.read_text(encoding="utf-8")
-        write_atomic(path, replace_value(original, args.vary, chosen.value))
+        write_atomic(path, var.rewrite(original, chosen.value_si))
         applied = chosen.value
     if args.json:
         obj: dict[str, Any] = {

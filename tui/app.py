@@ -8,7 +8,13 @@ from textual.app import App
 from textual.binding import Binding
 
 from calc.errors import InputError
-from tui.dialogs.choices import HelpDialog, PathDialog, TemplateDialog, UnsavedDialog
+from tui.dialogs.choices import (
+    HelpDialog,
+    PathDialog,
+    RecoverDialog,
+    TemplateDialog,
+    UnsavedDialog,
+)
 from tui.document import TEMPLATES, Document, Template
 from tui.screens.groups import GroupsScreen
 from tui.screens.sizing import SizingScreen
@@ -37,6 +43,25 @@ class BeamtoneApp(App[None]):
         self.push_screen(Workbench(self.document))
         if self.ask_template:
             self.push_screen(TemplateDialog(), self._template_chosen)
+        self._offer_recovery()
+
+    def _offer_recovery(self) -> None:
+        """After a session that ended without saving, offer its kept edits back."""
+        kept = self.document.recoverable()
+        if kept is None:
+            return
+        where = self.document.path.name if self.document.path else "a new worksheet"
+
+        async def answered(take: bool | None) -> None:
+            if take:
+                self.document.recover(kept)
+                await self.workbench.reload()
+                self.refresh_title()
+                self.notify("unsaved edits recovered; save them to keep them")
+            else:
+                self.document.discard_autosave()
+
+        self.push_screen(RecoverDialog(where), answered)
 
     # --- state ------------------------------------------------------------------------------
 
@@ -117,6 +142,7 @@ class BeamtoneApp(App[None]):
             self.notify(f"not opened: {exc.message}", severity="error", timeout=10)
             return
         await self._replace(document)
+        self._offer_recovery()
 
     def action_new(self) -> None:
         self._unless_unsaved("start a new worksheet", self._ask_new)
@@ -131,11 +157,11 @@ class BeamtoneApp(App[None]):
     def action_sizing(self) -> None:
         self.push_screen(SizingScreen(self.document), self._sized)
 
-    async def _sized(self, change: tuple[str, str] | None) -> None:
+    async def _sized(self, change: tuple[str, str, str] | None) -> None:
         if change is None:
             return
-        key, value = change
-        self.document.set(key, value)
+        key, value, text = change
+        self.document.replace_text(text)
         await self.workbench.reload()
         self.refresh_title()
         self.notify(f"applied {key} = {value}")
@@ -161,6 +187,7 @@ class BeamtoneApp(App[None]):
                     return
                 then()  # type: ignore[operator]
             elif choice == "discard":
+                self.document.discard_autosave()
                 then()  # type: ignore[operator]
 
         self.push_screen(UnsavedDialog(what), answered)

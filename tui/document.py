@@ -174,6 +174,11 @@ class Document:
         node[last] = value
         self.modified = True
 
+    def replace_text(self, text: str) -> None:
+        """Take new TOML text (e.g. with a sized value applied) as the unsaved worksheet."""
+        self.doc = tomlkit.parse(text)
+        self.modified = True
+
     def delete(self, key: str) -> None:
         """Remove the key at a key path if present."""
         parts = key_path(key, "field")
@@ -269,6 +274,50 @@ class Document:
         supports_table["inner"] = array
         self.modified = True
 
+    # --- autosave ------------------------------------------------------------------------
+
+    @property
+    def autosave_path(self) -> Path:
+        """Where unsaved edits are kept: beside the file, or in the user's cache folder."""
+        if self.path is not None:
+            return self.path.with_name(f".{self.path.name}.autosave")
+        import os
+
+        cache = Path(os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache") / "beamtone"
+        return cache / "new-worksheet.autosave"
+
+    def autosave(self) -> None:
+        """Keep the unsaved edits (atomically) so a crash loses nothing; quiet on failure."""
+        if not self.modified:
+            return
+        target = self.autosave_path
+        try:
+            target.parent.mkdir(parents=True, exist_ok=True)
+            write_atomic(target, self.text())
+        except (OSError, InputError):
+            return  # an autosave that cannot be written must not stop the user working
+
+    def discard_autosave(self) -> None:
+        """Remove the kept edits (after a save, or when the user lets them go)."""
+        try:
+            self.autosave_path.unlink(missing_ok=True)
+        except OSError:
+            return
+
+    def recoverable(self) -> str | None:
+        """Edits kept by an earlier session that ended without saving, if any differ."""
+        target = self.autosave_path
+        try:
+            text = target.read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError):
+            return None
+        return text if text.strip() and text != self.text() else None
+
+    def recover(self, text: str) -> None:
+        """Take the kept edits as the current, unsaved worksheet."""
+        self.doc = tomlkit.parse(text)
+        self.modified = True
+
     # --- saving ----------------------------------------------------------------------------
 
     def save(self, path: str | Path | None = None, analysis: Any = None) -> Path:
@@ -302,6 +351,7 @@ class Document:
             text = with_record(text, build_record(analysis))
             self.doc = tomlkit.parse(text)
         write_atomic(target, text)
+        self.discard_autosave()
         self.path = target
         self.modified = False
         self._saved_text = text

@@ -122,3 +122,20 @@ def test_size_needs_a_goal(mast: Path, capsys: pytest.CaptureFixture[str]) -> No
         capsys, "size", str(mast), "--vary", "member.length", "--between", "1 m", "2 m"
     )
     assert status == 2 and "Traceback" not in err
+
+
+def test_apply_a_length_moves_the_tip_mass_with_the_end(
+    mast: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    """The instrument at the tip stays at the tip, in the file as in the solves."""
+    status, out, err = run(
+        capsys, "size", str(mast), "--vary", "member.length", "--between", "0.6 m", "2 m",
+        "--target", "25 Hz", "--json", "--apply",
+    )  # fmt: skip
+    assert status == 0, err
+    applied = json.loads(out)["applied"]
+    text = mast.read_text()
+    assert f'length = "{applied}"' in text
+    assert f'at = "{applied}"' in text  # the [[mass]] at the old end moved to the new one
+    status, out, _ = run(capsys, "solve", str(mast), "--json")
+    assert json.loads(out)["modes"][0]["frequency_hz"] == pytest.approx(25.0, rel=1e-5)

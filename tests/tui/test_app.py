@@ -275,3 +275,35 @@ def test_every_template_solves() -> None:
         doc = Document.from_template(template)
         sheet = doc.worksheet()
         assert sheet.member.length > 0
+
+
+@sync
+async def test_unsaved_edits_survive_a_crash_and_are_offered_back(bar: Path) -> None:
+    """The app keeps unsaved edits beside the file; the next session offers them back."""
+    from tui.dialogs.choices import RecoverDialog
+
+    app = BeamtoneApp(bar)
+    async with app.run_test(size=(100, 40)) as pilot:
+        await settled(pilot, app)
+        n = finished(app)
+        await type_into(pilot, app, "f-member-length", "650 mm")
+        await settled(pilot, app, n)
+        kept = app.document.autosave_path
+        assert kept.exists()
+        # the session now "crashes": it ends without saving or being asked
+    assert bar.read_text() == BAR
+    second = BeamtoneApp(bar)
+    async with second.run_test(size=(100, 40)) as pilot:
+        await pilot.pause(0.5)
+        assert isinstance(second.screen, RecoverDialog)
+        await press(pilot, second, "#recover")
+        view = await settled(pilot, second, 0)
+        assert second.document.get("member.length") == "650 mm"
+        assert second.document.modified
+        assert view.analysis.modes.modes[0].frequency_hz == pytest.approx(
+            bar_fundamental(0.65), rel=1e-6
+        )
+        await pilot.press("ctrl+s")
+        await pilot.pause(0.3)
+        assert not kept.exists()  # saved: the kept edits are gone
+    assert load(bar).member.length == pytest.approx(0.65)

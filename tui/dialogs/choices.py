@@ -12,7 +12,7 @@ from textual.widgets.option_list import Option
 from cli.output import CAUTION
 from tui.document import TEMPLATES, Template
 
-__all__ = ["UnsavedDialog", "PathDialog", "TemplateDialog", "HelpDialog"]
+__all__ = ["UnsavedDialog", "RecoverDialog", "PathDialog", "TemplateDialog", "HelpDialog"]
 
 
 class UnsavedDialog(ModalScreen[str]):
@@ -35,6 +35,30 @@ class UnsavedDialog(ModalScreen[str]):
     @on(Button.Pressed)
     def _answer(self, event: Button.Pressed) -> None:
         self.dismiss(event.button.id or "cancel")
+
+
+class RecoverDialog(ModalScreen[bool]):
+    """Offers back the edits an earlier session kept but never saved."""
+
+    BINDINGS = [("escape", "dismiss(False)", "no")]
+
+    def __init__(self, where: str) -> None:
+        super().__init__()
+        self.where = where
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(
+                f"An earlier session left unsaved edits to {self.where}. Recover them? "
+                "(They replace what is on screen, unsaved; saving keeps them.)"
+            )
+            with Horizontal(classes="buttons"):
+                yield Button("recover", id="recover", variant="primary")
+                yield Button("let them go", id="drop", variant="error")
+
+    @on(Button.Pressed)
+    def _answer(self, event: Button.Pressed) -> None:
+        self.dismiss(event.button.id == "recover")
 
 
 class PathDialog(ModalScreen[str | None]):

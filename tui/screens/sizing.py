@@ -15,8 +15,8 @@ from tui.document import Document
 __all__ = ["SizingScreen"]
 
 
-class SizingScreen(Screen[tuple[str, str] | None]):
-    """Returns ``(key, value)`` to apply to the worksheet, or None."""
+class SizingScreen(Screen[tuple[str, str, str] | None]):
+    """Returns ``(key, value, new worksheet text)`` to apply, or None."""
 
     BINDINGS = [
         Binding("escape", "back", "back"),
@@ -190,6 +190,16 @@ class SizingScreen(Screen[tuple[str, str] | None]):
 
         if not isinstance(self.result, SizingResult) or not self.result.solutions:
             return
+        from calc.sizing import variation
+        from calc.worksheet import loads
+
         row = self.query_one("#solutions", DataTable).cursor_row
         chosen = self.result.solutions[min(max(row, 0), len(self.result.solutions) - 1)]
-        self.dismiss((self.result.variable, chosen.value))
+        text = self.document.text()
+        try:
+            var = variation(loads(text, "<app>"), self.result.variable)
+            new_text = var.rewrite(text, chosen.value_si)
+        except InputError as exc:
+            self._say(exc.message, True)
+            return
+        self.dismiss((self.result.variable, chosen.value, new_text))

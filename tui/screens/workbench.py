@@ -80,6 +80,7 @@ class Workbench(Screen[None]):
             self._timer = self.set_timer(DEBOUNCE, self._solve)
 
     def _solve(self) -> None:
+        self.document.autosave()  # after the typing pause: unsaved edits survive a crash
         self._run(self.document.plain(), self._version)
 
     @work(thread=True, exclusive=True, group="solve", exit_on_error=False)

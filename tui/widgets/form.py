@@ -91,6 +91,9 @@ class WorksheetForm(VerticalScroll):
         super().__init__(id=id)
         self.document = document
         self._member: Member | None = None
+        # Selects announce their first value when mounted; only later changes are edits
+        # (otherwise a value the picker cannot show would be overwritten unasked).
+        self._armed = False
 
     # --- building --------------------------------------------------------------------------
 
@@ -281,6 +284,8 @@ class WorksheetForm(VerticalScroll):
     @on(Select.Changed)
     async def _selected(self, event: Select.Changed) -> None:
         event.stop()
+        if not self._armed:
+            return
         select_id = event.select.id or ""
         value = event.value
         doc = self.document
@@ -352,9 +357,17 @@ class WorksheetForm(VerticalScroll):
         await self.rebuild()
         self.post_message(self.Changed(structural=True))
 
+    def on_mount(self) -> None:
+        self.call_after_refresh(self._arm)
+
+    def _arm(self) -> None:
+        self._armed = True
+
     async def rebuild(self) -> None:
         """Rebuild the form from the document (after a structural change)."""
+        self._armed = False
         await self.recompose()
+        self.call_after_refresh(self._arm)
         if self._member is not None:
             self.update_derived(self._member)
 
