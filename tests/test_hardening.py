@@ -361,3 +361,75 @@ def test_apply_in_a_read_only_folder_tells_the_user(
                          "0.5 m", "2 m", "--target", "20 Hz", "--apply")  # fmt: skip
     assert status == 2 and err.startswith("beamtone: file: ")
     assert path.read_text() == GOOD
+
+
+# --- fuzzing the quantity parser, and invariance as properties -----------------------------------
+
+from calc.units import LENGTH, PRESSURE, STIFFNESS, parse_quantity  # noqa: E402
+from tests.fuzz import EXAMPLES  # noqa: E402
+
+_UNITISH = st.text(
+    alphabet=st.sampled_from(list("0123456789.eE+-*/^() mkgNPaMGinlbftsrad_µ°·\t")), max_size=40
+)
+
+
+@settings(max_examples=EXAMPLES(400), deadline=None)
+@given(st.one_of(_UNITISH, st.text(max_size=40)), st.sampled_from([LENGTH, PRESSURE, STIFFNESS]))
+def test_fuzz_quantity_parser_raises_only_input_error(text: str, dim) -> None:  # noqa: ANN001
+    try:
+        value = parse_quantity(text, dim, "k", allow_zero=True, allow_negative=True)
+    except InputError as exc:
+        assert "\n" not in exc.message
+        return
+    assert math.isfinite(value)
+
+
+def _worksheet(L: float, D: float, t: float, M: float, system: str) -> str:
+    """The same tube cantilever written in SI, US customary or mm-N-tonne."""
+    if system == "si":
+        q = (f"{L!r} m", f"{D!r} m", f"{t!r} m", f"{M!r} kg", '"200 GPa"', '"7850 kg/m^3"')
+    elif system == "us":
+        q = (f"{L / 0.0254!r} in", f"{D / 0.0254!r} in", f"{t / 0.0254!r} in",
+             f"{M / 0.45359237!r} lb", f'"{200e9 / 6894.757293168361!r} psi"',
+             f'"{7850 / 27679.904710203125!r} lb/in^3"')  # fmt: skip
+    else:
+        q = (f"{L * 1000!r} mm", f"{D * 1000!r} mm", f"{t * 1000!r} mm", f"{M / 1000!r} tonne",
+             '"200000 N/mm^2"', '"7.85e-9 tonne/mm^3"')  # fmt: skip
+    length, dia, wall, mass, E, rho = q
+    return (
+        f'format = 1\n[member]\nlength = "{length}"\nmaterial = {{ youngs_modulus = {E}, '
+        f'density = {rho} }}\nsection = {{ shape = "round-tube", outside_diameter = "{dia}", '
+        f'wall = "{wall}" }}\n[supports]\nleft = "clamped"\nright = "free"\n'
+        f'[[mass]]\nat = "{length}"\nmass = "{mass}"\n'
+    )
+
+
+@PROPERTY
+@given(st.floats(0.3, 3.0), st.floats(0.02, 0.1), st.floats(0.1, 0.4), st.floats(0.01, 10.0))
+def test_unit_invariance_as_a_property(L: float, D: float, wall_ratio: float, M: float) -> None:
+    """SI, US customary and mm-N-tonne give the same Hz (exact conversion factors)."""
+    t = wall_ratio * D
+    f = [fe.solve(loads(_worksheet(L, D, t, M, s)).member, 2).frequencies_hz
+         for s in ("si", "us", "mm")]  # fmt: skip
+    assert f[1] == pytest.approx(f[0], rel=1e-9)
+    assert f[2] == pytest.approx(f[0], rel=1e-9)
+
+
+@PROPERTY
+@given(random_member(), st.floats(0.1, 10.0))
+def test_scale_invariance_through_the_groups(member: Member, s: float) -> None:
+    """Every length times s at fixed groups: every frequency divided by s^2."""
+    scaled = replace(
+        member,
+        segments=tuple(replace(g, length=g.length * s) for g in member.segments),
+        masses=tuple(
+            PointMass(p.at * s, p.mass * s, p.rotary_inertia * s**3) for p in member.masses
+        ),  # fmt: skip
+        springs=tuple(
+            Spring(k.at * s, k.stiffness / s**3, k.rotational_stiffness / s) for k in member.springs
+        ),  # fmt: skip
+    )
+    a = fe.solve(member, 3)
+    b = fe.solve(scaled, 3)
+    tol = max(m.estimated_error for m in a.modes) * 2 + 1e-9
+    assert b.frequencies_hz == pytest.approx(a.frequencies_hz / s**2, rel=tol)

@@ -21,6 +21,7 @@ from hypothesis import strategies as st
 from calc import expressions
 from calc.errors import InputError
 from calc.expressions import MAX_DEPTH, MAX_LENGTH, evaluate, parse_shape, symbols
+from tests.fuzz import EXAMPLES
 
 ROOT = Path(__file__).resolve().parents[2]
 X, L = symbols()
@@ -372,7 +373,7 @@ _TEXT = st.one_of(
 )
 
 
-@settings(max_examples=300, deadline=None)
+@settings(max_examples=EXAMPLES(300), deadline=None)
 @given(_TEXT)
 def test_random_text_raises_only_input_error(text: str) -> None:
     try:

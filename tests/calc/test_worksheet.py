@@ -33,6 +33,7 @@ from hypothesis import strategies as st
 from calc.errors import InputError
 from calc.model import Member
 from calc.worksheet import MAX_BYTES, MAX_MODES, Worksheet, load, loads
+from tests.fuzz import EXAMPLES as FUZZ_EXAMPLES
 
 ROOT = Path(__file__).resolve().parents[2]
 EXAMPLES = sorted((ROOT / "worksheets").glob("*.toml"))
@@ -954,7 +955,7 @@ def _only_input_error(text: str) -> None:
 
 
 _FUZZ = settings(
-    max_examples=200,
+    max_examples=FUZZ_EXAMPLES(200),
     deadline=None,
     suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much],
 )
