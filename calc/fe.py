@@ -575,7 +575,6 @@ def _mass_check(system: System) -> None:
 class _Solution:
     lam: np.ndarray  # flexible eigenvalues [rad^2/s^2]
     vecs: np.ndarray  # free DOF eigenvectors (scaled form), M-orthonormal
-    rigid_lam: np.ndarray
     system: System
     mesh: Mesh
     solver: str
@@ -610,7 +609,7 @@ def _solve_mesh(
         flexible = flexible / np.sqrt(np.einsum("ij,ij->j", flexible, system.M @ flexible))
     lam = _strain_energy_quotient(member, mesh, system, flexible)
     order = np.argsort(lam)
-    return _Solution(lam[order], flexible[:, order], vals[:rigid], system, mesh, name)
+    return _Solution(lam[order], flexible[:, order], system, mesh, name)
 
 
 def _rigid_vectors(member: Member, mesh: Mesh, system: System) -> np.ndarray:
@@ -766,7 +765,7 @@ def solve(
     solver = eigensolver or default_eigensolver
     _check_mass(member)
     rigid = rigid_body_count(member)
-    _check_buckling(member, rigid)
+    _check_buckling(member)
     warnings: list[str] = []
     shift = -_shift_scale(member)
 
@@ -1027,7 +1026,7 @@ def _rigid_rotation_free(member: Member) -> bool:
     return not any(b - a > tol for a, b in zip(points, points[1:], strict=False))
 
 
-def _check_buckling(member: Member, rigid: int) -> None:
+def _check_buckling(member: Member) -> None:
     if member.axial_force >= 0.0:
         return
     P_cr = buckling_load(member)

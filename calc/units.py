@@ -35,7 +35,6 @@ __all__ = [
     "FREQUENCY",
     "registry",
     "parse_quantity",
-    "format_quantity",
     "parse_frequency",
     "convert_from_si",
 ]
@@ -395,8 +394,3 @@ def convert_from_si(value: float, unit_text: str) -> float:
     target = ureg.parse_units(unit_text)
     base = (1.0 * target).to_base_units()
     return value / float(base.magnitude)
-
-
-def format_quantity(value: float, unit: str, digits: int = 6) -> str:
-    """Format a float with a unit, using ``digits`` significant figures."""
-    return f"{value:.{digits}g} {unit}"

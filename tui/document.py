@@ -7,7 +7,7 @@ Comments and layout of an opened file are kept (tomlkit).
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from importlib import resources
 from pathlib import Path
 from typing import Any
@@ -76,7 +76,6 @@ class Document:
     doc: tomlkit.TOMLDocument
     path: Path | None = None
     modified: bool = False
-    _saved_text: str = field(default="", repr=False)
 
     # --- opening ---------------------------------------------------------------------------
 
@@ -91,7 +90,7 @@ class Document:
             ) from None
         except (tomlkit.exceptions.TOMLKitError, ValueError, RecursionError) as exc:
             raise InputError("file", str(path or "text"), "valid TOML", str(exc)[:100]) from None
-        return cls(doc, path, False, text)
+        return cls(doc, path, False)
 
     @classmethod
     def open(cls, path: str | Path) -> Document:
@@ -354,5 +353,4 @@ class Document:
         self.discard_autosave()
         self.path = target
         self.modified = False
-        self._saved_text = text
         return target

@@ -120,24 +120,16 @@ class WorksheetForm(VerticalScroll):
         yield Static("", id="derived", classes="derived")
 
         yield Static("2  Ends", classes="step")
-        with Horizontal(classes="pair"):
-            yield Label("left end", classes="pairlabel")
-            yield Select(
-                [(k, k) for k in END_KINDS],
-                value=_choice(doc.get("supports.left"), END_KINDS),
-                allow_blank=False,
-                id="supports-left",
-                compact=True,
-            )
-        with Horizontal(classes="pair"):
-            yield Label("right end", classes="pairlabel")
-            yield Select(
-                [(k, k) for k in END_KINDS],
-                value=_choice(doc.get("supports.right"), END_KINDS),
-                allow_blank=False,
-                id="supports-right",
-                compact=True,
-            )
+        for side in ("left", "right"):
+            with Horizontal(classes="pair"):
+                yield Label(f"{side} end", classes="pairlabel")
+                yield Select(
+                    [(k, k) for k in END_KINDS],
+                    value=_choice(doc.get(f"supports.{side}"), END_KINDS),
+                    allow_blank=False,
+                    id=f"supports-{side}",
+                    compact=True,
+                )
         for i, sup in enumerate(doc.inner_supports()):
             with Horizontal(classes="rowhead"):
                 yield Label(f"inner support {i}", classes="rowtitle")
