@@ -360,46 +360,85 @@ class System:
     lambda_max_bound: float
 
 
+def _polynomial_in_r(
+    c0: list[list[float]], c1: list[list[float]], c2: list[list[float]]
+) -> np.ndarray:
+    return np.array([c0, c1, c2], dtype=float)
+
+
+# Element matrices in scaled DOFs as c0 + c1 r + c2 r^2, r = h / s (the standard Hermite
+# cubic stiffness, geometric stiffness and consistent mass, common practice).
+_STIFFNESS = _polynomial_in_r(
+    [[12, 0, -12, 0], [0, 0, 0, 0], [-12, 0, 12, 0], [0, 0, 0, 0]],
+    [[0, 6, 0, 6], [6, 0, -6, 0], [0, -6, 0, -6], [6, 0, -6, 0]],
+    [[0, 0, 0, 0], [0, 4, 0, 2], [0, 0, 0, 0], [0, 2, 0, 4]],
+)
+_GEOMETRIC = _polynomial_in_r(
+    [[36, 0, -36, 0], [0, 0, 0, 0], [-36, 0, 36, 0], [0, 0, 0, 0]],
+    [[0, 3, 0, 3], [3, 0, -3, 0], [0, -3, 0, -3], [3, 0, -3, 0]],
+    [[0, 0, 0, 0], [0, 4, 0, -1], [0, 0, 0, 0], [0, -1, 0, 4]],
+)
+_MASS = _polynomial_in_r(
+    [[156, 0, 54, 0], [0, 0, 0, 0], [54, 0, 156, 0], [0, 0, 0, 0]],
+    [[0, 22, 0, -13], [22, 0, 13, 0], [0, 13, 0, -22], [-13, 0, -22, 0]],
+    [[0, 0, 0, 0], [0, 4, 0, -3], [0, 0, 0, 0], [0, -3, 0, 4]],
+)
+
+
 def _element_matrices(
     h: np.ndarray, EI: np.ndarray, m: np.ndarray, P: float, s: float
 ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Element stiffness, geometric stiffness for unit tension, and mass, in scaled DOFs."""
     r = h / s  # element length in units of the slope scale
-    one = np.ones_like(h)
-    k = (
-        np.array(
-            [
-                [12 * one, 6 * r, -12 * one, 6 * r],
-                [6 * r, 4 * r**2, -6 * r, 2 * r**2],
-                [-12 * one, -6 * r, 12 * one, -6 * r],
-                [6 * r, 2 * r**2, -6 * r, 4 * r**2],
-            ]
-        ).transpose(2, 0, 1)
-        * (EI / h**3)[:, None, None]
-    )
-    g = (
-        np.array(
-            [
-                [36 * one, 3 * r, -36 * one, 3 * r],
-                [3 * r, 4 * r**2, -3 * r, -(r**2)],
-                [-36 * one, -3 * r, 36 * one, -3 * r],
-                [3 * r, -(r**2), -3 * r, 4 * r**2],
-            ]
-        ).transpose(2, 0, 1)
-        * (1.0 / (30.0 * h))[:, None, None]
-    )
-    mm = (
-        np.array(
-            [
-                [156 * one, 22 * r, 54 * one, -13 * r],
-                [22 * r, 4 * r**2, 13 * r, -3 * r**2],
-                [54 * one, 13 * r, 156 * one, -22 * r],
-                [-13 * r, -3 * r**2, -22 * r, 4 * r**2],
-            ]
-        ).transpose(2, 0, 1)
-        * (m * h / 420.0)[:, None, None]
-    )
+    powers = np.stack([np.ones_like(r), r, r * r], axis=1)  # (elements, 3)
+    k = np.einsum("ep,pij->eij", powers * (EI / h**3)[:, None], _STIFFNESS)
+    g = np.einsum("ep,pij->eij", powers * (1.0 / (30.0 * h))[:, None], _GEOMETRIC)
+    mm = np.einsum("ep,pij->eij", powers * (m * h / 420.0)[:, None], _MASS)
     return k, g, mm
+
+
+# Local (a, b) pairs of the upper triangle of a 4x4 element matrix, and their band offsets.
+_UPPER_A = np.array([a for a in range(4) for b in range(a, 4)])
+_UPPER_B = np.array([b for a in range(4) for b in range(a, 4)])
+_BAND = 3  # off-diagonals of the assembled matrices (w and theta of two neighbouring nodes)
+_OFFSETS = np.arange(-_BAND, _BAND + 1)
+
+
+def _triplets(points: list[tuple[int, int, float]]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    rows = np.array([t[0] for t in points], dtype=int)
+    cols = np.array([t[1] for t in points], dtype=int)
+    return rows, cols, np.array([t[2] for t in points], dtype=float)
+
+
+def _band(
+    element: np.ndarray, points: tuple[np.ndarray, np.ndarray, np.ndarray], n: int
+) -> np.ndarray:
+    """Sum element matrices (elements, 4, 4) and point entries into upper band storage.
+
+    Returns ``band`` of shape (4, n) with ``band[d, i]`` the entry at row i, column i + d.
+    """
+    start = 2 * np.arange(element.shape[0])[:, None]
+    index = (_UPPER_B - _UPPER_A) * n + start + _UPPER_A
+    rows, cols, values = points
+    upper = rows <= cols
+    index = np.concatenate([index.ravel(), (cols - rows)[upper] * n + rows[upper]])
+    weights = np.concatenate([element[:, _UPPER_A, _UPPER_B].ravel(), values[upper]])
+    return np.bincount(index, weights=weights, minlength=(_BAND + 1) * n).reshape(_BAND + 1, n)
+
+
+def _reduced(band: np.ndarray, free: np.ndarray, number: np.ndarray) -> scipy.sparse.csr_matrix:
+    """The symmetric banded matrix on the free DOFs, in compressed rows."""
+    n = band.shape[1]
+    j = free[:, None] + _OFFSETS
+    inside = (j >= 0) & (j < n)
+    j = np.clip(j, 0, n - 1)
+    values = band[np.abs(_OFFSETS), np.minimum(free[:, None], j)]
+    keep = inside & (number[j] >= 0) & (values != 0.0)
+    indptr = np.zeros(len(free) + 1, dtype=np.int32)
+    np.cumsum(keep.sum(axis=1), out=indptr[1:])
+    return scipy.sparse.csr_matrix(
+        (values[keep], number[j][keep].astype(np.int32), indptr), shape=(len(free), len(free))
+    )
 
 
 def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
@@ -419,16 +458,13 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
     """
     h = np.diff(mesh.x)
     segs = member.segments
-    EI = np.array([segs[i].bending_stiffness for i in mesh.segment])
-    m = np.array([segs[i].mass_per_length for i in mesh.segment])
+    EI = np.array([seg.bending_stiffness for seg in segs])[mesh.segment]
+    m = np.array([seg.mass_per_length for seg in segs])[mesh.segment]
     s = float(np.median(h))
     P = member.axial_force
     ke, ge, me = _element_matrices(h, EI, m, P, s)
     n_nodes = len(mesh.x)
     n = 2 * n_nodes
-    dofs = 2 * np.arange(mesh.elements)[:, None] + np.arange(4)[None, :]
-    rows = np.repeat(dofs, 4, axis=1).ravel()
-    cols = np.tile(dofs, (1, 4)).ravel()
 
     # Point masses and springs: 2x2 blocks on (w, theta) of their node; an attachment at an
     # offset e from its node acts on w + e*theta (rigid offset).
@@ -450,40 +486,34 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
             fixed.append(2 * node)
         if holds_slope:
             fixed.append(2 * node + 1)
-    free = np.setdiff1d(np.arange(n), np.array(fixed, dtype=int))
-    # Supports are eliminated while assembling: entries on a held DOF are dropped and the
-    # rest renumbered, so no full-size matrix is sliced afterwards.
+    held = np.zeros(n, dtype=bool)
+    held[fixed] = True
+    free = np.flatnonzero(~held)
     number = np.full(n, -1)
     number[free] = np.arange(len(free))
-    nf = len(free)
 
-    def extra(points: list[tuple[int, int, float]]) -> tuple[np.ndarray, ...]:
-        r = np.array([t[0] for t in points], dtype=int)
-        c = np.array([t[1] for t in points], dtype=int)
-        return r, c, np.array([t[2] for t in points], dtype=float)
-
-    pk, pm_ = extra(point_k), extra(point_m)
-
-    def reduced(values: np.ndarray, points: tuple[np.ndarray, ...]) -> scipy.sparse.csr_matrix:
-        r = number[np.concatenate([rows, points[0]])]
-        c = number[np.concatenate([cols, points[1]])]
-        v = np.concatenate([values.ravel(), points[2]])
-        keep = (r >= 0) & (c >= 0)
-        return scipy.sparse.csr_matrix((v[keep], (r[keep], c[keep])), shape=(nf, nf))
-
-    empty = (np.zeros(0, dtype=int), np.zeros(0, dtype=int), np.zeros(0))
-    K = reduced(ke + P * ge, pk)
-    G = reduced(ge, empty) if geometric else None
-    M = reduced(me, pm_)
+    pk, pm_ = _triplets(point_k), _triplets(point_m)
+    no_points = _triplets([])
+    # The matrices are banded (three off-diagonals); they are summed in band storage and the
+    # supports eliminated while the compressed rows are built, so no general sparse
+    # assembly (sorting and summing duplicates) and no full-size matrix is ever formed.
+    K_band = _band(ke + P * ge, pk, n)
+    M_band = _band(me, pm_, n)
+    K = _reduced(K_band, free, number)
+    M = _reduced(M_band, free, number)
+    G = _reduced(_band(ge, no_points, n), free, number) if geometric else None
 
     # Mass-weighted rigid translation of member and ground together (all DOFs, held or not):
     # M_full @ 1_w, without the full matrix.  Element rows: consistent mass times [1, 0, 1, 0].
     unit = np.array([1.0, 0.0, 1.0, 0.0])
     element_load = me @ unit  # (elements, 4)
-    full_load = np.zeros(n)
-    np.add.at(full_load, dofs.ravel(), element_load.ravel())
+    dofs = 2 * np.arange(mesh.elements)[:, None] + np.arange(4)[None, :]
     w_cols = pm_[1] % 2 == 0
-    np.add.at(full_load, pm_[0][w_cols], pm_[2][w_cols])
+    full_load = np.bincount(
+        np.concatenate([dofs.ravel(), pm_[0][w_cols]]),
+        weights=np.concatenate([element_load.ravel(), pm_[2][w_cols]]),
+        minlength=n,
+    )
     load = full_load[free]
     total_mass = float(full_load[0::2].sum())
 
@@ -492,12 +522,9 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
     # degrees of freedom.
     lam_elem = float(np.max((_ELEMENT_LAMBDA_MAX * EI + _GEOMETRIC_LAMBDA_MAX * abs(P) * h**2)
                             / (m * h**4)))  # fmt: skip
-    diag_k = np.zeros(n)
     on_diagonal = pk[0] == pk[1]
-    np.add.at(diag_k, pk[0][on_diagonal], pk[2][on_diagonal])
-    mass_diag = np.zeros(n)
-    np.add.at(mass_diag, dofs.ravel(), np.einsum("eii->ei", me).ravel())
-    np.add.at(mass_diag, pm_[0][pm_[0] == pm_[1]], pm_[2][pm_[0] == pm_[1]])
+    diag_k = np.bincount(pk[0][on_diagonal], weights=pk[2][on_diagonal], minlength=n)
+    mass_diag = M_band[0]
     lam_spring = float(np.max(diag_k / mass_diag, initial=0.0))
 
     return System(
@@ -535,15 +562,10 @@ def default_eigensolver(
     if n <= _DENSE_LIMIT or count >= n - 1:
         Kd = K.toarray() if scipy.sparse.issparse(K) else np.asarray(K)
         Md = M.toarray() if scipy.sparse.issparse(M) else np.asarray(M)
-        # Inverted form M x = mu (K - shift M) x: the lowest modes become the largest mu and
-        # keep their relative accuracy (the direct form loses it as the mesh is refined).
         count = min(count, n)
-        # divide and conquer on the whole spectrum: as fast as a subset at these sizes, and
-        # without the subset driver's slow reorthogonalization of clustered (rigid) modes
-        mu, vecs = scipy.linalg.eigh(Md, Kd - shift * Md, driver="gvd")
-        mu, vecs = mu[::-1][:count], vecs[:, ::-1][:, :count]
+        mu, vecs, used = _dense_inverted(Kd, Md, count, shift, vectors=True)
         vecs = vecs / np.sqrt(np.einsum("ij,ij->j", vecs, Md @ vecs))
-        return 1.0 / mu + shift, vecs
+        return 1.0 / mu + used, vecs
     try:
         vals, vecs = scipy.sparse.linalg.eigsh(
             K.tocsc(), k=count, M=M.tocsc(), sigma=shift, which="LM", ncv=max(2 * count + 1, 20)
@@ -554,6 +576,78 @@ def default_eigensolver(
         )
     order = np.argsort(vals)
     return vals[order], vecs[:, order]
+
+
+def _dense_inverted(
+    Kd: np.ndarray, Md: np.ndarray, count: int, shift: float, vectors: bool
+) -> tuple[np.ndarray, np.ndarray | None, float]:
+    """Largest ``count`` mu of M x = mu (K - shift M) x, descending, with the shift used.
+
+    In this inverted form the lowest modes become the largest mu and keep their relative
+    accuracy (the direct form loses it as the mesh is refined).  Only the wanted end of the
+    spectrum is found (measured: a third faster than the whole spectrum by divide and
+    conquer from 100 DOFs on, rigid-body modes or not).  K - shift M must be factored; where
+    a very short element makes K so stiff that its round-off swamps a small shift (a member
+    with rigid-body modes), the shift is made larger: the lowest modes lose a little
+    relative accuracy in mu, which the strain-energy quotient restores.
+    """
+    n = Kd.shape[0]
+    for factor in (1.0, 1e2, 1e4):
+        used = shift * factor
+        try:
+            result = scipy.linalg.eigh(
+                Md, Kd - used * Md, eigvals_only=not vectors, driver="gvx",
+                subset_by_index=[n - count, n - 1],
+            )  # fmt: skip
+        except np.linalg.LinAlgError:
+            if factor == 1e4:
+                raise
+            continue
+        if vectors:
+            mu, vecs = result
+            return mu[::-1], vecs[:, ::-1], used
+        return result[::-1], None, used
+    raise AssertionError("unreachable")  # pragma: no cover
+
+
+def _lowest_eigenvalues(
+    K: scipy.sparse.csr_matrix, M: scipy.sparse.csr_matrix, count: int, shift: float
+) -> np.ndarray:
+    """Eigenvalues only, as :func:`default_eigensolver` finds them (for sizing a mesh)."""
+    n = K.shape[0]
+    if n <= _DENSE_LIMIT or count >= n - 1:
+        count = min(count, n)
+        mu, _, used = _dense_inverted(K.toarray(), M.toarray(), count, shift, vectors=False)
+        return np.sort(1.0 / mu + used)
+    vals = scipy.sparse.linalg.eigsh(
+        K.tocsc(), k=count, M=M.tocsc(), sigma=shift, which="LM", ncv=max(2 * count + 1, 20),
+        return_eigenvectors=False,
+    )  # fmt: skip
+    return np.sort(vals)
+
+
+def _trial_omega(
+    member: Member, mesh: Mesh, modes: int, rigid: int, shift: float, solver: Eigensolver | None
+) -> float:
+    """Circular frequency [rad/s] of the highest wanted mode on a coarse trial mesh.
+
+    It only sizes the elements of the meshes that follow, whose two-mesh comparison decides
+    the accuracy; so eigenvalues alone are found, straight from the matrices.
+    """
+    if solver is not None:
+        return float(_omega(_solve_mesh(member, mesh, modes, rigid, shift, solver))[-1])
+    system = assemble(member, mesh)
+    _mass_check(system)
+    n = system.K.shape[0]
+    want = min(modes + rigid, n)
+    if want - rigid < modes:  # the plain solve says what is wrong
+        _need_modes(_solve_mesh(member, mesh, modes, rigid, shift, default_eigensolver), modes)
+    try:
+        lam = _lowest_eigenvalues(system.K, system.M, want, shift)[rigid:]
+    except (np.linalg.LinAlgError, scipy.sparse.linalg.ArpackNoConvergence):
+        sol = _solve_mesh(member, mesh, modes, rigid, shift, default_eigensolver)
+        return float(_omega(sol)[-1])
+    return math.sqrt(max(float(lam[-1]), 0.0))
 
 
 def _mass_check(system: System) -> None:
@@ -666,7 +760,7 @@ def _strain_energy_quotient(
     w = full[0::2]
     theta = full[1::2] / system.scale
     h = np.diff(mesh.x)[:, None]
-    EI = np.array([member.segments[i].bending_stiffness for i in mesh.segment])[:, None]
+    EI = np.array([seg.bending_stiffness for seg in member.segments])[mesh.segment][:, None]
     d = (w[1:] - w[:-1]) / h
     a = theta[:-1] - d
     b = theta[1:] - d
@@ -778,11 +872,9 @@ def solve(
         disc = _SAFETY * 16.0 / 15.0 * np.abs(_omega(reported) - _omega(check)) / _omega(check)
         lower = check
     else:
-        trial = _solve_mesh(
-            member, build_mesh(member, max(4 * modes + 8, 16)), modes, rigid, shift, solver
-        )
-        _need_modes(trial, modes)
-        coarse_mesh = build_mesh(member, _designed_size(member, _omega(trial)[-1], accuracy))
+        trial_mesh = build_mesh(member, max(4 * modes + 8, 16))
+        omega = _trial_omega(member, trial_mesh, modes, rigid, shift, eigensolver)
+        coarse_mesh = build_mesh(member, _designed_size(member, omega, accuracy))
         lower = _solve_mesh(member, coarse_mesh, modes, rigid, shift, solver)
         for _ in range(_MAX_REFINEMENTS):
             _need_modes(lower, modes)
@@ -841,11 +933,15 @@ def _check_mass(member: Member) -> None:
 
 
 def _need_modes(sol: _Solution, modes: int) -> None:
-    if len(sol.lam) < modes:
+    _need_modes_count(len(sol.lam), modes)
+
+
+def _need_modes_count(available: int, modes: int) -> None:
+    if available < modes:
         raise InputError(
             "check.modes",
             modes,
-            f"at most {len(sol.lam)} modes for this model; ask for fewer or give --elements",
+            f"at most {available} modes for this model; ask for fewer or give --elements",
         )
 
 
