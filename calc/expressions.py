@@ -47,7 +47,10 @@ __all__ = [
     "MAX_EXPONENT",
     "MAX_LENGTH",
     "MAX_NODES",
+    "Formula",
+    "derivatives",
     "evaluate",
+    "parse_formula",
     "parse_shape",
     "symbols",
 ]
@@ -153,6 +156,170 @@ def _symbols() -> tuple[sympy.Symbol, sympy.Symbol]:
     )
 
 
+@dataclass(frozen=True)
+class Formula:
+    """A shape as parsed by the whitelist parser, before (and without) sympy.
+
+    Attributes
+    ----------
+    text : str
+        The formula as written.
+    tree : _Node
+        Its parsed tree, within every size bound.
+    """
+
+    text: str
+    tree: _Node
+
+
+def parse_formula(text: str, key: str = "estimate.shape") -> Formula:
+    """Parse a shape through the whitelist and its size bounds, without sympy.
+
+    The checks that need algebra (division by zero, real values, dependence on x) are
+    :func:`parse_shape`'s; see :func:`calc.symbolic.shape_facts`.
+
+    Parameters
+    ----------
+    text : str
+        The formula, e.g. ``"1 - cos(pi*x/(2*L))"``.
+    key : str, optional
+        Dotted key path named in error messages.
+
+    Returns
+    -------
+    Formula
+
+    Raises
+    ------
+    InputError
+        If the text is not a string, is empty or too long, contains anything outside the
+        whitelist or exceeds a size bound.
+    """
+    if not isinstance(text, str):
+        raise InputError(key, text, _EXPECTED, "the shape must be given as text")
+    if len(text) > MAX_LENGTH:
+        raise InputError(
+            key, text, _EXPECTED, f"{len(text)} characters; at most {MAX_LENGTH} are allowed"
+        )
+    if not text.strip(" \t"):
+        raise InputError(key, text, _EXPECTED, "the formula is empty")
+    tokens = _tokenize(text, key)
+    return Formula(text, _Parser(text, key, tokens).parse())
+
+
+def derivatives(
+    formula: Formula, x: np.ndarray, L: float
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """A shape and its first two derivatives in x, evaluated together with numpy.
+
+    The parsed tree is walked once, carrying value, slope and curvature through every
+    operation by the chain and product rules (forward differentiation, exact up to
+    rounding); no symbolic algebra is involved.
+
+    Parameters
+    ----------
+    formula : Formula
+    x : numpy.ndarray
+        Positions from the left end [m].
+    L : float
+        Total length [m].
+
+    Returns
+    -------
+    w, dw, d2w : numpy.ndarray
+        The shape [-], its slope [1/m] and its curvature [1/m^2] at ``x``.  Where the
+        formula is undefined the values are nan or inf (with numpy's usual warnings).
+    """
+    positions = np.asarray(x, dtype=float)
+    out = _jet(formula.tree, positions, float(L))
+    shape = positions.shape
+    return tuple(  # type: ignore[return-value]
+        np.array(np.broadcast_to(np.asarray(part, dtype=float), shape), dtype=float) for part in out
+    )
+
+
+_Jet = tuple[Any, Any, Any]  # value, first and second derivative in x (floats or arrays)
+
+# f(u) -> (f, f', f'') of the whitelist functions, for the chain rule
+_JET_FUNCTIONS: dict[str, Callable[[Any], _Jet]] = {
+    "sin": lambda u: (np.sin(u), np.cos(u), -np.sin(u)),
+    "cos": lambda u: (np.cos(u), -np.sin(u), -np.cos(u)),
+    "tan": lambda u: (lambda t: (t, 1.0 + t * t, 2.0 * t * (1.0 + t * t)))(np.tan(u)),
+    "sinh": lambda u: (np.sinh(u), np.cosh(u), np.sinh(u)),
+    "cosh": lambda u: (np.cosh(u), np.sinh(u), np.cosh(u)),
+    "tanh": lambda u: (lambda t: (t, 1.0 - t * t, -2.0 * t * (1.0 - t * t)))(np.tanh(u)),
+    "exp": lambda u: (lambda e: (e, e, e))(np.exp(u)),
+    "log": lambda u: (np.log(u), 1.0 / u, -1.0 / (u * u)),
+    "sqrt": lambda u: (lambda r: (r, 0.5 / r, -0.25 / (r * r * r)))(np.sqrt(u)),
+    "abs": lambda u: (np.abs(u), np.sign(u), 0.0 * u),
+}
+_JET_NAMES = {"pi": math.pi, "e": math.e}
+
+
+def _jet(node: _Node, x: np.ndarray, L: float) -> _Jet:
+    kind = node.kind
+    if kind == "num":
+        assert isinstance(node.value, Fraction)
+        return _fraction_float(node.value), 0.0, 0.0
+    if kind == "name":
+        if node.value == "x":
+            return x, 1.0, 0.0
+        if node.value == "L":
+            return L, 0.0, 0.0
+        return _JET_NAMES[str(node.value)], 0.0, 0.0
+    if kind == "neg":
+        a0, a1, a2 = _jet(node.args[0], x, L)
+        return -a0, -a1, -a2
+    if kind == "call":
+        u0, u1, u2 = _jet(node.args[0], x, L)
+        g0, g1, g2 = _JET_FUNCTIONS[str(node.value)](u0)
+        return g0, g1 * u1, g2 * u1 * u1 + g1 * u2
+    if kind == "pow":
+        assert isinstance(node.value, Fraction)
+        return _jet_power(_jet(node.args[0], x, L), node.value)
+    (a0, a1, a2), (b0, b1, b2) = (_jet(arg, x, L) for arg in node.args)
+    if kind == "add":
+        return a0 + b0, a1 + b1, a2 + b2
+    if kind == "sub":
+        return a0 - b0, a1 - b1, a2 - b2
+    if kind == "mul":
+        return a0 * b0, a1 * b0 + a0 * b1, a2 * b0 + 2.0 * a1 * b1 + a0 * b2
+    q0 = a0 / b0
+    q1 = (a1 - q0 * b1) / b0
+    return q0, q1, (a2 - 2.0 * q1 * b1 - q0 * b2) / b0
+
+
+def _jet_power(base: _Jet, p: Fraction) -> _Jet:
+    """u**p with its derivatives; integer powers stay exact for a negative base."""
+    u0, u1, u2 = base
+    if p.denominator == 1:
+        n = int(p)
+        if n == 0:
+            return 1.0 + 0.0 * u0, 0.0, 0.0
+        value = np.power(np.asarray(u0, dtype=float), n)
+        first = n * np.power(np.asarray(u0, dtype=float), n - 1)
+        second = 0.0 if n == 1 else n * (n - 1) * np.power(np.asarray(u0, dtype=float), n - 2)
+    else:
+        q = float(p)
+        if p.denominator == 2:
+            root = np.sqrt(np.asarray(u0, dtype=float))
+            value = np.power(root, p.numerator)
+            first = q * np.power(root, p.numerator - 2)
+            second = q * (q - 1.0) * np.power(root, p.numerator - 4)
+        else:
+            value = np.power(np.asarray(u0, dtype=float), q)
+            first = q * np.power(np.asarray(u0, dtype=float), q - 1.0)
+            second = q * (q - 1.0) * np.power(np.asarray(u0, dtype=float), q - 2.0)
+    return value, first * u1, second * u1 * u1 + first * u2
+
+
+def _fraction_float(value: Fraction) -> float:
+    try:
+        return float(value)
+    except OverflowError:
+        return math.inf if value > 0 else -math.inf
+
+
 def parse_shape(text: str, key: str = "estimate.shape") -> sympy.Expr:
     """Parse an assumed mode shape into a sympy expression.
 
@@ -176,17 +343,7 @@ def parse_shape(text: str, key: str = "estimate.shape") -> sympy.Expr:
         whitelist, exceeds a size bound, divides by zero, is not real, or does not depend
         on ``x``.
     """
-    if not isinstance(text, str):
-        raise InputError(key, text, _EXPECTED, "the shape must be given as text")
-    if len(text) > MAX_LENGTH:
-        raise InputError(
-            key, text, _EXPECTED, f"{len(text)} characters; at most {MAX_LENGTH} are allowed"
-        )
-    if not text.strip(" \t"):
-        raise InputError(key, text, _EXPECTED, "the formula is empty")
-    tokens = _tokenize(text, key)
-    tree = _Parser(text, key, tokens).parse()
-    return _build(tree, text, key)
+    return _build(parse_formula(text, key).tree, text, key)
 
 
 def evaluate(expr: sympy.Expr, x: np.ndarray, L: float) -> np.ndarray:

@@ -17,7 +17,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.linalg
@@ -25,6 +25,10 @@ import scipy.linalg
 from calc import fe
 from calc.errors import InputError
 from calc.model import HOLDS, POSITION_TOLERANCE, Member, rigid_body_count
+
+if TYPE_CHECKING:  # pragma: no cover
+    from calc.expressions import Formula
+    from calc.symbolic import ShapeFacts
 
 __all__ = [
     "NAMED_SHAPES",
@@ -49,7 +53,6 @@ G0 = 9.80665
 
 _GAUSS_POINTS = 12
 _SUBDIVISIONS = 24
-_SYMBOLIC_NODES = 80
 
 
 # --- results -------------------------------------------------------------------------------------
@@ -227,25 +230,30 @@ def named_shape(member: Member, name: str) -> str:
     return template.replace("X", "(1 - x/L)")
 
 
-def _expression_trial(expr: Any, L: float, key: str = "estimate.shape") -> Trial:
-    import sympy
+def _shape(text: str, key: str) -> tuple[Formula, ShapeFacts]:
+    """Parse a shape formula and look up what sympy found about it (see calc.symbolic)."""
+    from calc.expressions import parse_formula
+    from calc.symbolic import shape_facts
 
-    from calc.expressions import evaluate, symbols
+    formula = parse_formula(text, key)
+    return formula, shape_facts(text, key)
 
-    x_sym, _ = symbols()
-    d1 = sympy.diff(expr, x_sym)
-    d2 = sympy.diff(d1, x_sym)
 
-    if d2.has(sympy.DiracDelta) or d1.has(sympy.DiracDelta):
+def _expression_trial(
+    formula: Formula, facts: ShapeFacts, L: float, key: str = "estimate.shape"
+) -> Trial:
+    from calc.expressions import derivatives
+
+    if facts.kink:
         raise InputError(
             key,
-            str(expr),
+            facts.expression,
             "a shape with a continuous slope: a kink (from abs) has unbounded curvature",
         )
 
     def trial(x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         with np.errstate(all="ignore"):
-            return evaluate(expr, x, L), evaluate(d1, x, L), evaluate(d2, x, L)
+            return derivatives(formula, x, L)
 
     return trial
 
@@ -385,18 +393,24 @@ def _without_rigid(
 
 
 def admissibility(
-    member: Member, expr: Any, key: str = "estimate.shape", text: str | None = None
+    member: Member,
+    formula: Formula,
+    facts: ShapeFacts,
+    key: str = "estimate.shape",
+    text: str | None = None,
 ) -> tuple[str, ...]:
     """Check an expression shape against the geometric conditions of every support.
 
-    Conditions at the ends are checked symbolically (numerically where symbolic
-    simplification is inconclusive), at inner supports numerically.
+    Conditions at the ends are decided exactly where sympy could (see
+    :func:`calc.symbolic.shape_facts`), numerically otherwise; at inner supports numerically.
 
     Parameters
     ----------
     member : Member
-    expr : sympy.Expr
-        Shape in x [m] and L [m].
+    formula : Formula
+        Shape in x [m] and L [m], from :func:`calc.expressions.parse_formula`.
+    facts : ShapeFacts
+        Its symbolic facts.
     key : str
         Key named in the error.
     text : str, optional
@@ -413,79 +427,62 @@ def admissibility(
         Where a geometric condition is violated: the quotient could then fall
         below the true frequency.
     """
-    import sympy
+    from calc.expressions import derivatives
 
-    from calc.expressions import evaluate, symbols
-
-    x, L_sym = symbols()
     L = member.length
-    shown = text if text is not None else str(expr)
-    d1 = sympy.diff(expr, x)
-    d2 = sympy.diff(d1, x)
-    d3 = sympy.diff(d2, x)
+    shown = text if text is not None else facts.expression
     samples = np.linspace(0.0, L, 201)
     with np.errstate(all="ignore"):
-        scale_w = float(np.nanmax(np.abs(evaluate(expr, samples, L))))
-        scale_d = float(np.nanmax(np.abs(evaluate(d1, samples, L)))) * L
+        w, d1, _ = derivatives(formula, samples, L)
+        scale_w = float(np.nanmax(np.abs(w)))
+        scale_d = float(np.nanmax(np.abs(d1))) * L
     if not math.isfinite(scale_w) or scale_w == 0.0:
         raise InputError(key, shown, "a shape that is finite and not zero along the member")
     scale = max(scale_w, scale_d)
 
-    def vanishes(f: Any, at_end: float | None, at: float) -> bool:
-        if at_end is not None:
-            value = sympy.simplify(f.subs(x, at_end))
-            if value == 0:
-                return True
-            if value.is_number:
-                return abs(complex(value)) == 0.0
+    def vanishes(order: int, end: str | None, at: float) -> bool:
+        if end is not None:
+            state = facts.ends.get(f"{order}@{end}", "unknown")
+            if state != "unknown":
+                return state == "zero"
         with np.errstate(all="ignore"):
-            v = float(evaluate(f, np.array([at]), L)[0]) * (L if f is not expr else 1.0)
+            v = float(derivatives(formula, np.array([at]), L)[order][0]) * (L if order else 1.0)
         return math.isfinite(v) and abs(v) <= 1e-10 * scale
 
     notes: list[str] = []
     for where, kind in _supports(member):
         holds_w, holds_slope = HOLDS[kind]
-        end: Any = None
+        end: str | None = None
         if where == 0.0:
-            end, name = sympy.Integer(0), "x = 0"
+            end, name = "0", "x = 0"
         elif where == L:
-            end, name = L_sym, "x = L"
+            end, name = "L", "x = L"
         else:
             name = f"x = {where:.6g} m"
-        text = shown
-        if holds_w and not vanishes(expr, end, where):
+        if holds_w and not vanishes(0, end, where):
             raise InputError(
                 key,
-                text,
+                shown,
                 f"a shape with w = 0 at the {kind} support at {name}",
                 "a shape that moves a support can give an estimate below the true frequency",
             )
-        if holds_slope and not vanishes(d1, end, where):
+        if holds_slope and not vanishes(1, end, where):
             raise InputError(
                 key,
-                text,
+                shown,
                 f"a shape with w' = 0 at the {kind} support at {name}",
                 "a shape that turns a clamped or guided support can underestimate the frequency",
             )
         if end is not None:
-            natural = {"pinned": [(d2, "w''")], "guided": [(d3, "w'''")]}
-            natural["free"] = [(d2, "w''"), (d3, "w'''")]
-            for f, label in natural.get(kind, []):
-                if member.axial_force == 0.0 and not _is_zero(f.subs(x, end)):
+            natural = {"pinned": [(2, "w''")], "guided": [(3, "w'''")]}
+            natural["free"] = [(2, "w''"), (3, "w'''")]
+            for order, label in natural.get(kind, []):
+                if member.axial_force == 0.0 and facts.ends.get(f"{order}@{end}") != "zero":
                     notes.append(
                         f"the shape does not meet the natural condition {label} = 0 at the {kind} "
                         f"end ({name}); the estimate stays an upper bound, only less close"
                     )
     return tuple(notes)
-
-
-def _is_zero(value: Any) -> bool:
-    import sympy
-
-    try:
-        return bool(sympy.simplify(value) == 0)
-    except (TypeError, ValueError, RecursionError):
-        return False
 
 
 # --- Rayleigh ------------------------------------------------------------------------------------
@@ -511,14 +508,12 @@ def rayleigh_shape(member: Member, text: str, key: str = "estimate.shape") -> Ra
     InputError
         For an unparsable or hostile expression, or one that violates a geometric condition.
     """
-    from calc.expressions import parse_shape
-
     name = text.strip()
     expression = named_shape(member, name) if name in SHAPE_NAMES else name
-    expr = parse_shape(expression, key)
-    notes = admissibility(member, expr, key, text)
+    parsed, facts = _shape(expression, key)
+    notes = admissibility(member, parsed, facts, key, text)
     quad = _quadrature(member)
-    trial = _expression_trial(expr, member.length, key)
+    trial = _expression_trial(parsed, facts, member.length, key)
     K, M, rigid = _without_rigid(member, [trial], quad)
     if not M[0, 0] > 0.0:
         raise InputError(key, expression, "a shape that is not a rigid-body motion of the member")
@@ -526,7 +521,7 @@ def rayleigh_shape(member: Member, text: str, key: str = "estimate.shape") -> Ra
     omega = math.sqrt(max(omega2, 0.0))
     formula = coefficient = exact = check = None
     if rigid == 0:
-        symbolic = _symbolic(member, expr)
+        symbolic = _symbolic(member, parsed, facts)
         if symbolic is not None:
             omega_sym, formula, coefficient, exact = symbolic
             check = abs(omega_sym - omega) / omega_sym
@@ -535,7 +530,7 @@ def rayleigh_shape(member: Member, text: str, key: str = "estimate.shape") -> Ra
         notes = (*notes, "the shape was made mass-orthogonal to the rigid-body motions")
     return RayleighEstimate(
         shape=name,
-        expression=str(expr),
+        expression=facts.expression,
         omega=omega,
         frequency_hz=omega / (2.0 * math.pi),
         formula=formula,
@@ -546,83 +541,53 @@ def rayleigh_shape(member: Member, text: str, key: str = "estimate.shape") -> Ra
     )
 
 
-def _symbolic(member: Member, expr: Any) -> tuple[float, str, float | None, str | None] | None:
-    """Closed-form quotient for a uniform member, where sympy integrates the shape."""
-    import sympy
+def _symbolic(
+    member: Member, formula: Formula, facts: ShapeFacts
+) -> tuple[float, str, float | None, str | None] | None:
+    """Closed-form quotient for a uniform member, from the integrals sympy found."""
+    from calc.expressions import derivatives
+    from calc.symbolic import integral_values
 
-    from calc.expressions import evaluate, symbols
-
-    if not member.is_uniform or not _integrable(expr):
+    if not member.is_uniform:
         return None
-    x, L_sym = symbols()
-    d1 = sympy.diff(expr, x)
-    d2 = sympy.diff(d1, x)
-    integrals = []
-    for f in (d2**2, d1**2, expr**2):
-        value = sympy.integrate(sympy.expand(f), (x, 0, L_sym))
-        if value.has(sympy.Integral):
-            return None
-        integrals.append(sympy.simplify(value))
+    integrals = integral_values(facts, member.length)
+    if integrals is None or facts.integral_texts is None:
+        return None
     I2, I1, I0 = integrals
     seg = member.segments[0]
     EI, m, L, P = seg.bending_stiffness, seg.mass_per_length, member.length, member.axial_force
-    num = EI * float(I2.subs(L_sym, L)) + P * float(I1.subs(L_sym, L))
-    den = m * float(I0.subs(L_sym, L))
-    for sp in member.springs:
-        w = float(evaluate(expr, np.array([sp.at]), L)[0])
-        s = float(evaluate(d1, np.array([sp.at]), L)[0])
-        num += sp.stiffness * w * w + sp.rotational_stiffness * s * s
-    for pm in member.masses:
-        w = float(evaluate(expr, np.array([pm.at]), L)[0])
-        s = float(evaluate(d1, np.array([pm.at]), L)[0])
-        den += pm.mass * w * w + pm.rotary_inertia * s * s
+    num = EI * I2 + P * I1
+    den = m * I0
+    with np.errstate(all="ignore"):
+        for sp in member.springs:
+            w, s, _ = (float(v[0]) for v in derivatives(formula, np.array([sp.at]), L))
+            num += sp.stiffness * w * w + sp.rotational_stiffness * s * s
+        for pm in member.masses:
+            w, s, _ = (float(v[0]) for v in derivatives(formula, np.array([pm.at]), L))
+            den += pm.mass * w * w + pm.rotary_inertia * s * s
+    if not (num >= 0.0 and den > 0.0 and math.isfinite(num / den)):
+        return None
     omega = math.sqrt(num / den)
-    c2 = sympy.simplify(L_sym**4 * I2 / I0)
     bare = not (member.springs or member.masses or P)
-    if bare and not c2.free_symbols:
-        coefficient = math.sqrt(float(c2))
-        formula = f"omega = {coefficient:.4g}*sqrt(EI/(m*L^4)), with C^2 = {sympy.sstr(c2)}"
-        return omega, formula, coefficient, sympy.sstr(c2)
-    parts = [f"EI*({sympy.sstr(I2)})"]
+    if bare and facts.c_squared_value is not None and facts.c_squared_value >= 0.0:
+        coefficient = math.sqrt(facts.c_squared_value)
+        formula_text = f"omega = {coefficient:.4g}*sqrt(EI/(m*L^4)), with C^2 = {facts.c_squared}"
+        return omega, formula_text, coefficient, facts.c_squared
+    text2, text1, text0 = facts.integral_texts
+    parts = [f"EI*({text2})"]
     if P:
-        parts.append(f"P*({sympy.sstr(I1)})")
+        parts.append(f"P*({text1})")
     if any(sp.stiffness for sp in member.springs):
         parts.append("sum k*w(a)^2")
     if any(sp.rotational_stiffness for sp in member.springs):
         parts.append("sum k_r*w'(a)^2")
-    dens = [f"m*({sympy.sstr(I0)})"]
+    dens = [f"m*({text0})"]
     if any(pm.mass for pm in member.masses):
         dens.append("sum M*w(a)^2")
     if any(pm.rotary_inertia for pm in member.masses):
         dens.append("sum J*w'(a)^2")
-    formula = f"omega^2 = ({' + '.join(parts)}) / ({' + '.join(dens)})"
-    return omega, formula, None, None
-
-
-def _integrable(expr: Any) -> bool:
-    """Shapes sympy integrates quickly: polynomials times sin/cos/sinh/cosh/exp of a*x + b."""
-    import sympy
-
-    from calc.expressions import symbols
-
-    x, _ = symbols()
-    if sympy.count_ops(expr) > _SYMBOLIC_NODES:
-        return False
-    allowed = (sympy.sin, sympy.cos, sympy.sinh, sympy.cosh, sympy.exp)
-    for node in sympy.preorder_traversal(expr):
-        if isinstance(node, sympy.Function):
-            if not isinstance(node, allowed):
-                return False
-            arg = node.args[0]
-            if not arg.is_polynomial(x) or sympy.degree(arg, x) > 1:
-                return False
-        elif (
-            isinstance(node, sympy.Pow)
-            and node.base.has(x)
-            and not (node.exp.is_Integer and node.exp >= 0)
-        ):
-            return False
-    return True
+    formula_text = f"omega^2 = ({' + '.join(parts)}) / ({' + '.join(dens)})"
+    return omega, formula_text, None, None
 
 
 def static_shape(member: Member, elements: int = 96) -> tuple[fe.Mesh, fe.System, np.ndarray, str]:
@@ -774,18 +739,19 @@ def ritz(member: Member, shapes: list[str] | int, key: str = "estimate.shapes") 
         ]
         labels = tuple(f"polynomial family, function {i + 1}" for i in range(shapes))
         return RitzResult(labels, rows[-1], tuple(rows))
-    from calc.expressions import parse_shape
-
-    exprs = []
+    parsed = []
     for i, text in enumerate(shapes):
         item = f"{key}[{i}]"
-        expr = parse_shape(text, item)
-        admissibility(member, expr, item, text)
-        exprs.append(expr)
-    trials = [_expression_trial(e, member.length, f"{key}[{i}]") for i, e in enumerate(exprs)]
+        formula, facts = _shape(text, item)
+        admissibility(member, formula, facts, item, text)
+        parsed.append((formula, facts))
+    trials = [
+        _expression_trial(formula, facts, member.length, f"{key}[{i}]")
+        for i, (formula, facts) in enumerate(parsed)
+    ]
     K, M, _ = _without_rigid(member, trials, quad)
     rows = [_bounds(K[:n, :n], M[:n, :n], 0, key) for n in range(1, len(trials) + 1)]
-    return RitzResult(tuple(str(e) for e in exprs), rows[-1], tuple(rows))
+    return RitzResult(tuple(facts.expression for _, facts in parsed), rows[-1], tuple(rows))
 
 
 def _bounds(K: np.ndarray, M: np.ndarray, rigid: int, key: str) -> tuple[float, ...]:

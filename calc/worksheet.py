@@ -531,15 +531,17 @@ def _estimate(value: object) -> EstimateSettings:
         )
     # Expressions are read now, so every command refuses a bad one (the named shapes and
     # "static" need no parsing); admissibility needs the member and is checked when solved.
+    # (sympy's verdict on a formula is kept on disk, so this stays cheap; see calc.symbolic)
+    from calc.expressions import parse_formula
+    from calc.symbolic import shape_facts
+
     if shape.strip() not in ("static", "polynomial", "trigonometric"):
-        from calc.expressions import parse_shape
-
-        parse_shape(shape.strip(), "estimate.shape")
+        parse_formula(shape.strip(), "estimate.shape")
+        shape_facts(shape.strip(), "estimate.shape")
     if isinstance(shapes, tuple):
-        from calc.expressions import parse_shape
-
         for i, item in enumerate(shapes):
-            parse_shape(item, f"estimate.shapes[{i}]")
+            parse_formula(item, f"estimate.shapes[{i}]")
+            shape_facts(item, f"estimate.shapes[{i}]")
     return EstimateSettings(shape.strip(), shapes, reference)
 
 
