@@ -5,9 +5,9 @@ divides by zero, is not real, or does not vary with x), the exact end conditions
 admissibility check, and the closed-form Rayleigh quotient of a uniform member.  All three
 depend on the text of the formula alone, not on the member.  They are found with sympy the
 first time a formula is met and stored, keyed by that text and by the sympy version, in a
-small JSON file in the user's cache folder (``$XDG_CACHE_HOME/beamtone``, or
-``$BEAMTONE_CACHE`` where set).  Every later solve, in this process or another, reads them
-back without importing sympy, which is most of a cold start otherwise.
+small JSON file in the user's cache folder (see :mod:`calc.diskcache`).  Every later solve,
+in this process or another, reads them back without importing sympy, which is most of a
+cold start otherwise.
 
 The closed-form integrals are stored as small trees of whitelisted operations (numbers,
 ``L``, ``pi``, ``e``, sums, products, powers and the shape functions), evaluated here with
@@ -18,22 +18,19 @@ rebuilt); nothing in it is ever executed.
 
 from __future__ import annotations
 
-import json
 import math
-import os
-import tempfile
 from dataclasses import dataclass
 from fractions import Fraction
 from functools import lru_cache
-from pathlib import Path
 from typing import Any
 
+from calc import diskcache
 from calc.errors import InputError
 
-__all__ = ["ShapeFacts", "EndValue", "shape_facts", "integral_values", "cache_path"]
+__all__ = ["ShapeFacts", "EndValue", "shape_facts", "integral_values"]
 
-_FORMAT = 1
-_MAX_ENTRIES = 400  # formulas kept in the cache file; the oldest go first
+_CACHE = "shapes"
+_MAX_ENTRIES = diskcache.MAX_ENTRIES
 _SYMBOLIC_NODES = 80  # sympy operations beyond which no closed form is attempted
 _CHECK_LENGTH = 1.7  # [m] a length at which stored integrals are checked against sympy
 _FUNCTIONS = {
@@ -88,22 +85,6 @@ class ShapeFacts:
     c_squared_value: float | None
 
 
-def cache_path() -> Path:
-    """The cache file of shape facts.
-
-    Returns
-    -------
-    pathlib.Path
-        ``$BEAMTONE_CACHE/shapes.json`` where that variable is set, else
-        ``$XDG_CACHE_HOME/beamtone/shapes.json`` (``~/.cache`` by default).
-    """
-    own = os.environ.get("BEAMTONE_CACHE")
-    if own:
-        return Path(own) / "shapes.json"
-    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
-    return Path(base) / "beamtone" / "shapes.json"
-
-
 def shape_facts(text: str, key: str = "estimate.shape") -> ShapeFacts:
     """The symbolic facts of a shape formula: from the cache, or found with sympy and stored.
 
@@ -134,26 +115,15 @@ def shape_facts(text: str, key: str = "estimate.shape") -> ShapeFacts:
 
 @lru_cache(maxsize=256)
 def _facts(text: str) -> ShapeFacts:
-    version = _sympy_version()
-    path = cache_path()
-    entry = _read(path, version).get(text)
+    version = diskcache.library_version("sympy")
+    entry = diskcache.read(_CACHE, version).get(text)
     if entry is not None:
         facts = _from_json(entry)
         if facts is not None:
             return facts
     facts = _derive(text)
-    _store(path, version, text, _to_json(facts))
+    diskcache.store(_CACHE, version, text, _to_json(facts), _MAX_ENTRIES)
     return facts
-
-
-def _sympy_version() -> str:
-    """sympy's version without importing it (its results are what the cache keeps)."""
-    from importlib.metadata import PackageNotFoundError, version
-
-    try:
-        return version("sympy")
-    except PackageNotFoundError:  # pragma: no cover - sympy is a dependency
-        return "unknown"
 
 
 # --- deriving with sympy -------------------------------------------------------------------
@@ -392,40 +362,3 @@ def _from_json(entry: Any) -> ShapeFacts | None:
         return facts
     except (KeyError, TypeError, AttributeError, ValueError, RecursionError):
         return None
-
-
-def _read(path: Path, version: str) -> dict[str, Any]:
-    try:
-        data = json.loads(path.read_text(encoding="utf-8"))
-    except (OSError, ValueError, UnicodeDecodeError, RecursionError):
-        return {}
-    if (
-        not isinstance(data, dict)
-        or data.get("format") != _FORMAT
-        or data.get("sympy") != version
-        or not isinstance(data.get("shapes"), dict)
-    ):
-        return {}
-    return data["shapes"]
-
-
-def _store(path: Path, version: str, text: str, entry: dict[str, Any]) -> None:
-    """Add one entry to the cache file (atomically; any failure only loses the cache)."""
-    shapes = dict(_read(path, version))
-    shapes.pop(text, None)
-    shapes[text] = entry
-    while len(shapes) > _MAX_ENTRIES:
-        shapes.pop(next(iter(shapes)))
-    data = {"format": _FORMAT, "sympy": version, "shapes": shapes}
-    try:
-        path.parent.mkdir(parents=True, exist_ok=True)
-        fd, temporary = tempfile.mkstemp(dir=path.parent, prefix=".shapes-", suffix=".json")
-        try:
-            with os.fdopen(fd, "w", encoding="utf-8") as handle:
-                json.dump(data, handle)
-            os.replace(temporary, path)
-        except BaseException:
-            Path(temporary).unlink(missing_ok=True)
-            raise
-    except (OSError, TypeError, ValueError):
-        pass

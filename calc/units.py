@@ -139,15 +139,11 @@ def _dimensionality(pint_dimension: str) -> object:
     return registry().get_dimensionality(pint_dimension)
 
 
-def _parse_units(text: str, key: str, given: str, dim: Dimension) -> pint.Unit:
+def _parse_units(canonical: str, text: str, key: str, given: str, dim: Dimension) -> pint.Unit:
+    """pint's unit for an expression already in canonical form (``text`` as written)."""
     import pint
 
     expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
-    if not text:
-        raise InputError(key, given, expected, "the unit is missing")
-    canonical = _canonical_units(text)
-    if canonical is None:
-        raise InputError(key, given, expected, f"{text!r} is not a unit expression")
     try:
         return registry().parse_units(canonical)
     except pint.errors.UndefinedUnitError as exc:
@@ -310,21 +306,7 @@ def _parse_quantity(
     number = float(match.group(1))
     if not math.isfinite(number):
         raise InputError(key, text, f"a finite number with a unit, e.g. {dim.example}")
-    units = _parse_units(match.group(2), key, text, dim)
-    quantity = number * units
-    ureg = registry()
-    if quantity.dimensionality != _dimensionality(dim.pint_dimension):
-        hint = f"{match.group(2)!r} is {_describe(quantity.dimensionality)}"
-        weight = _WEIGHT_IN_PLACE_OF.get(dim.pint_dimension)
-        if weight is not None:
-            force_dim = ureg.get_dimensionality(dim.pint_dimension + " * [length] / [time] ** 2")
-            if quantity.dimensionality == force_dim:
-                raise InputError(key, text, weight[1], f"{match.group(2)!r} gives {weight[0]}")
-        raise InputError(key, text, expected, hint)
-    try:
-        value = float(quantity.to(dim.si_unit).magnitude)
-    except (OverflowError, ZeroDivisionError):
-        value = math.inf
+    value = number * _si_factor(match.group(2), key, text, dim)
     if not math.isfinite(value):
         raise InputError(key, text, f"a finite value; this one overflows in {dim.si_unit}")
     if value == 0.0 and not allow_zero:
@@ -340,6 +322,77 @@ def _parse_quantity(
         span = f"{low:g} {dim.si_unit} to {high:g} {dim.si_unit}" if minimum else f"up to {high:g}"
         raise InputError(key, text, f"{zero}{what} of {span}", f"this is {size:.3g} {dim.si_unit}")
     return value
+
+
+def _si_factor(unit_text: str, key: str, given: str, dim: Dimension) -> float:
+    """What one of ``unit_text`` is in the SI unit of ``dim``: from the cache, or from pint.
+
+    pint's answer for a unit expression never changes for a given pint version, so it is kept
+    on disk (see :mod:`calc.diskcache`) and a later start needs no registry for it.  Only
+    accepted units are kept; every refusal comes from pint, with its full message.
+    """
+    expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
+    if not unit_text:
+        raise InputError(key, given, expected, "the unit is missing")
+    canonical = _canonical_units(unit_text)
+    if canonical is None:
+        raise InputError(key, given, expected, f"{unit_text!r} is not a unit expression")
+    entry = f"{dim.pint_dimension}|{canonical}"
+    known = _unit_cache().get(entry)
+    if isinstance(known, float) and math.isfinite(known) and known > 0.0:
+        return known
+    units = _parse_units(canonical, unit_text, key, given, dim)
+    quantity = 1.0 * units
+    if quantity.dimensionality != _dimensionality(dim.pint_dimension):
+        hint = f"{unit_text!r} is {_describe(quantity.dimensionality)}"
+        weight = _WEIGHT_IN_PLACE_OF.get(dim.pint_dimension)
+        if weight is not None:
+            force_dim = registry().get_dimensionality(
+                dim.pint_dimension + " * [length] / [time] ** 2"
+            )
+            if quantity.dimensionality == force_dim:
+                raise InputError(key, given, weight[1], f"{unit_text!r} gives {weight[0]}")
+        raise InputError(key, given, expected, hint)
+    try:
+        factor = float(quantity.to(dim.si_unit).magnitude)
+    except (OverflowError, ZeroDivisionError):
+        factor = math.inf
+    _remember(entry, factor)
+    return factor
+
+
+_UNIT_CACHE = "units"
+_unit_entries: dict[str, object] | None = None
+
+
+def _unit_cache() -> dict[str, object]:
+    global _unit_entries
+    if _unit_entries is None:
+        from calc import diskcache
+
+        _unit_entries = dict(diskcache.read(_UNIT_CACHE, diskcache.library_version("pint")))
+    return _unit_entries
+
+
+def _remember(entry: str, value: float | bool) -> None:
+    if isinstance(value, float) and not (math.isfinite(value) and value > 0.0):
+        return
+    from calc import diskcache
+
+    _unit_cache()[entry] = value
+    diskcache.store(_UNIT_CACHE, diskcache.library_version("pint"), entry, value)
+
+
+def _is_angular(canonical: str) -> bool:
+    """Whether a unit counts radians per time (rpm, rad/s), from the cache or from pint."""
+    entry = f"angular|{canonical}"
+    known = _unit_cache().get(entry)
+    if isinstance(known, bool):
+        return known
+    base = (1.0 * registry().parse_units(canonical)).to_base_units()
+    angular = "radian" in str(base.units)
+    _remember(entry, angular)
+    return angular
 
 
 def parse_frequency(text: object, key: str) -> float:
@@ -363,9 +416,7 @@ def parse_frequency(text: object, key: str) -> float:
     value = parse_quantity(text, FREQUENCY, key)
     match = _QUANTITY.match(str(text))
     assert match is not None  # parse_quantity accepted it
-    units = registry().parse_units(_canonical_units(match.group(2)) or "")
-    base = (1.0 * units).to_base_units()
-    if "radian" in str(base.units):
+    if _is_angular(_canonical_units(match.group(2)) or ""):
         value /= 2.0 * math.pi
     return value
 
@@ -390,7 +441,10 @@ def convert_from_si(value: float, unit_text: str) -> float:
     float
         The value in ``unit_text``.
     """
-    ureg = registry()
-    target = ureg.parse_units(unit_text)
-    base = (1.0 * target).to_base_units()
-    return value / float(base.magnitude)
+    entry = f"base|{unit_text}"
+    known = _unit_cache().get(entry)
+    if isinstance(known, float) and math.isfinite(known) and known > 0.0:
+        return value / known
+    factor = float((1.0 * registry().parse_units(unit_text)).to_base_units().magnitude)
+    _remember(entry, factor)
+    return value / factor

@@ -8,9 +8,6 @@ from __future__ import annotations
 
 import json
 import math
-import os
-import subprocess
-import sys
 from collections.abc import Iterator
 from pathlib import Path
 
@@ -24,6 +21,7 @@ from calc.expressions import derivatives, evaluate, parse_formula, parse_shape, 
 from calc.materials import LIBRARY
 from calc.model import Member, PointMass, Segment, Spring
 from calc.sections import build_section
+from tests.processes import cold_solves
 
 ROOT = Path(__file__).resolve().parents[2]
 LENGTH = 1.3
@@ -135,7 +133,7 @@ def test_refusals_are_kept_too(fresh_cache: Path) -> None:
     [
         "not json",
         "[]",
-        '{"format": 1, "sympy": "0.0", "shapes": {}}',
+        '{"format": 1, "version": "0.0", "entries": {}}',
         "{}",
         "\u0000\u0001",
     ],
@@ -152,7 +150,7 @@ def test_a_tampered_entry_is_never_evaluated(fresh_cache: Path) -> None:
     member = _members()[0]
     expected = rayleigh.rayleigh_shape(member, "x*(L - x)")
     data = json.loads(fresh_cache.read_text(encoding="utf-8"))
-    entry = data["shapes"]["x*(L - x)"]
+    entry = data["entries"]["x*(L - x)"]
     entry["integrals"][0] = ["fn", "__import__", ["num", 1, 1]]
     fresh_cache.write_text(json.dumps(data), encoding="utf-8")
     symbolic._facts.cache_clear()
@@ -179,28 +177,12 @@ def test_the_cache_stays_bounded(fresh_cache: Path, monkeypatch: pytest.MonkeyPa
     monkeypatch.setattr(symbolic, "_MAX_ENTRIES", 3)
     for k in range(1, 6):
         symbolic.shape_facts(f"x**{k}")
-    shapes = json.loads(fresh_cache.read_text(encoding="utf-8"))["shapes"]
+    shapes = json.loads(fresh_cache.read_text(encoding="utf-8"))["entries"]
     assert list(shapes) == ["x**3", "x**4", "x**5"]
 
 
 def test_a_cached_solve_does_not_import_sympy(fresh_cache: Path) -> None:
     sheet = ROOT / "worksheets" / "machine-span.toml"
-    code = (
-        "import sys; from calc.worksheet import load; from calc.analysis import analyse; "
-        f"a = analyse(load({str(sheet)!r})); print(a.estimate.formula); "
-        "print('sympy' in sys.modules)"
-    )
-    env = {**os.environ, "BEAMTONE_CACHE": str(fresh_cache.parent)}
-    runs = [
-        subprocess.run(
-            [sys.executable, "-c", code],
-            capture_output=True,
-            text=True,
-            cwd=ROOT,
-            env=env,
-            check=True,
-        ).stdout.split("\n")  # fmt: skip
-        for _ in range(2)
-    ]
-    assert runs[0][1] == "True" and runs[1][1] == "False"
-    assert runs[0][0] == runs[1][0] and runs[0][0].startswith("omega^2 = (EI*(pi**4")
+    first, again = cold_solves(sheet, "a.estimate.formula", "sympy", fresh_cache.parent)
+    assert first[1] and not again[1]
+    assert first[0] == again[0] and first[0].startswith("omega^2 = (EI*(pi**4")
