@@ -592,3 +592,16 @@ def test_a_very_short_element_beside_rigid_modes_still_solves() -> None:
     a, b = fe.solve(near, 2), fe.solve(on_step, 2)
     assert a.rigid_body_modes == 1
     assert a.frequencies_hz == pytest.approx(b.frequencies_hz, rel=2e-3)
+
+
+def test_sparse_solves_repeat_to_the_bit() -> None:
+    """ARPACK starts from a fixed vector: the same model gives the same digits every time."""
+    masses = tuple(PointMass(0.05 + 0.09 * i, 0.05) for i in range(11))
+    member = uniform("clamped", "free", masses=masses)
+    first = fe.solve(member, 5)
+    assert first.degrees_of_freedom > fe._DENSE_LIMIT
+    assert "ARPACK" in first.solver
+    for _ in range(3):
+        again = fe.solve(member, 5)
+        assert np.array_equal(again.frequencies_hz, first.frequencies_hz)
+        assert all(np.array_equal(a.w, b.w) for a, b in zip(again.modes, first.modes, strict=True))
