@@ -26,13 +26,14 @@ MAX_ENTRIES = 400
 """Entries kept per cache file; the oldest go first."""
 
 
-def folder() -> Path:
-    """The cache folder (see the module documentation)."""
+def folder() -> Path | None:
+    """The cache folder (see the module documentation), or None where there is no home."""
     own = os.environ.get("BEAMTONE_CACHE")
     if own:
         return Path(own)
-    base = os.environ.get("XDG_CACHE_HOME") or str(Path.home() / ".cache")
-    return Path(base) / "beamtone"
+    base = Path(os.environ.get("XDG_CACHE_HOME") or os.path.expanduser("~/.cache"))
+    # without a home folder "~" stays as it is: keep nothing rather than write below the cwd
+    return base / "beamtone" if base.is_absolute() else None
 
 
 def library_version(name: str) -> str:
@@ -47,8 +48,11 @@ def library_version(name: str) -> str:
 
 def read(name: str, version: str) -> dict[str, Any]:
     """The entries of cache ``name`` written for ``version`` (empty if there are none)."""
+    where = folder()
+    if where is None:
+        return {}
     try:
-        data = json.loads((folder() / f"{name}.json").read_text(encoding="utf-8"))
+        data = json.loads((where / f"{name}.json").read_text(encoding="utf-8"))
     except (OSError, ValueError, UnicodeDecodeError, RecursionError):
         return {}
     if (
@@ -63,7 +67,10 @@ def read(name: str, version: str) -> dict[str, Any]:
 
 def store(name: str, version: str, key: str, entry: Any, limit: int | None = None) -> None:
     """Add (or renew) one entry of cache ``name``."""
-    path = folder() / f"{name}.json"
+    where = folder()
+    if where is None:
+        return
+    path = where / f"{name}.json"
     entries = dict(read(name, version))
     entries.pop(key, None)
     entries[key] = entry

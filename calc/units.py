@@ -3,6 +3,10 @@
 Every quantity a user writes is a string ``"number unit"``.  It is parsed here,
 once, checked against the dimension its field needs, and handed on as a plain
 SI float.  The numerical core never sees units.
+
+pint's answer for an accepted unit expression (its factor to the field's SI unit) is kept
+in the disk cache of :mod:`calc.diskcache`, keyed by pint's version, so a later start that
+meets only known units needs no registry; refusals always come from pint itself.
 """
 
 from __future__ import annotations

@@ -115,3 +115,18 @@ def test_a_cached_solve_needs_no_registry(fresh_cache: Path) -> None:
     first, again = cold_solves(sheet, "a.modes.modes[0].frequency_hz", "pint", fresh_cache.parent)
     assert first[1] and not again[1]
     assert float(first[0]) == pytest.approx(float(again[0]), rel=1e-12)
+
+
+def test_no_home_folder_means_no_cache(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
+    from calc import diskcache
+
+    monkeypatch.delenv("BEAMTONE_CACHE", raising=False)
+    monkeypatch.delenv("XDG_CACHE_HOME", raising=False)
+    monkeypatch.setenv("HOME", "")
+    monkeypatch.setattr(diskcache.os.path, "expanduser", lambda text: text)
+    monkeypatch.chdir(tmp_path)
+    _forget(monkeypatch)
+    assert diskcache.folder() is None
+    assert units.parse_quantity("2 in", units.LENGTH, "k") == pytest.approx(0.0508, rel=1e-15)
+    assert list(tmp_path.iterdir()) == []
+    _forget(monkeypatch)
