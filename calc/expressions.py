@@ -251,7 +251,6 @@ _JET_FUNCTIONS: dict[str, Callable[[Any], _Jet]] = {
     "exp": lambda u: (lambda e: (e, e, e))(np.exp(u)),
     "log": lambda u: (np.log(u), 1.0 / u, -1.0 / (u * u)),
     "sqrt": lambda u: (lambda r: (r, 0.5 / r, -0.25 / (r * r * r)))(np.sqrt(u)),
-    "abs": lambda u: (np.abs(u), np.sign(u), 0.0 * u),
 }
 _JET_NAMES = {"pi": math.pi, "e": math.e}
 
@@ -272,6 +271,12 @@ def _jet(node: _Node, x: np.ndarray, L: float) -> _Jet:
         return -a0, -a1, -a2
     if kind == "call":
         u0, u1, u2 = _jet(node.args[0], x, L)
+        if node.value == "abs":
+            # where the argument is zero, the slope from the right (x increases): sympy keeps
+            # abs only where it cannot rule out a kink, which refuses the shape, and else
+            # drops it (abs(x) is x), so this is the slope of what sympy keeps
+            sign = np.where(np.asarray(u0) != 0.0, np.sign(u0), np.sign(u1))
+            return np.abs(u0), sign * u1, sign * u2
         g0, g1, g2 = _JET_FUNCTIONS[str(node.value)](u0)
         return g0, g1 * u1, g2 * u1 * u1 + g1 * u2
     if kind == "pow":

@@ -186,3 +186,17 @@ def test_a_cached_solve_does_not_import_sympy(fresh_cache: Path) -> None:
     first, again = cold_solves(sheet, "a.estimate.formula", "sympy", fresh_cache.parent)
     assert first[1] and not again[1]
     assert first[0] == again[0] and first[0].startswith("omega^2 = (EI*(pi**4")
+
+
+def test_abs_that_sympy_drops_has_its_slope_at_zero() -> None:
+    """abs(x) is x for x >= 0 (sympy drops it): a rotational spring at x = 0 sees slope L."""
+    steel = LIBRARY["steel"]
+    bar = build_section("rectangle", {"width": 0.04, "depth": 0.008})
+    member = Member(
+        (Segment(LENGTH, steel, bar),), "pinned", "pinned", springs=(Spring(0.0, 0.0, 50.0),)
+    )
+    plain = rayleigh.rayleigh_shape(member, "x*(L - x)")
+    with_abs = rayleigh.rayleigh_shape(member, "abs(x)*(L - x)")
+    assert with_abs.omega == pytest.approx(plain.omega, rel=1e-13)
+    w, d1, d2 = derivatives(parse_formula("abs(-x)"), np.array([0.0, 0.5]), 1.0)
+    assert list(d1) == [1.0, 1.0] and list(d2) == [0.0, 0.0]
