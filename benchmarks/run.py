@@ -75,6 +75,19 @@ def median_time(fn: Callable[[], object], repeat: int) -> float:
     return statistics.median(times)
 
 
+def interleaved_medians(fns: list[Callable[[], object]], repeat: int) -> list[float]:
+    """Median wall times [s] of several calls timed in turn, so all see the same machine."""
+    for fn in fns:
+        fn()
+    times: list[list[float]] = [[] for _ in fns]
+    for _ in range(repeat):
+        for fn, out in zip(fns, times, strict=True):
+            start = time.perf_counter()
+            fn()
+            out.append(time.perf_counter() - start)
+    return [statistics.median(t) for t in times]
+
+
 def bench_solves(repeat: int) -> list[tuple[str, float, float | None]]:
     from calc.analysis import analyse
     from calc.worksheet import load, loads
@@ -184,9 +197,10 @@ def bench_warm_ratio(repeat: int) -> list[tuple[str, float, float | None, str]]:
     def own() -> None:
         fe.default_eigensolver(system.K, system.M, 5, shift)
 
-    t_solve = median_time(lambda: fe.solve(member, 5), repeat)
-    t_bare = median_time(bare, repeat)
-    t_own = median_time(own, repeat)
+    # interleaved and many times over: a ratio of a few milliseconds is easily skewed
+    t_solve, t_bare, t_own = interleaved_medians(
+        [lambda: fe.solve(member, 5), bare, own], max(10 * repeat, 20)
+    )
     return [
         ("warm fe.solve, 11 attachments, 5 modes, 1e-6 accuracy [s]", t_solve, None, "s"),
         ("warm fe.solve / bare scipy eigsh of its converged matrices", t_solve / t_bare,

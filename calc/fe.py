@@ -252,8 +252,9 @@ def _map_attachments(
     points = [m.at for m in member.masses] + [s.at for s in member.springs]
     points += [s.at for s in member.inner_supports]
     for p in points:
-        nearest = float(arr[int(np.argmin(np.abs(arr - p)))])
-        station_nodes.setdefault(p, station_nodes[nearest])
+        if p not in station_nodes:  # one riding on a nearby station's node
+            nearest = float(arr[int(np.argmin(np.abs(arr - p)))])
+            station_nodes[p] = station_nodes[nearest]
 
 
 def build_mesh(member: Member, element_size: Callable[[int], float] | int) -> Mesh:
@@ -273,8 +274,8 @@ def build_mesh(member: Member, element_size: Callable[[int], float] | int) -> Me
     """
     stations = _stations(member)
     L = member.length
-    xs: list[np.ndarray] = []
-    segs: list[np.ndarray] = []
+    counts: list[int] = []
+    seg_of: list[int] = []
     station_nodes: dict[float, int] = {stations[0]: 0}
     node = 0
     for a, b in zip(stations[:-1], stations[1:], strict=True):
@@ -283,12 +284,19 @@ def build_mesh(member: Member, element_size: Callable[[int], float] | int) -> Me
             n = max(1, round(element_size * (b - a) / L))
         else:
             n = max(1, math.ceil((b - a) / element_size(seg) - 1e-9))
-        xs.append(np.linspace(a, b, n + 1)[:-1])
-        segs.append(np.full(n, seg, dtype=int))
+        counts.append(n)
+        seg_of.append(seg)
         node += n
         station_nodes[b] = node
-    x = np.concatenate([*xs, [L]])
-    mesh = Mesh(x, np.concatenate(segs), station_nodes)
+    # every interval split evenly, all at once: node k of an interval [a, b] of n elements
+    # is at a + (b - a) k / n
+    sizes = np.array(counts)
+    left = np.repeat(np.array(stations[:-1]), sizes)
+    width = np.repeat(np.diff(np.array(stations)), sizes)
+    first = np.repeat(np.cumsum(sizes) - sizes, sizes)
+    k = np.arange(node) - first
+    x = np.concatenate([left + width * (k / np.repeat(sizes, sizes)), [L]])
+    mesh = Mesh(x, np.repeat(np.array(seg_of, dtype=int), sizes), station_nodes)
     _map_attachments(member, stations, station_nodes)
     return mesh
 
@@ -386,13 +394,18 @@ _MASS = _polynomial_in_r(
 
 
 def _element_matrices(
-    h: np.ndarray, EI: np.ndarray, m: np.ndarray, P: float, s: float
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Element stiffness, geometric stiffness for unit tension, and mass, in scaled DOFs."""
+    h: np.ndarray, EI: np.ndarray, m: np.ndarray, s: float, geometric: bool
+) -> tuple[np.ndarray, np.ndarray | None, np.ndarray]:
+    """Element stiffness, geometric stiffness for unit tension (if asked), and mass.
+
+    All in scaled DOFs; each is (elements, 4, 4).
+    """
     r = h / s  # element length in units of the slope scale
     powers = np.stack([np.ones_like(r), r, r * r], axis=1)  # (elements, 3)
     k = np.einsum("ep,pij->eij", powers * (EI / h**3)[:, None], _STIFFNESS)
-    g = np.einsum("ep,pij->eij", powers * (1.0 / (30.0 * h))[:, None], _GEOMETRIC)
+    g = None
+    if geometric:
+        g = np.einsum("ep,pij->eij", powers * (1.0 / (30.0 * h))[:, None], _GEOMETRIC)
     mm = np.einsum("ep,pij->eij", powers * (m * h / 420.0)[:, None], _MASS)
     return k, g, mm
 
@@ -426,18 +439,35 @@ def _band(
     return np.bincount(index, weights=weights, minlength=(_BAND + 1) * n).reshape(_BAND + 1, n)
 
 
-def _reduced(band: np.ndarray, free: np.ndarray, number: np.ndarray) -> scipy.sparse.csr_matrix:
-    """The symmetric banded matrix on the free DOFs, in compressed rows."""
-    n = band.shape[1]
+@dataclass(frozen=True)
+class _Pattern:
+    """Where the entries of a banded matrix go once the held DOFs are eliminated."""
+
+    offset: np.ndarray  # band row (|column - row|) of each kept entry
+    start: np.ndarray  # band column (the smaller of row and column) of each kept entry
+    indices: np.ndarray  # column of each kept entry in the reduced matrix
+    indptr: np.ndarray
+    size: int
+
+
+def _pattern(free: np.ndarray, number: np.ndarray) -> _Pattern:
+    n = len(number)
     j = free[:, None] + _OFFSETS
     inside = (j >= 0) & (j < n)
     j = np.clip(j, 0, n - 1)
-    values = band[np.abs(_OFFSETS), np.minimum(free[:, None], j)]
-    keep = inside & (number[j] >= 0) & (values != 0.0)
+    keep = inside & (number[j] >= 0)
     indptr = np.zeros(len(free) + 1, dtype=np.int32)
     np.cumsum(keep.sum(axis=1), out=indptr[1:])
+    offset = np.broadcast_to(np.abs(_OFFSETS), keep.shape)[keep]
+    start = np.minimum(free[:, None], j)[keep]
+    return _Pattern(offset, start, number[j][keep].astype(np.int32), indptr, len(free))
+
+
+def _reduced(band: np.ndarray, pattern: _Pattern) -> scipy.sparse.csr_matrix:
+    """The symmetric banded matrix on the free DOFs, in compressed rows."""
     return scipy.sparse.csr_matrix(
-        (values[keep], number[j][keep].astype(np.int32), indptr), shape=(len(free), len(free))
+        (band[pattern.offset, pattern.start], pattern.indices, pattern.indptr),
+        shape=(pattern.size, pattern.size),
     )
 
 
@@ -462,7 +492,7 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
     m = np.array([seg.mass_per_length for seg in segs])[mesh.segment]
     s = float(np.median(h))
     P = member.axial_force
-    ke, ge, me = _element_matrices(h, EI, m, P, s)
+    ke, ge, me = _element_matrices(h, EI, m, s, geometric or P != 0.0)
     n_nodes = len(mesh.x)
     n = 2 * n_nodes
 
@@ -497,11 +527,12 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
     # The matrices are banded (three off-diagonals); they are summed in band storage and the
     # supports eliminated while the compressed rows are built, so no general sparse
     # assembly (sorting and summing duplicates) and no full-size matrix is ever formed.
-    K_band = _band(ke + P * ge, pk, n)
+    pattern = _pattern(free, number)
+    K_band = _band(ke + P * ge if ge is not None and P else ke, pk, n)
     M_band = _band(me, pm_, n)
-    K = _reduced(K_band, free, number)
-    M = _reduced(M_band, free, number)
-    G = _reduced(_band(ge, no_points, n), free, number) if geometric else None
+    K = _reduced(K_band, pattern)
+    M = _reduced(M_band, pattern)
+    G = _reduced(_band(ge, no_points, n), pattern) if ge is not None and geometric else None
 
     # Mass-weighted rigid translation of member and ground together (all DOFs, held or not):
     # M_full @ 1_w, without the full matrix.  Element rows: consistent mass times [1, 0, 1, 0].
