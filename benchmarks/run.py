@@ -284,10 +284,15 @@ def bench_sizing(repeat: int, sweep_points: int) -> list[tuple[str, float, float
 
 
 def bench_app(edits: int) -> list[tuple[str, float, float | None]]:
+    import tempfile
+
     from tui.app import BeamtoneApp
     from tui.screens import workbench
 
-    path = Path(os.environ.get("TMPDIR", "/tmp")) / "beamtone-bench.toml"
+    # a folder of its own: the app keeps an autosave beside the worksheet, and one left from
+    # an earlier run would open the recovery question over the workbench
+    scratch = tempfile.TemporaryDirectory(prefix="beamtone-bench-")
+    path = Path(scratch.name) / "beamtone-bench.toml"
     path.write_text(ten_attachment_text())
 
     async def scenario() -> tuple[float, list[float]]:
@@ -318,7 +323,7 @@ def bench_app(edits: int) -> list[tuple[str, float, float | None]]:
         return first, latencies
 
     first, latencies = asyncio.run(scenario())
-    path.unlink(missing_ok=True)
+    scratch.cleanup()
     return [
         ("app: start to first results (Pilot, headless)", first, 1.5),
         (f"app: edit to refreshed results, median of {edits}, after the "
