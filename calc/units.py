@@ -341,7 +341,7 @@ def _si_factor(unit_text: str, key: str, given: str, dim: Dimension) -> float:
     canonical = _canonical_units(unit_text)
     if canonical is None:
         raise InputError(key, given, expected, f"{unit_text!r} is not a unit expression")
-    entry = f"{dim.pint_dimension}|{canonical}"
+    entry = f"{dim.si_unit}|{dim.pint_dimension}|{canonical}"
     known = _unit_cache().get(entry)
     if isinstance(known, float) and math.isfinite(known) and known > 0.0:
         return known

@@ -151,14 +151,18 @@ def test_a_tampered_entry_is_never_evaluated(fresh_cache: Path) -> None:
     expected = rayleigh.rayleigh_shape(member, "x*(L - x)")
     data = json.loads(fresh_cache.read_text(encoding="utf-8"))
     entry = data["entries"]["x*(L - x)"]
-    entry["integrals"][0] = ["fn", "__import__", ["num", 1, 1]]
-    fresh_cache.write_text(json.dumps(data), encoding="utf-8")
-    symbolic._facts.cache_clear()
-    assert rayleigh.rayleigh_shape(member, "x*(L - x)") == expected
-    entry["ends"] = {"0@0": "maybe"}
-    fresh_cache.write_text(json.dumps(data), encoding="utf-8")
-    symbolic._facts.cache_clear()
-    assert rayleigh.rayleigh_shape(member, "x*(L - x)") == expected
+    good = json.dumps(entry)
+    for field, bad in (("integrals", [["fn", "__import__", ["num", 1, 1]], None, None]),
+                       ("ends", {"0@0": "maybe"}), ("c_squared_value", "10")):  # fmt: skip
+        tampered = {**json.loads(good), field: bad}
+        fresh_cache.write_text(
+            json.dumps({**data, "entries": {"x*(L - x)": tampered}}), encoding="utf-8"
+        )
+        symbolic._facts.cache_clear()
+        assert rayleigh.rayleigh_shape(member, "x*(L - x)") == expected
+        # refused and derived again, so the file holds a sound entry once more
+        kept = json.loads(fresh_cache.read_text(encoding="utf-8"))["entries"]["x*(L - x)"]
+        assert kept == json.loads(good)
 
 
 def test_an_unwritable_cache_folder_only_costs_time(

@@ -104,7 +104,8 @@ def test_a_tampered_entry_is_ignored(
 ) -> None:
     assert units.parse_quantity("3 mm", units.LENGTH, "k") == 0.003
     data = json.loads(fresh_cache.read_text(encoding="utf-8"))
-    data["entries"]["[length]|mm"] = bad
+    assert data["entries"]["m|[length]|mm"] == 0.001
+    data["entries"]["m|[length]|mm"] = bad
     fresh_cache.write_text(json.dumps(data), encoding="utf-8")
     _forget(monkeypatch)
     assert units.parse_quantity("3 mm", units.LENGTH, "k") == 0.003
