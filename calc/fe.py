@@ -20,6 +20,7 @@ import bisect
 import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 import scipy.linalg
@@ -604,20 +605,21 @@ def default_eigensolver(
 
 def _arpack(
     K: scipy.sparse.spmatrix, M: scipy.sparse.spmatrix, count: int, shift: float, vectors: bool
-) -> tuple[np.ndarray, np.ndarray]:
-    """ARPACK in shift-invert mode, from a fixed start so that every run gives the same bits.
+) -> Any:
+    """(eigenvalues, vectors) with ``vectors``, else the eigenvalues alone (unsorted).
+
+    ARPACK in shift-invert mode, from a fixed start so that every run gives the same bits.
 
     The start is a fixed pseudo-random vector (generic: no mode is missing from it), and
     the Lanczos basis a little smaller than ARPACK's default of 20 (measured: a quarter
-    faster on these banded matrices; one restart more at most); should it not converge,
-    a wide basis is tried.
+    faster on these banded matrices); should it not converge, a wide basis is tried.
     """
     n = K.shape[0]
     start = np.random.default_rng(20261201).standard_normal(n)
     Kc, Mc = K.tocsc(), M.tocsc()
     for ncv in (max(2 * count + 1, 15), 8 * count + 40):
         try:
-            return scipy.sparse.linalg.eigsh(  # type: ignore[no-any-return]
+            return scipy.sparse.linalg.eigsh(
                 Kc, k=count, M=Mc, sigma=shift, which="LM", ncv=min(n - 1, ncv), v0=start,
                 return_eigenvectors=vectors,
             )  # fmt: skip

@@ -342,8 +342,8 @@ def _si_factor(unit_text: str, key: str, given: str, dim: Dimension) -> float:
     if canonical is None:
         raise InputError(key, given, expected, f"{unit_text!r} is not a unit expression")
     entry = f"{dim.si_unit}|{dim.pint_dimension}|{canonical}"
-    known = _unit_cache().get(entry)
-    if isinstance(known, float) and math.isfinite(known) and known > 0.0:
+    known = _known_factor(entry)
+    if known is not None:
         return known
     units = _parse_units(canonical, unit_text, key, given, dim)
     quantity = 1.0 * units
@@ -376,6 +376,14 @@ def _unit_cache() -> dict[str, object]:
 
         _unit_entries = dict(diskcache.read(_UNIT_CACHE, diskcache.library_version("pint")))
     return _unit_entries
+
+
+def _known_factor(entry: str) -> float | None:
+    """A cached conversion factor, if there is a sound one (finite and positive)."""
+    known = _unit_cache().get(entry)
+    if isinstance(known, float) and math.isfinite(known) and known > 0.0:
+        return known
+    return None
 
 
 def _remember(entry: str, value: float | bool) -> None:
@@ -446,8 +454,8 @@ def convert_from_si(value: float, unit_text: str) -> float:
         The value in ``unit_text``.
     """
     entry = f"base|{unit_text}"
-    known = _unit_cache().get(entry)
-    if isinstance(known, float) and math.isfinite(known) and known > 0.0:
+    known = _known_factor(entry)
+    if known is not None:
         return value / known
     factor = float((1.0 * registry().parse_units(unit_text)).to_base_units().magnitude)
     _remember(entry, factor)
