@@ -143,11 +143,15 @@ def _dimensionality(pint_dimension: str) -> object:
     return registry().get_dimensionality(pint_dimension)
 
 
+def _expected(dim: Dimension) -> str:
+    return f"{dim.name} as a number and a unit, e.g. {dim.example}"
+
+
 def _parse_units(canonical: str, text: str, key: str, given: str, dim: Dimension) -> pint.Unit:
     """pint's unit for an expression already in canonical form (``text`` as written)."""
     import pint
 
-    expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
+    expected = _expected(dim)
     try:
         return registry().parse_units(canonical)
     except pint.errors.UndefinedUnitError as exc:
@@ -293,7 +297,7 @@ def _parse_quantity(
     minimum: bool = True,
 ) -> float:
     """The uncached work of :func:`parse_quantity` (same arguments and result)."""
-    expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
+    expected = _expected(dim)
     if isinstance(text, bool) or not isinstance(text, str):
         hint = f"a {type(text).__name__} is not a quantity: write it as a quoted string"
         if isinstance(text, int | float) and not isinstance(text, bool):
@@ -335,7 +339,7 @@ def _si_factor(unit_text: str, key: str, given: str, dim: Dimension) -> float:
     on disk (see :mod:`calc.diskcache`) and a later start needs no registry for it.  Only
     accepted units are kept; every refusal comes from pint, with its full message.
     """
-    expected = f"{dim.name} as a number and a unit, e.g. {dim.example}"
+    expected = _expected(dim)
     if not unit_text:
         raise InputError(key, given, expected, "the unit is missing")
     canonical = _canonical_units(unit_text)
