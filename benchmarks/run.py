@@ -89,8 +89,8 @@ def interleaved_medians(fns: list[Callable[[], object]], repeat: int) -> list[fl
 
 
 def bench_solves(repeat: int) -> list[tuple[str, float, float | None]]:
-    from calc.analysis import analyse
-    from calc.worksheet import load, loads
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.worksheet import load, loads
 
     rows = []
     for path in sorted((ROOT / "worksheets").glob("*.toml")):
@@ -128,7 +128,7 @@ def compile_project() -> None:
     """
     import compileall
 
-    for package in ("calc", "cli", "tui"):
+    for package in ("beamtone", "calc", "cli", "tui"):
         compileall.compile_dir(str(ROOT / package), quiet=1)
 
 
@@ -145,7 +145,7 @@ def bench_cold(runs: int) -> list[tuple[str, float, float | None, str]]:
     python = sys.executable
     bare = [python, "-c", "import numpy, scipy.linalg, pint"]
     rows: list[tuple[str, float, float | None, str]] = []
-    cli = [python, "-m", "cli.main", "solve"]
+    cli = [python, "-m", "beamtone.cli.main", "solve"]
     with tempfile.TemporaryDirectory(prefix="beamtone-bench-") as scratch:
         kept = {**os.environ, "BEAMTONE_CACHE": str(Path(scratch) / "kept")}
         for path in sorted((ROOT / "worksheets").glob("*.toml")):
@@ -181,8 +181,8 @@ def bench_warm_ratio(repeat: int) -> list[tuple[str, float, float | None, str]]:
     """
     import scipy.sparse.linalg
 
-    from calc import fe
-    from calc.worksheet import loads
+    from beamtone.calc import fe
+    from beamtone.calc.worksheet import loads
 
     member = loads(ten_attachment_text()).member
     result = fe.solve(member, 5)
@@ -215,10 +215,10 @@ def bench_growth(sizes: list[int]) -> list[tuple[str, float, float | None, str]]
     import numpy as np
     import scipy.linalg
 
-    from calc import fe
-    from calc.materials import LIBRARY
-    from calc.model import Member, PointMass, Segment, Spring
-    from calc.sections import build_section
+    from beamtone.calc import fe
+    from beamtone.calc.materials import LIBRARY
+    from beamtone.calc.model import Member, PointMass, Segment, Spring
+    from beamtone.calc.sections import build_section
 
     section = build_section("round-tube", {"outside_diameter": 0.06, "wall": 0.004})
     rows = []
@@ -248,8 +248,8 @@ def bench_growth(sizes: list[int]) -> list[tuple[str, float, float | None, str]]
 
 
 def bench_sizing(repeat: int, sweep_points: int) -> list[tuple[str, float, float | None]]:
-    from calc import sizing
-    from calc.worksheet import load
+    from beamtone.calc import sizing
+    from beamtone.calc.worksheet import load
 
     spindle = load(ROOT / "worksheets" / "stepped-spindle.toml")
     bar = load(ROOT / "worksheets" / "free-free-bar.toml")
@@ -286,8 +286,8 @@ def bench_sizing(repeat: int, sweep_points: int) -> list[tuple[str, float, float
 def bench_app(edits: int) -> list[tuple[str, float, float | None]]:
     import tempfile
 
-    from tui.app import BeamtoneApp
-    from tui.screens import workbench
+    from beamtone.tui.app import BeamtoneApp
+    from beamtone.tui.screens import workbench
 
     # a folder of its own: the app keeps an autosave beside the worksheet, and one left from
     # an earlier run would open the recovery question over the workbench
@@ -337,8 +337,11 @@ def import_times() -> list[tuple[str, float, float | None, str]]:
 
     rows = []
     for label, code in (
-        ("import for beamtone --help", "import cli.main"),
-        ("import for beamtone solve", "import cli.main, calc.analysis, calc.worksheet, cli.output"),
+        ("import for beamtone --help", "import beamtone.cli.main"),
+        (
+            "import for beamtone solve",
+            "import beamtone.cli.main, calc.analysis, calc.worksheet, cli.output",
+        ),
     ):
         out = subprocess.run(
             [sys.executable, "-X", "importtime", "-c", code],

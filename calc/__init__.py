@@ -22,12 +22,12 @@ from typing import Any
 __all__ = ["InputError", "Member", "FEResult", "load", "loads", "solve"]
 
 _LAZY = {
-    "InputError": "calc.errors",
-    "Member": "calc.model",
-    "FEResult": "calc.fe",
-    "solve": "calc.fe",
-    "load": "calc.worksheet",
-    "loads": "calc.worksheet",
+    "InputError": "beamtone.calc.errors",
+    "Member": "beamtone.calc.model",
+    "FEResult": "beamtone.calc.fe",
+    "solve": "beamtone.calc.fe",
+    "load": "beamtone.calc.worksheet",
+    "loads": "beamtone.calc.worksheet",
 }
 
 

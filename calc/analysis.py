@@ -10,8 +10,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from calc import fe, handbook, rayleigh, similitude
-from calc.worksheet import Worksheet
+from beamtone.calc import fe, handbook, rayleigh, similitude
+from beamtone.calc.worksheet import Worksheet
 
 __all__ = ["Analysis", "analyse"]
 

@@ -37,7 +37,7 @@ from typing import TYPE_CHECKING, Any, NoReturn
 
 import numpy as np
 
-from calc.errors import InputError
+from beamtone.calc.errors import InputError
 
 if TYPE_CHECKING:  # pragma: no cover
     import sympy

@@ -27,8 +27,8 @@ import scipy.linalg
 import scipy.sparse
 import scipy.sparse.linalg
 
-from calc.errors import InputError
-from calc.model import HOLDS, POSITION_TOLERANCE, Member, rigid_body_count
+from beamtone.calc.errors import InputError
+from beamtone.calc.model import HOLDS, POSITION_TOLERANCE, Member, rigid_body_count
 
 __all__ = [
     "ACCURACY",
@@ -893,9 +893,9 @@ def solve(
 
     Examples
     --------
-    >>> from calc.materials import LIBRARY
-    >>> from calc.sections import build_section
-    >>> from calc.model import Member, Segment
+    >>> from beamtone.calc.materials import LIBRARY
+    >>> from beamtone.calc.sections import build_section
+    >>> from beamtone.calc.model import Member, Segment
     >>> sec = build_section("rectangle", {"width": 0.05, "depth": 0.01})
     >>> beam = Member((Segment(1.0, LIBRARY["steel"], sec),), "clamped", "free")
     >>> round(solve(beam, 1).modes[0].frequency_hz, 3)

@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
 
-from calc.errors import InputError
+from beamtone.calc.errors import InputError
 
 if TYPE_CHECKING:  # pragma: no cover
     import sympy
@@ -196,7 +196,7 @@ def _base_key(dimension: str) -> tuple[int, str]:
 def _parse_unit(name: str, unit: str) -> Any:
     import pint
 
-    from calc.units import registry
+    from beamtone.calc.units import registry
 
     expected = 'a unit, e.g. "m", "kg/m^3", "N*m^2" or "1" for a dimensionless variable'
     if not isinstance(unit, str):
@@ -236,7 +236,7 @@ def _parse_unit(name: str, unit: str) -> Any:
 
 
 def _units(text: str) -> Any:
-    from calc.units import registry
+    from beamtone.calc.units import registry
 
     return registry().parse_units(text.strip().replace("·", "*"))
 
@@ -492,7 +492,7 @@ def _choose_repeating(
 
 
 def _check_dimensionless(exponents: dict[str, sympy.Rational], units: dict[str, str]) -> None:
-    from calc.units import registry
+    from beamtone.calc.units import registry
 
     ureg = registry()
     product = ureg.Quantity(1.0)
@@ -506,7 +506,7 @@ def _check_dimensionless(exponents: dict[str, sympy.Rational], units: dict[str, 
 
 
 def _si_values(values: dict[str, float], variables: list[Variable]) -> dict[str, float]:
-    from calc.units import registry
+    from beamtone.calc.units import registry
 
     if not isinstance(values, dict):
         raise InputError("values", values, "a mapping of variable name to number")

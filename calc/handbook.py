@@ -45,7 +45,7 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 if TYPE_CHECKING:  # pragma: no cover
-    from calc.model import Member
+    from beamtone.calc.model import Member
 
 __all__ = [
     "END_CONDITIONS",

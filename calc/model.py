@@ -12,9 +12,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, field
 
-from calc.errors import InputError
-from calc.materials import Material
-from calc.sections import Section
+from beamtone.calc.errors import InputError
+from beamtone.calc.materials import Material
+from beamtone.calc.sections import Section
 
 __all__ = [
     "END_KINDS",

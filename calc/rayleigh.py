@@ -22,13 +22,13 @@ from typing import TYPE_CHECKING, Any
 import numpy as np
 import scipy.linalg
 
-from calc import fe
-from calc.errors import InputError
-from calc.model import HOLDS, POSITION_TOLERANCE, Member, rigid_body_count
+from beamtone.calc import fe
+from beamtone.calc.errors import InputError
+from beamtone.calc.model import HOLDS, POSITION_TOLERANCE, Member, rigid_body_count
 
 if TYPE_CHECKING:  # pragma: no cover
-    from calc.expressions import Formula
-    from calc.symbolic import ShapeFacts
+    from beamtone.calc.expressions import Formula
+    from beamtone.calc.symbolic import ShapeFacts
 
 __all__ = [
     "NAMED_SHAPES",
@@ -232,8 +232,8 @@ def named_shape(member: Member, name: str) -> str:
 
 def _shape(text: str, key: str) -> tuple[Formula, ShapeFacts]:
     """Parse a shape formula and look up what sympy found about it (see calc.symbolic)."""
-    from calc.expressions import parse_formula
-    from calc.symbolic import shape_facts
+    from beamtone.calc.expressions import parse_formula
+    from beamtone.calc.symbolic import shape_facts
 
     formula = parse_formula(text, key)
     return formula, shape_facts(text, key)
@@ -242,7 +242,7 @@ def _shape(text: str, key: str) -> tuple[Formula, ShapeFacts]:
 def _expression_trial(
     formula: Formula, facts: ShapeFacts, L: float, key: str = "estimate.shape"
 ) -> Trial:
-    from calc.expressions import derivatives
+    from beamtone.calc.expressions import derivatives
 
     if facts.kink:
         raise InputError(
@@ -427,7 +427,7 @@ def admissibility(
         Where a geometric condition is violated: the quotient could then fall
         below the true frequency.
     """
-    from calc.expressions import derivatives
+    from beamtone.calc.expressions import derivatives
 
     L = member.length
     shown = text if text is not None else facts.expression
@@ -545,8 +545,8 @@ def _symbolic(
     member: Member, formula: Formula, facts: ShapeFacts
 ) -> tuple[float, str, float | None, str | None] | None:
     """Closed-form quotient for a uniform member, from the integrals sympy found."""
-    from calc.expressions import derivatives
-    from calc.symbolic import integral_values
+    from beamtone.calc.expressions import derivatives
+    from beamtone.calc.symbolic import integral_values
 
     if not member.is_uniform:
         return None

@@ -36,12 +36,12 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from calc.errors import InputError
+from beamtone.calc.errors import InputError
 
 if TYPE_CHECKING:  # pragma: no cover
-    from calc.analysis import Analysis
-    from calc.sizing import MarginCheck
-    from calc.worksheet import Worksheet
+    from beamtone.calc.analysis import Analysis
+    from beamtone.calc.sizing import MarginCheck
+    from beamtone.calc.worksheet import Worksheet
 
 __all__ = [
     "FREQUENCY_TOLERANCE",
@@ -370,7 +370,7 @@ def with_record(text: str, record: Record) -> str:
     """
     import tomlkit
 
-    from calc.worksheet import loads
+    from beamtone.calc.worksheet import loads
 
     document = tomlkit.parse(text)
     if inputs_digest(document.unwrap()) != record.inputs_sha256:
@@ -421,7 +421,7 @@ def save_record(
         Keyed ``"file"`` where the file cannot be read or written, or changed meanwhile;
         the file is then untouched.
     """
-    from calc.worksheet import write_atomic
+    from beamtone.calc.worksheet import write_atomic
 
     target = Path(path)
     try:
@@ -546,7 +546,7 @@ def read_record(sheet: Worksheet) -> Record | None:
     InputError
         Keyed ``record.…``, for a record that is not as beamtone writes it.
     """
-    from calc.worksheet import MAX_MODES
+    from beamtone.calc.worksheet import MAX_MODES
 
     table = sheet.data.get("record")
     if table is None:
@@ -716,7 +716,7 @@ def _exact(quantity: str, key: str, stored: object, now: object) -> Comparison:
 
 
 def _error_agrees(stored: float, now: float) -> bool:
-    from calc.fe import ACCURACY
+    from beamtone.calc.fe import ACCURACY
 
     if stored <= ACCURACY and now <= ACCURACY:
         return True
@@ -851,7 +851,7 @@ def compare(record: Record, analysis: Analysis) -> tuple[Comparison, ...]:
         )
     )
     if res.margins is not None:
-        from calc.sizing import margins
+        from beamtone.calc.sizing import margins
 
         m = res.margins
         check = margins(analysis.modes.frequencies_hz, m.excitation_hz, m.harmonics, m.margin)
@@ -894,7 +894,7 @@ def verify(sheet: Worksheet, analysis: Analysis | None = None) -> Verification |
     if record is None:
         return None
     if analysis is None:
-        from calc.analysis import analyse
+        from beamtone.calc.analysis import analyse
 
         analysis = analyse(sheet, record.modes, record.elements)
     return Verification(

@@ -23,12 +23,12 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
-from calc.errors import InputError
+from beamtone.calc.errors import InputError
 
 if TYPE_CHECKING:  # pragma: no cover
-    from calc.analysis import Analysis
-    from calc.record import Verification
-    from calc.sizing import MarginCheck
+    from beamtone.calc.analysis import Analysis
+    from beamtone.calc.record import Verification
+    from beamtone.calc.sizing import MarginCheck
 
 __all__ = ["FIGURE_MODES", "Report", "Section", "build", "mode_figure", "number"]
 
@@ -299,7 +299,7 @@ def _inline_svg(svg: str, label: str) -> str:
 
 
 def _shape(mode: Any, xs: Sequence[float]) -> list[float]:
-    from calc.fe import interpolate
+    from beamtone.calc.fe import interpolate
 
     peak = float(mode.w_modal[int(abs(mode.w_modal).argmax())])
     theta = mode.theta_modal / peak
@@ -454,7 +454,7 @@ def build(
     -------
     Report
     """
-    from calc.record import inputs_digest, tool_version
+    from beamtone.calc.record import inputs_digest, tool_version
 
     sheet = analysis.sheet
     title = f"Calculation record: {sheet.title}" if sheet.title else "Calculation record"
@@ -545,7 +545,7 @@ def _entered(value: Any) -> str:
 
 
 def _si(analysis: Analysis, key: str, value: Any) -> str:
-    from calc import materials, sizing
+    from beamtone.calc import materials, sizing
 
     if key == "estimate.reference" and analysis.sheet.estimate.reference is not None:
         return f"{number(analysis.sheet.estimate.reference)} m"

@@ -11,8 +11,8 @@ import math
 from collections.abc import Callable
 from dataclasses import dataclass, field
 
-from calc.errors import InputError
-from calc.units import AREA, LENGTH, SECOND_MOMENT, Dimension
+from beamtone.calc.errors import InputError
+from beamtone.calc.units import AREA, LENGTH, SECOND_MOMENT, Dimension
 
 __all__ = ["Section", "SHAPES", "build_section"]
 

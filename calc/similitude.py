@@ -15,11 +15,11 @@ import math
 from dataclasses import dataclass, replace
 from fractions import Fraction
 
-from calc.errors import InputError
-from calc.groups import formula
-from calc.materials import Material
-from calc.model import InnerSupport, Member, PointMass, Segment, Spring
-from calc.sections import Section
+from beamtone.calc.errors import InputError
+from beamtone.calc.groups import formula
+from beamtone.calc.materials import Material
+from beamtone.calc.model import InnerSupport, Member, PointMass, Segment, Spring
+from beamtone.calc.sections import Section
 
 __all__ = [
     "MemberGroup",
@@ -347,7 +347,7 @@ def master_curve(
     -------
     MasterCurve
     """
-    from calc import fe
+    from beamtone.calc import fe
 
     groups = member_groups(member)
     chosen = _find_group(groups, group)

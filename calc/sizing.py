@@ -18,10 +18,10 @@ from typing import Any
 
 import numpy as np
 
-from calc import fe, similitude
-from calc.errors import InputError
-from calc.model import Member
-from calc.units import (
+from beamtone.calc import fe, similitude
+from beamtone.calc.errors import InputError
+from beamtone.calc.model import Member
+from beamtone.calc.units import (
     AREA,
     DENSITY,
     FORCE,
@@ -37,7 +37,7 @@ from calc.units import (
     convert_from_si,
     parse_quantity,
 )
-from calc.worksheet import Worksheet, _worksheet, find_value, key_path
+from beamtone.calc.worksheet import Worksheet, _worksheet, find_value, key_path
 
 __all__ = [
     "Variation",
@@ -149,7 +149,7 @@ class Variation:
         length, exactly as the solves did.  The result is checked to load."""
         import tomlkit
 
-        from calc.worksheet import loads
+        from beamtone.calc.worksheet import loads
 
         document = tomlkit.parse(text)
         plain = document.unwrap()

@@ -24,8 +24,8 @@ from fractions import Fraction
 from functools import lru_cache
 from typing import Any
 
-from calc import diskcache
-from calc.errors import InputError
+from beamtone.calc import diskcache
+from beamtone.calc.errors import InputError
 
 __all__ = ["ShapeFacts", "EndValue", "shape_facts", "integral_values"]
 
@@ -107,7 +107,7 @@ def shape_facts(text: str, key: str = "estimate.shape") -> ShapeFacts:
     """
     facts = _facts(text)
     if facts.refusal is not None:
-        from calc.expressions import _EXPECTED
+        from beamtone.calc.expressions import _EXPECTED
 
         raise InputError(key, text, _EXPECTED, facts.refusal)
     return facts
@@ -132,7 +132,7 @@ def _facts(text: str) -> ShapeFacts:
 def _derive(text: str) -> ShapeFacts:
     import sympy
 
-    from calc.expressions import parse_shape, symbols
+    from beamtone.calc.expressions import parse_shape, symbols
 
     try:
         expr = parse_shape(text)

@@ -18,7 +18,7 @@ from dataclasses import dataclass
 from functools import cache, lru_cache
 from typing import TYPE_CHECKING
 
-from calc.errors import InputError
+from beamtone.calc.errors import InputError
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -376,7 +376,7 @@ _unit_entries: dict[str, object] | None = None
 def _unit_cache() -> dict[str, object]:
     global _unit_entries
     if _unit_entries is None:
-        from calc import diskcache
+        from beamtone.calc import diskcache
 
         _unit_entries = dict(diskcache.read(_UNIT_CACHE, diskcache.library_version("pint")))
     return _unit_entries
@@ -393,7 +393,7 @@ def _known_factor(entry: str) -> float | None:
 def _remember(entry: str, value: float | bool) -> None:
     if isinstance(value, float) and not (math.isfinite(value) and value > 0.0):
         return
-    from calc import diskcache
+    from beamtone.calc import diskcache
 
     _unit_cache()[entry] = value
     diskcache.store(_UNIT_CACHE, diskcache.library_version("pint"), entry, value)

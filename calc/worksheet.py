@@ -17,12 +17,20 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from calc import materials
-from calc.errors import InputError
-from calc.materials import Material
-from calc.model import END_KINDS, INNER_KINDS, InnerSupport, Member, PointMass, Segment, Spring
-from calc.sections import SHAPES, Section, build_section
-from calc.units import (
+from beamtone.calc import materials
+from beamtone.calc.errors import InputError
+from beamtone.calc.materials import Material
+from beamtone.calc.model import (
+    END_KINDS,
+    INNER_KINDS,
+    InnerSupport,
+    Member,
+    PointMass,
+    Segment,
+    Spring,
+)
+from beamtone.calc.sections import SHAPES, Section, build_section
+from beamtone.calc.units import (
     DENSITY,
     FORCE,
     LENGTH,
@@ -532,8 +540,8 @@ def _estimate(value: object) -> EstimateSettings:
     # Expressions are read now, so every command refuses a bad one (the named shapes and
     # "static" need no parsing); admissibility needs the member and is checked when solved.
     # (sympy's verdict on a formula is kept on disk, so this stays cheap; see calc.symbolic)
-    from calc.expressions import parse_formula
-    from calc.symbolic import shape_facts
+    from beamtone.calc.expressions import parse_formula
+    from beamtone.calc.symbolic import shape_facts
 
     if shape.strip() not in ("static", "polynomial", "trigonometric"):
         parse_formula(shape.strip(), "estimate.shape")

@@ -8,8 +8,8 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from calc.errors import InputError
-from cli.output import write_json
+from beamtone.calc.errors import InputError
+from beamtone.cli.output import write_json
 
 __all__ = ["run", "groups_json"]
 
@@ -31,7 +31,7 @@ def run(args: argparse.Namespace) -> int:
 
 
 def _variables(args: argparse.Namespace, items: list[str]) -> int:
-    from calc.groups import parse_variables, pi_groups, variable
+    from beamtone.calc.groups import parse_variables, pi_groups, variable
 
     pairs = parse_variables(items)
     variables = [variable(name, unit) for name, unit in pairs]
@@ -95,8 +95,8 @@ def groups_json(groups: Any) -> list[dict[str, Any]]:
 
 
 def _worksheet(args: argparse.Namespace, path: Path) -> int:
-    from calc import fe, similitude
-    from calc.worksheet import load
+    from beamtone.calc import fe, similitude
+    from beamtone.calc.worksheet import load
 
     if args.repeat:
         raise InputError(

@@ -188,14 +188,14 @@ def _finite_float(what: str) -> Callable[[str], float]:
 
 
 def _solve(args: argparse.Namespace) -> int:
-    from calc.analysis import analyse
-    from calc.worksheet import load
-    from cli import output
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.worksheet import load
+    from beamtone.cli import output
 
     analysis = analyse(load(args.file), args.modes, args.elements)
     note = None
     if args.record:
-        from cli import record_cmd
+        from beamtone.cli import record_cmd
 
         note = record_cmd.store(args.file, analysis, args.elements)
     if args.json:
@@ -208,31 +208,31 @@ def _solve(args: argparse.Namespace) -> int:
 
 
 def _groups(args: argparse.Namespace) -> int:
-    from cli import groups_cmd
+    from beamtone.cli import groups_cmd
 
     return groups_cmd.run(args)
 
 
 def _size(args: argparse.Namespace) -> int:
-    from cli import sizing_cmd
+    from beamtone.cli import sizing_cmd
 
     return sizing_cmd.size(args)
 
 
 def _sweep(args: argparse.Namespace) -> int:
-    from cli import sizing_cmd
+    from beamtone.cli import sizing_cmd
 
     return sizing_cmd.sweep(args)
 
 
 def _verify(args: argparse.Namespace) -> int:
-    from cli import record_cmd
+    from beamtone.cli import record_cmd
 
     return record_cmd.verify(args)
 
 
 def _report(args: argparse.Namespace) -> int:
-    from cli import record_cmd
+    from beamtone.cli import record_cmd
 
     return record_cmd.report(args)
 
@@ -242,10 +242,10 @@ _COMMANDS = ("solve", "groups", "size", "sweep", "verify", "report")
 
 def _app(path: str | None) -> int:
     """Open the terminal app, on a worksheet file or (without one) on a new one."""
-    from calc.errors import InputError
+    from beamtone.calc.errors import InputError
 
     if path is not None:
-        from calc.worksheet import load
+        from beamtone.calc.worksheet import load
 
         try:
             load(path)  # refuse a damaged file before the screen is taken over
@@ -258,7 +258,7 @@ def _app(path: str | None) -> int:
             "'beamtone solve FILE' (see 'beamtone --help')\n"
         )
         return EXIT_INPUT
-    from tui.app import run
+    from beamtone.tui.app import run
 
     run(path)
     return EXIT_OK
@@ -278,14 +278,14 @@ def main(argv: Sequence[str] | None = None) -> int:
     parser = build_parser()
     args = parser.parse_args(arguments)
     if args.version:
-        from calc.record import tool_version
+        from beamtone.calc.record import tool_version
 
         print(f"beamtone {tool_version()}")
         return EXIT_OK
     if args.command is None:
         parser.print_help()
         return EXIT_OK
-    from calc.errors import InputError
+    from beamtone.calc.errors import InputError
 
     handlers = {
         "solve": _solve, "groups": _groups, "size": _size, "sweep": _sweep,

@@ -9,7 +9,7 @@ import textwrap
 from typing import TYPE_CHECKING, Any
 
 if TYPE_CHECKING:  # pragma: no cover
-    from calc.analysis import Analysis
+    from beamtone.calc.analysis import Analysis
 
 __all__ = ["CAUTION", "solve_text", "solve_json", "write_json"]
 
@@ -225,7 +225,7 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
 
 
 def _groups_json(analysis: Analysis) -> list[dict[str, Any]]:
-    from cli.groups_cmd import groups_json
+    from beamtone.cli.groups_cmd import groups_json
 
     return groups_json(analysis.groups)
 

@@ -13,12 +13,12 @@ import sys
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from calc.errors import InputError
-from cli.output import CAUTION, write_json
+from beamtone.calc.errors import InputError
+from beamtone.cli.output import CAUTION, write_json
 
 if TYPE_CHECKING:  # pragma: no cover
-    from calc.analysis import Analysis
-    from calc.record import Comparison, Verification
+    from beamtone.calc.analysis import Analysis
+    from beamtone.calc.record import Comparison, Verification
 
 __all__ = ["store", "verify", "report"]
 
@@ -30,7 +30,7 @@ _SUFFIXES = {"markdown": (".md", ".markdown"), "html": (".html", ".htm")}
 
 def store(path: str, analysis: Analysis, elements: int | None) -> str:
     """Write the ``[record]`` of a solve into its worksheet; return the line to print."""
-    from calc.record import save_record
+    from beamtone.calc.record import save_record
 
     record = save_record(path, analysis, elements=elements)
     return (
@@ -44,13 +44,13 @@ def store(path: str, analysis: Analysis, elements: int | None) -> str:
 
 def verify(args: argparse.Namespace) -> int:
     """Run ``beamtone verify``: 0 when the record reproduces, 1 when not or when there is none."""
-    from calc import record
-    from calc.worksheet import load
+    from beamtone.calc import record
+    from beamtone.calc.worksheet import load
 
     sheet = load(args.file)
     result = record.verify(sheet)
     if result is None:
-        from calc.analysis import analyse
+        from beamtone.calc.analysis import analyse
 
         analyse(sheet)  # bad input is bad input (exit 2), record or not
         message = (
@@ -184,7 +184,7 @@ def _same(a: Path, b: Path) -> bool:
 
 def _write(path: Path, text: str) -> None:
     """Write a report file atomically (the caller has checked it is not the worksheet)."""
-    from calc.worksheet import write_atomic
+    from beamtone.calc.worksheet import write_atomic
 
     existed = path.exists()
     try:
@@ -200,8 +200,8 @@ def _write(path: Path, text: str) -> None:
 
 def _excitation(args: argparse.Namespace) -> tuple[float, tuple[int, ...], float] | None:
     """(excitation [Hz], orders, margin) from --excitation, --harmonics, --margin; or None."""
-    from calc.sizing import parse_harmonics, parse_margin
-    from calc.units import parse_frequency
+    from beamtone.calc.sizing import parse_harmonics, parse_margin
+    from beamtone.calc.units import parse_frequency
 
     if args.excitation is None:
         for flag, value in (("--harmonics", args.harmonics), ("--margin", args.margin)):
@@ -214,10 +214,10 @@ def _excitation(args: argparse.Namespace) -> tuple[float, tuple[int, ...], float
 
 def report(args: argparse.Namespace) -> int:
     """Run ``beamtone report``: write the calculation record (Markdown or one HTML file)."""
-    from calc import record
-    from calc import report as document
-    from calc.analysis import analyse
-    from calc.worksheet import load
+    from beamtone.calc import record
+    from beamtone.calc import report as document
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.worksheet import load
 
     worksheet = Path(args.file)
     sheet = load(worksheet)
@@ -236,7 +236,7 @@ def report(args: argparse.Namespace) -> int:
     analysis = analyse(sheet, modes, elements)
     check = None
     if excitation is not None:
-        from calc.sizing import margins
+        from beamtone.calc.sizing import margins
 
         check = margins(analysis.modes.frequencies_hz, *excitation)
     verification = None

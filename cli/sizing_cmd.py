@@ -8,8 +8,8 @@ import sys
 from pathlib import Path
 from typing import Any
 
-from calc.errors import InputError
-from cli.output import CAUTION, write_json
+from beamtone.calc.errors import InputError
+from beamtone.cli.output import CAUTION, write_json
 
 __all__ = ["size", "sweep"]
 
@@ -20,7 +20,7 @@ MARGIN_NOTE = (
 
 
 def _range(args: argparse.Namespace, var: Any) -> tuple[float, float]:
-    from calc.units import parse_quantity
+    from beamtone.calc.units import parse_quantity
 
     low_text, high_text = args.between
     low = parse_quantity(low_text, var.dimension, "--between", allow_zero=True,
@@ -32,10 +32,10 @@ def _range(args: argparse.Namespace, var: Any) -> tuple[float, float]:
 
 def size(args: argparse.Namespace) -> int:
     """Run ``beamtone size``."""
-    from calc import sizing
-    from calc.sizing import parse_harmonics, parse_margin
-    from calc.units import parse_frequency
-    from calc.worksheet import load, write_atomic
+    from beamtone.calc import sizing
+    from beamtone.calc.sizing import parse_harmonics, parse_margin
+    from beamtone.calc.units import parse_frequency
+    from beamtone.calc.worksheet import load, write_atomic
 
     path = Path(args.file)
     sheet = load(path)
@@ -139,8 +139,8 @@ def _margin_lines(check: Any) -> list[str]:
 
 def sweep(args: argparse.Namespace) -> int:
     """Run ``beamtone sweep``."""
-    from calc import sizing
-    from calc.worksheet import load
+    from beamtone.calc import sizing
+    from beamtone.calc.worksheet import load
 
     sheet = load(args.file)
     var = sizing.variation(sheet, args.vary)
@@ -195,8 +195,8 @@ def sweep(args: argparse.Namespace) -> int:
 
 
 def _sweep2(args: argparse.Namespace, sheet: Any, var: Any, low: float, high: float) -> int:
-    from calc import sizing
-    from calc.units import parse_quantity
+    from beamtone.calc import sizing
+    from beamtone.calc.units import parse_quantity
 
     if args.between2 is None:
         raise InputError("--vary2", args.vary2, "a range for it too: --between2 LOW HIGH")

@@ -17,7 +17,8 @@ def cold_solves(sheet: Path, shown: str, module: str, cache: Path) -> list[tuple
     whether ``module`` was imported by the end.
     """
     code = (
-        "import sys; from calc.worksheet import load; from calc.analysis import analyse; "
+        "import sys; from beamtone.calc.worksheet import load; "
+        "from beamtone.calc.analysis import analyse; "
         f"a = analyse(load({str(sheet)!r})); print({shown}); print({module!r} in sys.modules)"
     )
     env = {**os.environ, "BEAMTONE_CACHE": str(cache)}

@@ -22,12 +22,12 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from calc import fe, handbook
-from calc.errors import InputError
-from calc.materials import LIBRARY
-from calc.model import Member, PointMass, Segment, Spring
-from calc.sections import build_section
-from calc.worksheet import loads, write_atomic
+from beamtone.calc import fe, handbook
+from beamtone.calc.errors import InputError
+from beamtone.calc.materials import LIBRARY
+from beamtone.calc.model import Member, PointMass, Segment, Spring
+from beamtone.calc.sections import build_section
+from beamtone.calc.worksheet import loads, write_atomic
 from tests.cli.inprocess import run
 
 STEEL = LIBRARY["steel"]
@@ -124,9 +124,9 @@ def test_very_large_file_refused_quickly(
 
 def test_bad_input_in_the_app_keeps_it_running(tmp_path: Path) -> None:
     """Each bad worksheet loaded into the app: an inline NOT SOLVED, the app keeps running."""
-    from tui.app import BeamtoneApp
-    from tui.document import Document
-    from tui.widgets.results import ResultsView
+    from beamtone.tui.app import BeamtoneApp
+    from beamtone.tui.document import Document
+    from beamtone.tui.widgets.results import ResultsView
 
     good = tmp_path / "good.toml"
     good.write_text(GOOD)
@@ -365,7 +365,7 @@ def test_apply_in_a_read_only_folder_tells_the_user(
 
 # --- fuzzing the quantity parser, and invariance as properties -----------------------------------
 
-from calc.units import LENGTH, PRESSURE, STIFFNESS, parse_quantity  # noqa: E402
+from beamtone.calc.units import LENGTH, PRESSURE, STIFFNESS, parse_quantity  # noqa: E402
 from tests.fuzz import EXAMPLES  # noqa: E402
 
 _UNITISH = st.text(

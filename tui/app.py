@@ -7,19 +7,19 @@ from pathlib import Path
 from textual.app import App
 from textual.binding import Binding
 
-from calc.errors import InputError
-from tui.dialogs.choices import (
+from beamtone.calc.errors import InputError
+from beamtone.tui.dialogs.choices import (
     HelpDialog,
     PathDialog,
     RecoverDialog,
     TemplateDialog,
     UnsavedDialog,
 )
-from tui.document import TEMPLATES, Document, Template
-from tui.screens.groups import GroupsScreen
-from tui.screens.sizing import SizingScreen
-from tui.screens.workbench import Workbench
-from tui.widgets.results import ResultsView
+from beamtone.tui.document import TEMPLATES, Document, Template
+from beamtone.tui.screens.groups import GroupsScreen
+from beamtone.tui.screens.sizing import SizingScreen
+from beamtone.tui.screens.workbench import Workbench
+from beamtone.tui.widgets.results import ResultsView
 
 __all__ = ["BeamtoneApp", "run"]
 

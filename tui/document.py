@@ -16,8 +16,8 @@ import tomlkit
 import tomlkit.exceptions
 from tomlkit.items import AoT, Table
 
-from calc.errors import InputError
-from calc.worksheet import Worksheet, key_path, loads, write_atomic
+from beamtone.calc.errors import InputError
+from beamtone.calc.worksheet import Worksheet, key_path, loads, write_atomic
 
 __all__ = ["Template", "TEMPLATES", "Document"]
 
@@ -37,7 +37,9 @@ class Template:
 
     def text(self) -> str:
         """The template's TOML text."""
-        return resources.files("tui").joinpath("templates", self.filename).read_text("utf-8")
+        return (
+            resources.files("beamtone.tui").joinpath("templates", self.filename).read_text("utf-8")
+        )
 
 
 TEMPLATES: tuple[Template, ...] = (
@@ -95,7 +97,7 @@ class Document:
     @classmethod
     def open(cls, path: str | Path) -> Document:
         """Open a worksheet file; it must load without error (else InputError)."""
-        from calc.worksheet import load
+        from beamtone.calc.worksheet import load
 
         p = Path(path).expanduser()
         load(p)  # the same checks as the command line: refuse a damaged file
@@ -337,7 +339,7 @@ class Document:
             When the worksheet does not validate (nothing is written), or the file
             cannot be written (the old file stays intact).
         """
-        from calc.record import build_record, inputs_digest, with_record
+        from beamtone.calc.record import build_record, inputs_digest, with_record
 
         target = Path(path).expanduser() if path is not None else self.path
         if target is None:

@@ -18,9 +18,9 @@ import sympy
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from calc import expressions
-from calc.errors import InputError
-from calc.expressions import MAX_DEPTH, MAX_LENGTH, evaluate, parse_shape, symbols
+from beamtone.calc import expressions
+from beamtone.calc.errors import InputError
+from beamtone.calc.expressions import MAX_DEPTH, MAX_LENGTH, evaluate, parse_shape, symbols
 from tests.fuzz import EXAMPLES
 
 ROOT = Path(__file__).resolve().parents[2]

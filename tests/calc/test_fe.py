@@ -16,11 +16,11 @@ import pytest
 import scipy.integrate
 import scipy.linalg
 
-from calc import fe, handbook
-from calc.errors import InputError
-from calc.materials import LIBRARY, Material
-from calc.model import InnerSupport, Member, PointMass, Segment, Spring, rigid_body_count
-from calc.sections import build_section
+from beamtone.calc import fe, handbook
+from beamtone.calc.errors import InputError
+from beamtone.calc.materials import LIBRARY, Material
+from beamtone.calc.model import InnerSupport, Member, PointMass, Segment, Spring, rigid_body_count
+from beamtone.calc.sections import build_section
 from tests.reference import reference_file
 
 REFERENCE = reference_file("uniform-beam-frequency-parameters.csv")

@@ -21,8 +21,8 @@ import pint
 import pytest
 import sympy as sp
 
-from calc.errors import InputError
-from calc.groups import (
+from beamtone.calc.errors import InputError
+from beamtone.calc.groups import (
     Group,
     GroupsResult,
     Variable,
@@ -30,7 +30,7 @@ from calc.groups import (
     pi_groups,
     variable,
 )
-from calc.units import registry
+from beamtone.calc.units import registry
 
 Spec = list[tuple[str, str]]
 

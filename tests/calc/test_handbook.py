@@ -23,7 +23,7 @@ import pytest
 import sympy as sp
 from scipy.optimize import brentq
 
-from calc.handbook import (
+from beamtone.calc.handbook import (
     END_CONDITIONS,
     equal_span_parameters,
     frequency_parameters,

@@ -15,11 +15,11 @@ import sympy as sp
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from calc import fe, handbook, rayleigh
-from calc.errors import InputError
-from calc.materials import LIBRARY
-from calc.model import InnerSupport, Member, PointMass, Segment, Spring
-from calc.sections import build_section
+from beamtone.calc import fe, handbook, rayleigh
+from beamtone.calc.errors import InputError
+from beamtone.calc.materials import LIBRARY
+from beamtone.calc.model import InnerSupport, Member, PointMass, Segment, Spring
+from beamtone.calc.sections import build_section
 
 STEEL = LIBRARY["steel"]
 BAR = build_section("rectangle", {"width": 0.04, "depth": 0.008})

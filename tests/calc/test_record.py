@@ -11,11 +11,11 @@ from pathlib import Path
 import pytest
 import tomlkit
 
-from calc import record
-from calc.analysis import analyse
-from calc.errors import InputError
-from calc.sizing import margins
-from calc.worksheet import load, loads, replace_value
+from beamtone.calc import record
+from beamtone.calc.analysis import analyse
+from beamtone.calc.errors import InputError
+from beamtone.calc.sizing import margins
+from beamtone.calc.worksheet import load, loads, replace_value
 from tests.reference import reference_file
 
 ROOT = Path(__file__).resolve().parents[2]

@@ -13,11 +13,11 @@ from typing import Any
 
 import pytest
 
-from calc import record, report
-from calc.analysis import Analysis, analyse
-from calc.report import number
-from calc.sizing import margins
-from calc.worksheet import load, loads
+from beamtone.calc import record, report
+from beamtone.calc.analysis import Analysis, analyse
+from beamtone.calc.report import number
+from beamtone.calc.sizing import margins
+from beamtone.calc.worksheet import load, loads
 from tests.reference import reference_file
 
 ROOT = Path(__file__).resolve().parents[2]

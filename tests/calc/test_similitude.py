@@ -7,10 +7,10 @@ from dataclasses import replace
 
 import pytest
 
-from calc import fe, groups, similitude
-from calc.materials import LIBRARY
-from calc.model import InnerSupport, Member, PointMass, Segment, Spring
-from calc.sections import build_section
+from beamtone.calc import fe, groups, similitude
+from beamtone.calc.materials import LIBRARY
+from beamtone.calc.model import InnerSupport, Member, PointMass, Segment, Spring
+from beamtone.calc.sections import build_section
 
 STEEL = LIBRARY["steel"]
 
@@ -140,7 +140,7 @@ def test_master_curve_point_matches_dimensional_solve() -> None:
 
 
 def test_master_curve_unknown_group() -> None:
-    from calc.errors import InputError
+    from beamtone.calc.errors import InputError
 
     with pytest.raises(InputError) as info:
         similitude.master_curve(stepped(), "Q7", 0, 1)

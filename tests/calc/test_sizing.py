@@ -9,9 +9,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from calc import fe, handbook, sizing
-from calc.errors import InputError
-from calc.worksheet import load, loads, replace_value, write_atomic
+from beamtone.calc import fe, handbook, sizing
+from beamtone.calc.errors import InputError
+from beamtone.calc.worksheet import load, loads, replace_value, write_atomic
 
 LAMBDA1 = 1.87510407  # clamped-free (R. D. Blevins 1979, Table 8-1)
 

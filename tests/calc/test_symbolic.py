@@ -15,12 +15,12 @@ import numpy as np
 import pytest
 import sympy as sp
 
-from calc import rayleigh, symbolic
-from calc.errors import InputError
-from calc.expressions import derivatives, evaluate, parse_formula, parse_shape, symbols
-from calc.materials import LIBRARY
-from calc.model import Member, PointMass, Segment, Spring
-from calc.sections import build_section
+from beamtone.calc import rayleigh, symbolic
+from beamtone.calc.errors import InputError
+from beamtone.calc.expressions import derivatives, evaluate, parse_formula, parse_shape, symbols
+from beamtone.calc.materials import LIBRARY
+from beamtone.calc.model import Member, PointMass, Segment, Spring
+from beamtone.calc.sections import build_section
 from tests.processes import cold_solves
 
 ROOT = Path(__file__).resolve().parents[2]

@@ -14,8 +14,8 @@ from pathlib import Path
 import pint
 import pytest
 
-from calc import units
-from calc.errors import InputError
+from beamtone.calc import units
+from beamtone.calc.errors import InputError
 from tests.processes import cold_solves
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -119,7 +119,7 @@ def test_a_cached_solve_needs_no_registry(fresh_cache: Path) -> None:
 
 
 def test_no_home_folder_means_no_cache(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
-    from calc import diskcache
+    from beamtone.calc import diskcache
 
     monkeypatch.delenv("BEAMTONE_CACHE", raising=False)
     monkeypatch.delenv("XDG_CACHE_HOME", raising=False)

@@ -30,9 +30,9 @@ import tomlkit
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from calc.errors import InputError
-from calc.model import Member
-from calc.worksheet import MAX_BYTES, MAX_MODES, Worksheet, load, loads
+from beamtone.calc.errors import InputError
+from beamtone.calc.model import Member
+from beamtone.calc.worksheet import MAX_BYTES, MAX_MODES, Worksheet, load, loads
 from tests.fuzz import EXAMPLES as FUZZ_EXAMPLES
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -826,8 +826,8 @@ def test_malformed_unit_text_is_an_input_error(length: str) -> None:
 
 def test_chained_powers_do_not_hang() -> None:
     code = (
-        "from calc.errors import InputError\n"
-        "from calc.worksheet import loads\n"
+        "from beamtone.calc.errors import InputError\n"
+        "from beamtone.calc.worksheet import loads\n"
         "import sys\n"
         "try:\n"
         "    loads(sys.stdin.read())\n"
@@ -873,7 +873,7 @@ _CHAINED_POWER = re.compile(r"(\^|\*\*)[\s(]*[+-]?[\d.]+[\s)]*(\^|\*\*)")
 def _pint_crashes(unit: str) -> bool:
     if _CHAINED_POWER.search(unit):
         return True
-    from calc.units import registry
+    from beamtone.calc.units import registry
 
     try:
         (1.0 * registry().parse_units(unit)).to_base_units()

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from cli.main import main
+from beamtone.cli.main import main
 
 __all__ = ["run"]
 

@@ -7,7 +7,7 @@ from pathlib import Path
 
 import pytest
 
-from cli.main import main
+from beamtone.cli.main import main
 from tests.cli.inprocess import run
 
 ROOT = Path(__file__).resolve().parents[2]

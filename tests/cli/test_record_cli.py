@@ -9,7 +9,7 @@ from pathlib import Path
 import pytest
 import tomlkit
 
-from calc.worksheet import replace_value
+from beamtone.calc.worksheet import replace_value
 from tests.cli.inprocess import run
 
 ROOT = Path(__file__).resolve().parents[2]

@@ -72,7 +72,7 @@ def _beamtone(args: tuple[str, ...], file: Path | None = None) -> Run:
     env["PYTHONPATH"] = str(ROOT)
     before = _snapshot(file)
     proc = subprocess.run(
-        [sys.executable, "-m", "cli.main", *args],
+        [sys.executable, "-m", "beamtone.cli.main", *args],
         cwd=ROOT,
         env=env,
         capture_output=True,

@@ -12,13 +12,13 @@ from typing import Any
 import pytest
 from textual.widgets import Button, Input, Select
 
-from calc.worksheet import load
-from tui.app import BeamtoneApp
-from tui.dialogs.choices import PathDialog, TemplateDialog, UnsavedDialog
-from tui.document import TEMPLATES, Document
-from tui.screens.sizing import SizingScreen
-from tui.widgets.quantity import QuantityField
-from tui.widgets.results import ResultsView
+from beamtone.calc.worksheet import load
+from beamtone.tui.app import BeamtoneApp
+from beamtone.tui.dialogs.choices import PathDialog, TemplateDialog, UnsavedDialog
+from beamtone.tui.document import TEMPLATES, Document
+from beamtone.tui.screens.sizing import SizingScreen
+from beamtone.tui.widgets.quantity import QuantityField
+from beamtone.tui.widgets.results import ResultsView
 
 ROOT = Path(__file__).resolve().parents[2]
 LAMBDA1 = 1.87510407  # clamped-free (R. D. Blevins 1979, Table 8-1)
@@ -208,7 +208,7 @@ async def test_save_reopen_and_compare(bar: Path, tmp_path: Path) -> None:
     sheet = load(bar)
     assert sheet.member.length == pytest.approx(0.75)
     assert len(sheet.member.springs) == 1
-    from calc.record import verify
+    from beamtone.calc.record import verify
 
     result = verify(sheet)
     assert result is not None and result.passed  # the stored results reproduce
@@ -280,7 +280,7 @@ def test_every_template_solves() -> None:
 @sync
 async def test_unsaved_edits_survive_a_crash_and_are_offered_back(bar: Path) -> None:
     """The app keeps unsaved edits beside the file; the next session offers them back."""
-    from tui.dialogs.choices import RecoverDialog
+    from beamtone.tui.dialogs.choices import RecoverDialog
 
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 40)) as pilot:

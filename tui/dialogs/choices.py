@@ -9,8 +9,8 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
-from cli.output import CAUTION
-from tui.document import TEMPLATES, Template
+from beamtone.cli.output import CAUTION
+from beamtone.tui.document import TEMPLATES, Template
 
 __all__ = ["UnsavedDialog", "RecoverDialog", "PathDialog", "TemplateDialog", "HelpDialog"]
 

@@ -9,7 +9,7 @@ from textual.containers import Vertical
 from textual.screen import Screen
 from textual.widgets import Button, DataTable, Footer, Header, Input, Static
 
-from calc.errors import InputError
+from beamtone.calc.errors import InputError
 
 __all__ = ["GroupsScreen"]
 
@@ -41,7 +41,7 @@ class GroupsScreen(Screen[None]):
     def on_mount(self) -> None:
         table = self.query_one("#member-groups", DataTable)
         table.add_columns("", "group", "value", "from")
-        from calc.analysis import Analysis
+        from beamtone.calc.analysis import Analysis
 
         if isinstance(self.analysis, Analysis):
             for g in self.analysis.groups.groups:
@@ -59,7 +59,7 @@ class GroupsScreen(Screen[None]):
     @on(Input.Submitted, "#variables")
     @on(Input.Changed, "#variables")
     def _calculate(self, event: Input.Changed | Input.Submitted) -> None:
-        from calc.groups import parse_variables, pi_groups, variable
+        from beamtone.calc.groups import parse_variables, pi_groups, variable
 
         out = self.query_one("#calculator", Static)
         items = event.value.split()

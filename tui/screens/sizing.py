@@ -9,8 +9,8 @@ from textual.containers import Horizontal, Vertical
 from textual.screen import Screen
 from textual.widgets import Button, DataTable, Footer, Header, Input, Label, Select, Static
 
-from calc.errors import InputError
-from tui.document import Document
+from beamtone.calc.errors import InputError
+from beamtone.tui.document import Document
 
 __all__ = ["SizingScreen"]
 
@@ -29,7 +29,7 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
         self.result: object | None = None
 
     def compose(self) -> ComposeResult:
-        from calc.sizing import quantity_keys
+        from beamtone.calc.sizing import quantity_keys
 
         keys = quantity_keys(self.document.plain())
         yield Header()
@@ -108,9 +108,9 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
 
     @work(thread=True, exclusive=True, group="sizing", exit_on_error=False)
     def _run(self, text: str, key: str, goal: str, values: dict[str, str]) -> None:
-        from calc import sizing
-        from calc.units import parse_frequency, parse_quantity
-        from calc.worksheet import loads
+        from beamtone.calc import sizing
+        from beamtone.calc.units import parse_frequency, parse_quantity
+        from beamtone.calc.worksheet import loads
 
         try:
             sheet = loads(text, "<app>")
@@ -166,7 +166,7 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
         message.set_class(error, "error")
 
     def _show(self, result: object) -> None:
-        from calc.sizing import SizingResult
+        from beamtone.calc.sizing import SizingResult
 
         assert isinstance(result, SizingResult)
         self.result = result
@@ -186,12 +186,12 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
 
     @on(Button.Pressed, "#apply")
     def _apply(self) -> None:
-        from calc.sizing import SizingResult
+        from beamtone.calc.sizing import SizingResult
 
         if not isinstance(self.result, SizingResult) or not self.result.solutions:
             return
-        from calc.sizing import variation
-        from calc.worksheet import loads
+        from beamtone.calc.sizing import variation
+        from beamtone.calc.worksheet import loads
 
         row = self.query_one("#solutions", DataTable).cursor_row
         chosen = self.result.solutions[min(max(row, 0), len(self.result.solutions) - 1)]

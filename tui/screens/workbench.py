@@ -10,11 +10,11 @@ from textual.screen import Screen
 from textual.timer import Timer
 from textual.widgets import Footer, Header
 
-from calc.errors import InputError
-from tui.document import Document
-from tui.widgets.form import WorksheetForm
-from tui.widgets.modeplot import ModePlot, PlotData
-from tui.widgets.results import ResultsView
+from beamtone.calc.errors import InputError
+from beamtone.tui.document import Document
+from beamtone.tui.widgets.form import WorksheetForm
+from beamtone.tui.widgets.modeplot import ModePlot, PlotData
+from beamtone.tui.widgets.results import ResultsView
 
 __all__ = ["Workbench"]
 
@@ -85,8 +85,8 @@ class Workbench(Screen[None]):
 
     @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
     def _run(self, data: dict, version: int) -> None:
-        from calc.analysis import analyse
-        from calc.worksheet import from_data
+        from beamtone.calc.analysis import analyse
+        from beamtone.calc.worksheet import from_data
 
         try:
             analysis = analyse(from_data(data, "<app>"))
@@ -135,7 +135,7 @@ class Workbench(Screen[None]):
 
 
 def _plot_data(analysis: object) -> PlotData:
-    from calc.analysis import Analysis
+    from beamtone.calc.analysis import Analysis
 
     assert isinstance(analysis, Analysis)
     member = analysis.sheet.member

@@ -15,11 +15,11 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.widgets import Button, Label, Select, Static
 
-from calc import materials
-from calc.errors import InputError
-from calc.model import END_KINDS, INNER_KINDS, Member
-from calc.sections import SHAPES
-from calc.units import (
+from beamtone.calc import materials
+from beamtone.calc.errors import InputError
+from beamtone.calc.model import END_KINDS, INNER_KINDS, Member
+from beamtone.calc.sections import SHAPES
+from beamtone.calc.units import (
     DENSITY,
     FORCE,
     LENGTH,
@@ -30,8 +30,8 @@ from calc.units import (
     ROTATIONAL_STIFFNESS,
     STIFFNESS,
 )
-from tui.document import Document
-from tui.widgets.quantity import QuantityField, TextField
+from beamtone.tui.document import Document
+from beamtone.tui.widgets.quantity import QuantityField, TextField
 
 __all__ = ["WorksheetForm"]
 

@@ -8,8 +8,8 @@ from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.widgets import Input, Label, Static
 
-from calc.errors import InputError
-from calc.units import Dimension, parse_quantity
+from beamtone.calc.errors import InputError
+from beamtone.calc.units import Dimension, parse_quantity
 
 __all__ = ["QuantityField", "TextField"]
 

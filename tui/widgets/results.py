@@ -11,10 +11,10 @@ from textual.app import ComposeResult
 from textual.containers import Vertical
 from textual.widgets import Static
 
-from cli.output import CAUTION
+from beamtone.cli.output import CAUTION
 
 if TYPE_CHECKING:  # pragma: no cover
-    from calc.analysis import Analysis
+    from beamtone.calc.analysis import Analysis
 
 __all__ = ["ResultsView", "summary"]
 
