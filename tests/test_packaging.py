@@ -25,8 +25,16 @@ def test_the_wheel_installs_one_top_level_package(tmp_path: Path) -> None:
     names = zipfile.ZipFile(wheel).namelist()
     top = {name.split("/")[0] for name in names if not name.split("/")[0].endswith(".dist-info")}
     assert top == {"beamtone"}
-    for module in ("cli/main.py", "calc/fe.py", "tui/app.py", "tui/beamtone.tcss"):
-        assert f"beamtone/{module}" in names
+    # Every source file of the mapped folders ships (a new subpackage must be listed in
+    # pyproject.toml's packages, or it would be missing from the wheel).
+    folders = {"beamtone": "", "calc": "calc/", "cli": "cli/", "tui": "tui/"}
+    for folder, inside in folders.items():
+        for source in (ROOT / folder).rglob("*"):
+            if source.suffix in (".py", ".tcss", ".toml", ".json") and "__pycache__" not in str(
+                source
+            ):
+                relative = source.relative_to(ROOT / folder).as_posix()
+                assert f"beamtone/{inside}{relative}" in names, relative
     assert any(name.startswith("beamtone/tui/templates/") for name in names)
     entry = next(n for n in names if n.endswith("entry_points.txt"))
     assert "beamtone = beamtone.cli.main:run" in zipfile.ZipFile(wheel).read(entry).decode()
