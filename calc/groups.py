@@ -6,16 +6,15 @@ governed by n - r independent dimensionless groups (Buckingham's Pi theorem; e.g
 r dimensionally independent variables are chosen, and each of the other variables, times
 powers of the repeating ones, makes one group.  All exponents are exact rationals.
 
-Unit text is read with the project's pint registry (:func:`calc.units.registry`) and never
-evaluated as code; sympy is used only through its constructors.  pint and sympy are imported
-on first use, so importing this module stays cheap.
+Unit text is read through the project's one guarded unit parser
+(:func:`calc.units.parse_unit`) and never evaluated as code; sympy is used only through its
+constructors.  pint and sympy are imported on first use, so importing this module stays cheap.
 """
 
 from __future__ import annotations
 
 import difflib
 import math
-import tokenize
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
@@ -45,7 +44,6 @@ _BASE_ORDER = (
     "[substance]",
     "[luminosity]",
 )
-_MAX_UNIT_TEXT = 80
 _MAX_EXPONENT = 100  # largest |exponent| of a base dimension accepted from a unit
 _MAX_DENOMINATOR = 100  # fractional unit powers are read as fractions with this denominator
 _DIMENSIONLESS_TOLERANCE = 1e-9  # float exponents left over in the pint check
@@ -194,51 +192,14 @@ def _base_key(dimension: str) -> tuple[int, str]:
 
 
 def _parse_unit(name: str, unit: str) -> Any:
-    import pint
-
-    from beamtone.calc.units import registry
+    from beamtone.calc.units import parse_unit
 
     expected = 'a unit, e.g. "m", "kg/m^3", "N*m^2" or "1" for a dimensionless variable'
-    if not isinstance(unit, str):
-        raise InputError(name, unit, expected, "the unit must be a string")
-    text = unit.strip()
-    if not text:
-        raise InputError(name, unit, expected, 'the unit is empty; write "1" if dimensionless')
-    if len(text) > _MAX_UNIT_TEXT:
-        raise InputError(name, unit, expected, f"longer than {_MAX_UNIT_TEXT} characters")
-    ureg = registry()
-    try:
-        parsed = _units(text)
-    except pint.errors.UndefinedUnitError as exc:
-        names = exc.unit_names if isinstance(exc.unit_names, str) else ", ".join(exc.unit_names)
-        raise InputError(name, unit, expected, f"unknown unit {names!r}") from None
-    except (
-        pint.errors.PintError,
-        tokenize.TokenError,
-        AssertionError,
-        ValueError,
-        TypeError,
-        SyntaxError,
-        AttributeError,
-        KeyError,
-        IndexError,
-        ZeroDivisionError,
-        OverflowError,
-    ):
-        raise InputError(name, unit, expected, f"{text!r} is not a unit expression") from None
-    try:
-        probe = ureg.Quantity(1.0, parsed)
-        probe * probe  # noqa: B018 -- refused for offset units such as degC
-    except pint.errors.OffsetUnitCalculusError:
-        hint = f"{text!r} has an offset zero; give a difference unit such as K or delta_degC"
-        raise InputError(name, unit, expected, hint) from None
-    return parsed
+    return parse_unit(unit, name, expected)
 
 
 def _units(text: str) -> Any:
-    from beamtone.calc.units import registry
-
-    return registry().parse_units(text.strip().replace("·", "*"))
+    return _parse_unit("unit", text)
 
 
 def variable(name: str, unit: str) -> Variable:

@@ -1,12 +1,15 @@
-"""The project's single unit registry, and quantity parsing at the edges.
+"""The project's single unit registry, and the one guarded way to read unit text.
 
-Every quantity a user writes is a string ``"number unit"``.  It is parsed here,
-once, checked against the dimension its field needs, and handed on as a plain
-SI float.  The numerical core never sees units.
+Every quantity a user writes is a string ``"number unit"``, and every unit (a worksheet
+entry, ``--between``, ``--target``, ``beamtone groups NAME=UNIT``, the app's groups
+calculator) is read here: checked against a small grammar first (so pint never sees text
+that could make it build huge numbers), then parsed by the one pint registry, refused where
+it is a logarithmic level (dB, Np, octave, decade), an offset temperature or an ambiguous
+name (``ton``, ``B``), checked against the dimension its field needs, and handed on as a
+plain SI float.  The numerical core never sees units.
 
-pint's answer for an accepted unit expression (its factor to the field's SI unit) is kept
-in the disk cache of :mod:`calc.diskcache`, keyed by pint's version, so a later start that
-meets only known units needs no registry; refusals always come from pint itself.
+pint's answers are kept in this process only: nothing about units is read from disk, and
+the registry is built without pint's own definition cache (which unpickles its files).
 """
 
 from __future__ import annotations
@@ -39,6 +42,7 @@ __all__ = [
     "FREQUENCY",
     "registry",
     "parse_quantity",
+    "parse_unit",
     "parse_frequency",
     "convert_from_si",
 ]
@@ -130,12 +134,9 @@ def registry() -> pint.UnitRegistry:
     """
     import pint
 
-    # pint caches its parsed definitions on disk (a tenth of the start-up time once cached);
-    # where the cache folder cannot be used, the registry is built from scratch.
-    try:
-        return pint.UnitRegistry(cache_folder=":auto:")
-    except (OSError, ValueError, TypeError, ImportError):
-        return pint.UnitRegistry()
+    # No disk cache: pint's cache folder holds pickles that pint loads back, so a file
+    # placed there would run code; building the definitions costs about a tenth of a second.
+    return pint.UnitRegistry(cache_folder=None)
 
 
 @cache
@@ -147,28 +148,12 @@ def _expected(dim: Dimension) -> str:
     return f"{dim.name} as a number and a unit, e.g. {dim.example}"
 
 
-def _parse_units(canonical: str, text: str, key: str, given: str, dim: Dimension) -> pint.Unit:
-    """pint's unit for an expression already in canonical form (``text`` as written)."""
-    import pint
-
-    expected = _expected(dim)
-    try:
-        return registry().parse_units(canonical)
-    except pint.errors.UndefinedUnitError as exc:
-        names = exc.unit_names if isinstance(exc.unit_names, str) else ", ".join(exc.unit_names)
-        raise InputError(key, given, expected, f"unknown unit {names!r}") from None
-    except (pint.errors.PintError, ValueError, TypeError, SyntaxError, AttributeError,
-            KeyError, IndexError, ZeroDivisionError, OverflowError, AssertionError,
-            tokenize.TokenError):  # fmt: skip
-        # pint's own parser fails in several ways on odd text; all of them mean the same here
-        raise InputError(key, given, expected, f"{text!r} is not a unit expression") from None
-
-
 def _canonical_units(text: str) -> str | None:
     """Check a unit expression against a small grammar; return it in pint's notation or None.
 
     unit := term (("*" | "/" | "·" | juxtaposition) term)* ; term := atom [("^" | "**") power] ;
-    atom := name | "1" | "(" unit ")" ; power := a signed number of at most 12 in size.
+    atom := name | "1" | "(" unit ")" ; power := number | "(" number ")" |
+    "(" number "/" number ")", a signed number of at most 12 in size.
     One power per term and a bounded nesting keep pint from building huge numbers.
     """
     tokens: list[tuple[str, str]] = []
@@ -208,14 +193,31 @@ def _canonical_units(text: str) -> str | None:
             return False
         if peek() == "power":
             index += 1
-            if peek() != "number":
+            power = exponent()
+            if power is None:
                 return False
-            power = float(tokens[index][1])
-            if abs(power) > _MAX_UNIT_POWER:
-                return False
-            out.append(f"**{tokens[index][1]}")
-            index += 1
+            out.append(f"**{power}")
         return True
+
+    def exponent() -> str | None:
+        """A power: a number, or a number or a fraction of two numbers in parentheses."""
+        nonlocal index
+        kinds = [kind for kind, _ in tokens[index : index + 5]]
+        if kinds[:1] == ["number"]:
+            text, index = tokens[index][1], index + 1
+        elif kinds[:3] == ["open", "number", "close"]:
+            text, index = tokens[index + 1][1], index + 3
+        elif kinds == ["open", "number", "op", "number", "close"] and tokens[index + 2][1] == "/":
+            numerator, denominator = tokens[index + 1][1], tokens[index + 3][1]
+            if float(denominator) == 0.0:
+                return None
+            text, index = f"({numerator}/{denominator})", index + 5
+            if abs(float(numerator) / float(denominator)) > _MAX_UNIT_POWER:
+                return None
+            return text
+        else:
+            return None
+        return text if abs(float(text)) <= _MAX_UNIT_POWER else None
 
     def unit(depth: int) -> bool:
         nonlocal index
@@ -333,23 +335,11 @@ def _parse_quantity(
 
 
 def _si_factor(unit_text: str, key: str, given: str, dim: Dimension) -> float:
-    """What one of ``unit_text`` is in the SI unit of ``dim``: from the cache, or from pint.
-
-    pint's answer for a unit expression never changes for a given pint version, so it is kept
-    on disk (see :mod:`calc.diskcache`) and a later start needs no registry for it.  Only
-    accepted units are kept; every refusal comes from pint, with its full message.
-    """
+    """What one of ``unit_text`` is in the SI unit of ``dim`` (pint's answer, kept in memory)."""
     expected = _expected(dim)
     if not unit_text:
         raise InputError(key, given, expected, "the unit is missing")
-    canonical = _canonical_units(unit_text)
-    if canonical is None:
-        raise InputError(key, given, expected, f"{unit_text!r} is not a unit expression")
-    entry = f"{dim.si_unit}|{dim.pint_dimension}|{canonical}"
-    known = _known_factor(entry)
-    if known is not None:
-        return known
-    units = _parse_units(canonical, unit_text, key, given, dim)
+    units = _guarded_units(unit_text, key, given, expected)
     quantity = 1.0 * units
     if quantity.dimensionality != _dimensionality(dim.pint_dimension):
         hint = f"{unit_text!r} is {_describe(quantity.dimensionality)}"
@@ -362,53 +352,115 @@ def _si_factor(unit_text: str, key: str, given: str, dim: Dimension) -> float:
                 raise InputError(key, given, weight[1], f"{unit_text!r} gives {weight[0]}")
         raise InputError(key, given, expected, hint)
     try:
-        factor = float(quantity.to(dim.si_unit).magnitude)
+        return float(quantity.to(dim.si_unit).magnitude)
     except (OverflowError, ZeroDivisionError):
-        factor = math.inf
-    _remember(entry, factor)
-    return factor
+        return math.inf
 
 
-_UNIT_CACHE = "units"
-_unit_entries: dict[str, object] | None = None
+# Names pint reads in a way a user rarely means: the unit pint resolves them to -> why.
+_AMBIGUOUS = {
+    "ton": (
+        "'{name}' is read as the US short ton (907.18 kg), not the metric tonne: "
+        "write t or tonne for 1000 kg, or short_ton if the US ton is meant"
+    ),
+    "byte": (
+        "'{name}' is read as a byte (an amount of information), not a bel or any "
+        "mechanical unit: write the unit out in full"
+    ),
+}
+_SPELLED_OUT = {"ton": "short_ton", "byte": "byte"}
 
 
-def _unit_cache() -> dict[str, object]:
-    global _unit_entries
-    if _unit_entries is None:
-        from beamtone.calc import diskcache
+def parse_unit(text: object, key: str, expected: str) -> pint.Unit:
+    """Read a unit expression through the project's guarded parser.
 
-        _unit_entries = dict(diskcache.read(_UNIT_CACHE, diskcache.library_version("pint")))
-    return _unit_entries
+    The text is checked against a small grammar (names, products, quotients, one bounded
+    power per term, bounded nesting) before pint sees it; logarithmic levels (dB, Np,
+    octave, decade), offset temperatures (degC) and the ambiguous names ``ton`` and ``B``
+    are refused with the reason.
+
+    Parameters
+    ----------
+    text : object
+        The unit as written, e.g. ``"N*m^2"``; anything but a string is refused.
+    key : str
+        Key or option named in any error.
+    expected : str
+        What the field expects, for the message.
+
+    Returns
+    -------
+    pint.Unit
+        The unit in the project's registry.
+
+    Raises
+    ------
+    InputError
+        Naming ``key``, on anything that is not an acceptable unit expression.
+    """
+    if not isinstance(text, str):
+        raise InputError(key, text, expected, "the unit must be a string")
+    stripped = text.strip()
+    if not stripped:
+        raise InputError(key, text, expected, 'the unit is empty; write "1" if dimensionless')
+    if len(stripped) > _MAX_TEXT:
+        raise InputError(key, text, expected, f"longer than {_MAX_TEXT} characters")
+    return _guarded_units(stripped, key, text, expected)
 
 
-def _known_factor(entry: str) -> float | None:
-    """A cached conversion factor, if there is a sound one (finite and positive)."""
-    known = _unit_cache().get(entry)
-    if isinstance(known, float) and math.isfinite(known) and known > 0.0:
-        return known
-    return None
+@lru_cache(maxsize=1024)
+def _checked_units(canonical: str) -> tuple[pint.Unit | None, str | None]:
+    """pint's unit for a canonical expression, or the reason it is refused (None: not a unit)."""
+    import pint
+
+    ureg = registry()
+    try:
+        units = ureg.parse_units(canonical)
+    except pint.errors.UndefinedUnitError as exc:
+        names = exc.unit_names if isinstance(exc.unit_names, str) else ", ".join(exc.unit_names)
+        return None, f"unknown unit {names!r}"
+    except (pint.errors.PintError, ValueError, TypeError, SyntaxError, AttributeError,
+            KeyError, IndexError, ZeroDivisionError, OverflowError, AssertionError,
+            tokenize.TokenError):  # fmt: skip
+        # pint's own parser fails in several ways on odd text; all of them mean the same here
+        return None, None
+    for name in _UNIT_NAME.findall(canonical):
+        try:
+            resolved = ureg.parse_unit_name(name)[0][1]
+        except (IndexError, pint.errors.PintError, ValueError, KeyError):
+            continue
+        if resolved in _AMBIGUOUS and _SPELLED_OUT[resolved] not in name:
+            return None, _AMBIGUOUS[resolved].format(name=name)
+        definition = getattr(ureg, "_units", {}).get(resolved)
+        if getattr(definition, "is_logarithmic", False):
+            return None, (
+                f"'{name}' is a logarithmic unit (a level or a ratio on a log scale), not a "
+                "physical quantity: give the quantity in a linear unit"
+            )
+        if definition is not None and not getattr(definition, "is_multiplicative", True):
+            return None, (
+                f"'{name}' has an offset zero; give a difference unit such as K or delta_degC"
+            )
+    return units, None
 
 
-def _remember(entry: str, value: float | bool) -> None:
-    if isinstance(value, float) and not (math.isfinite(value) and value > 0.0):
-        return
-    from beamtone.calc import diskcache
+_UNIT_NAME = re.compile(r"[A-Za-zµμΩ°][A-Za-zµμΩ°_]*")
 
-    _unit_cache()[entry] = value
-    diskcache.store(_UNIT_CACHE, diskcache.library_version("pint"), entry, value)
+
+def _guarded_units(unit_text: str, key: str, given: object, expected: str) -> pint.Unit:
+    canonical = _canonical_units(unit_text)
+    if canonical is None:
+        raise InputError(key, given, expected, f"{unit_text!r} is not a unit expression")
+    units, refusal = _checked_units(canonical)
+    if units is None:
+        raise InputError(key, given, expected, refusal or f"{unit_text!r} is not a unit expression")
+    return units
 
 
 def _is_angular(canonical: str) -> bool:
-    """Whether a unit counts radians per time (rpm, rad/s), from the cache or from pint."""
-    entry = f"angular|{canonical}"
-    known = _unit_cache().get(entry)
-    if isinstance(known, bool):
-        return known
+    """Whether a unit counts radians per time (rpm, rad/s)."""
     base = (1.0 * registry().parse_units(canonical)).to_base_units()
-    angular = "radian" in str(base.units)
-    _remember(entry, angular)
-    return angular
+    return "radian" in str(base.units)
 
 
 def parse_frequency(text: object, key: str) -> float:
@@ -450,17 +502,12 @@ def convert_from_si(value: float, unit_text: str) -> float:
     value : float
         Value in SI base units.
     unit_text : str
-        Target unit, e.g. ``"mm"``.
+        Target unit, e.g. ``"mm"`` (read through :func:`parse_unit`).
 
     Returns
     -------
     float
         The value in ``unit_text``.
     """
-    entry = f"base|{unit_text}"
-    known = _known_factor(entry)
-    if known is not None:
-        return value / known
-    factor = float((1.0 * registry().parse_units(unit_text)).to_base_units().magnitude)
-    _remember(entry, factor)
-    return value / factor
+    units = parse_unit(unit_text, "unit", "a unit, e.g. mm")
+    return value / float((1.0 * units).to_base_units().magnitude)

@@ -1,7 +1,8 @@
-"""Unit parsing through the cache of pint's answers, against pint itself.
+"""Unit parsing through the one guarded parser, against pint itself.
 
-pint (a general-purpose units library) is the reference: every value read back from the
-cache must equal what a fresh pint registry gives for the same text, to the last bit.
+pint (a general-purpose units library) is the reference: every value must equal what a
+fresh pint registry gives for the same text, to the last bit.  Nothing about units is read
+from disk (issue 21: a tampered cached factor changed a frequency with exit 0).
 """
 
 from __future__ import annotations
@@ -41,15 +42,14 @@ CASES = [
 def fresh_cache(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Iterator[Path]:
     """An empty cache folder, nothing remembered in this process."""
     monkeypatch.setenv("BEAMTONE_CACHE", str(tmp_path))
-    monkeypatch.setattr(units, "_unit_entries", None)
     units._parse_cached.cache_clear()
     yield tmp_path / "units.json"
     units._parse_cached.cache_clear()
 
 
 def _forget(monkeypatch: pytest.MonkeyPatch) -> None:
-    monkeypatch.setattr(units, "_unit_entries", None)
     units._parse_cached.cache_clear()
+    units._checked_units.cache_clear()
 
 
 @pytest.mark.parametrize(("text", "dim", "si"), CASES)
@@ -61,28 +61,23 @@ def test_fresh_and_cached_values_equal_pint(
     unit = unit.replace("^", "**").replace(" / ", "/").replace(" ", "*")
     expected = float(number) * float((1.0 * reference.parse_units(unit)).to(si).magnitude)
     first = units.parse_quantity(text, dim, "k")
-    assert fresh_cache.exists()
+    assert not fresh_cache.exists()  # nothing about units is kept on disk
     _forget(monkeypatch)
-    again = units.parse_quantity(text, dim, "k")  # from the file
+    again = units.parse_quantity(text, dim, "k")
     assert first == again
     assert first == pytest.approx(expected, rel=1e-15)
 
 
-def test_angular_frequencies_from_the_cache(
-    fresh_cache: Path, monkeypatch: pytest.MonkeyPatch
-) -> None:
+def test_angular_frequencies(fresh_cache: Path, monkeypatch: pytest.MonkeyPatch) -> None:
     for _ in range(2):
         assert units.parse_frequency("1800 rpm", "k") == pytest.approx(30.0, rel=1e-15)
         assert units.parse_frequency("100 rad/s", "k") == pytest.approx(100 / (2 * math.pi))
         assert units.parse_frequency("30 Hz", "k") == 30.0
         _forget(monkeypatch)
-    entries = json.loads(fresh_cache.read_text(encoding="utf-8"))["entries"]
-    assert entries["angular|rpm"] is True and entries["angular|Hz"] is False
+    assert not fresh_cache.exists()
 
 
-def test_conversion_from_si_uses_the_same_cache(
-    fresh_cache: Path, monkeypatch: pytest.MonkeyPatch
-) -> None:
+def test_conversion_from_si(fresh_cache: Path, monkeypatch: pytest.MonkeyPatch) -> None:
     first = units.convert_from_si(0.0254, "in")
     _forget(monkeypatch)
     assert units.convert_from_si(0.0254, "in") == first == pytest.approx(1.0, rel=1e-15)
@@ -98,24 +93,34 @@ def test_refusals_are_never_cached(fresh_cache: Path, monkeypatch: pytest.Monkey
     assert not fresh_cache.exists()
 
 
-@pytest.mark.parametrize("bad", [-1.0, 0.0, "0.001", None, [1], float("nan")])
-def test_a_tampered_entry_is_ignored(
+@pytest.mark.parametrize("bad", [-1.0, 0.0, "0.001", None, [1], float("nan"), 0.0011])
+def test_a_planted_unit_file_changes_nothing(
     bad: object, fresh_cache: Path, monkeypatch: pytest.MonkeyPatch
 ) -> None:
-    assert units.parse_quantity("3 mm", units.LENGTH, "k") == 0.003
-    data = json.loads(fresh_cache.read_text(encoding="utf-8"))
-    assert data["entries"]["m|[length]|mm"] == 0.001
-    data["entries"]["m|[length]|mm"] = bad
+    """Issue 21: a cached millimetre of 0.0011 m changed f1 from 16.58 to 19.50 Hz."""
+    entries = {"m|[length]|mm": bad, "base|mm": bad}
+    data = {"format": 1, "version": pint.__version__, "entries": entries}
     fresh_cache.write_text(json.dumps(data), encoding="utf-8")
     _forget(monkeypatch)
     assert units.parse_quantity("3 mm", units.LENGTH, "k") == 0.003
+    assert units.convert_from_si(0.003, "mm") == pytest.approx(3.0, rel=1e-15)
 
 
-def test_a_cached_solve_needs_no_registry(fresh_cache: Path) -> None:
+def test_a_solve_reads_no_unit_file(fresh_cache: Path) -> None:
+    """A planted units.json written as the old cache was makes no difference to a solve."""
     sheet = ROOT / "worksheets" / "slide-rail-us.toml"
-    first, again = cold_solves(sheet, "a.modes.modes[0].frequency_hz", "pint", fresh_cache.parent)
-    assert first[1] and not again[1]
-    assert float(first[0]) == pytest.approx(float(again[0]), rel=1e-12)
+    shown = "a.modes.modes[0].frequency_hz"
+    (clean,) = {row[0] for row in cold_solves(sheet, shown, "pint", fresh_cache.parent)}
+    entries = {"m|[length]|in": 0.03, "m|[length]|ft": 0.4, "kg|[mass]|lb": 0.5}
+    data = {"format": 1, "version": pint.__version__, "entries": entries}
+    fresh_cache.write_text(json.dumps(data), encoding="utf-8")
+    tampered = cold_solves(sheet, shown, "pint", fresh_cache.parent)
+    assert {row[0] for row in tampered} == {clean}
+
+
+def test_the_registry_keeps_no_pint_cache_folder() -> None:
+    """pint unpickles what it finds in its cache folder: the registry must not have one."""
+    assert getattr(units.registry(), "_diskcache", None) is None
 
 
 def test_no_home_folder_means_no_cache(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
@@ -131,3 +136,48 @@ def test_no_home_folder_means_no_cache(tmp_path: Path, monkeypatch: pytest.Monke
     assert units.parse_quantity("2 in", units.LENGTH, "k") == pytest.approx(0.0508, rel=1e-15)
     assert list(tmp_path.iterdir()) == []
     _forget(monkeypatch)
+
+
+@pytest.mark.parametrize(
+    ("text", "reason"),
+    [
+        ("3 dB*m", "logarithmic"),
+        ("3 Np*m", "logarithmic"),
+        ("3 octave*m", "logarithmic"),
+        ("3 decade*m", "logarithmic"),
+        ("1.2 B*m", "read as a byte"),
+    ],
+)
+def test_levels_and_bytes_are_refused_with_the_reason(text: str, reason: str) -> None:
+    """pint reads dB, Np, octave and decade as logarithmic units and B as a byte."""
+    with pytest.raises(InputError, match=reason) as err:
+        units.parse_quantity(text, units.LENGTH, "member.length")
+    assert err.value.key == "member.length"
+
+
+@pytest.mark.parametrize("text", ["0.0025 ton", "2 tons", "1 kton"])
+def test_ton_asks_for_the_unambiguous_unit(text: str) -> None:
+    """pint's ``ton`` is the US short ton, 2000 lb (common practice: 907.18474 kg)."""
+    with pytest.raises(InputError, match="write t or tonne") as err:
+        units.parse_quantity(text, units.MASS, "mass[0].mass")
+    assert "short_ton" in str(err.value.hint)
+    assert units.parse_quantity("0.0025 t", units.MASS, "k") == pytest.approx(2.5)
+    assert units.parse_quantity("0.0025 tonne", units.MASS, "k") == pytest.approx(2.5)
+    assert units.parse_quantity("1 short_ton", units.MASS, "k") == pytest.approx(907.18474)
+
+
+@pytest.mark.parametrize(
+    "text", ["m**9**9**9", "m^99", "(((((m)))))", "m^(1/0)", "1000*m", "m^(40/3)", "__import__"]
+)
+def test_parse_unit_refuses_outside_the_grammar(text: str) -> None:
+    with pytest.raises(InputError) as err:
+        units.parse_unit(text, "f", "a unit")
+    assert err.value.key == "f"
+
+
+def test_parse_unit_accepts_fractional_powers() -> None:
+    reference = pint.UnitRegistry(cache_folder=None)
+    assert units.parse_unit("m^(1/3)", "x", "a unit").dimensionality == (
+        reference.parse_units("m**(1/3)").dimensionality
+    )
+    assert units.parse_unit("kg/m^(-2)", "x", "a unit") == units.registry().parse_units("kg*m**2")
