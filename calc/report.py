@@ -1,28 +1,23 @@
-"""The calculation record a reviewer can file: one document, as Markdown or as one HTML file.
+"""The content of the calculation record a reviewer can file, as plain data.
 
-:func:`build` turns an :class:`~calc.analysis.Analysis` into a :class:`Report`: purpose,
-inputs as entered and in SI, derived section properties and member mass, assumptions, the
-methods with their formulas, the results, the cross-checks, the dimensional groups, the
-excitation margins where given, a figure of the first mode shapes, warnings, the caution
-and the references behind every tabulated value used.  :meth:`Report.markdown` and
-:meth:`Report.html` render it; the HTML is self-contained (inline style, the figure as
-inline SVG, no external reference).
-
-The figure is drawn by matplotlib (the ``report`` extra), imported only when a figure is
-made; without it the report says how to get the figure and is complete otherwise.
+:func:`build` turns an :class:`~beamtone.calc.analysis.Analysis` into a :class:`Report`:
+purpose, inputs as entered and in SI, derived section properties and member mass,
+assumptions, the methods with their formulas, the results, the cross-checks, the dimensional
+groups, the excitation margins where given, the mode shapes to draw, warnings, the caution and
+the references behind every tabulated value used.  The report is sections of blocks
+(paragraphs, lists, tables, formulas, the figure, alerts) and the sampled mode shapes: no
+markup.  ``beamtone.render`` turns it into Markdown, one HTML file and the SVG figure.
 """
 
 from __future__ import annotations
 
 import datetime as _dt
-import html as _html
-import io
 import math
 import re
-from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
+from beamtone.calc.caution import CAUTION
 from beamtone.calc.errors import InputError
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -30,7 +25,24 @@ if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.record import Verification
     from beamtone.calc.sizing import MarginCheck
 
-__all__ = ["FIGURE_MODES", "Report", "Section", "build", "mode_figure", "number"]
+__all__ = [
+    "FIGURE_MODES",
+    "Alert",
+    "Block",
+    "Bullets",
+    "Figure",
+    "Formula",
+    "ModeShapes",
+    "Paragraph",
+    "Report",
+    "Section",
+    "Table",
+    "build",
+    "element_matrix_lines",
+    "inputs_rows",
+    "mode_shapes",
+    "number",
+]
 
 FIGURE_MODES = 3
 """How many mode shapes the figure draws at most."""
@@ -50,10 +62,6 @@ _DEPTH_PRACTICE = (
 _MARGIN_PRACTICE = (
     "Separation margins around excitation frequencies: common practice; the applicable code "
     "or client specification sets the margin"
-)
-_NO_FIGURE = (
-    "figure not drawn: matplotlib is not installed (install the report extra, "
-    "pip install 'beamtone[report]')"
 )
 
 
@@ -82,38 +90,50 @@ def _percent(value: float) -> str:
 
 
 @dataclass(frozen=True)
-class _Paragraph:
+class Paragraph:
+    """A paragraph of plain text."""
+
     text: str
 
 
 @dataclass(frozen=True)
-class _Bullets:
+class Bullets:
+    """A list of plain-text items."""
+
     items: tuple[str, ...]
 
 
 @dataclass(frozen=True)
-class _Table:
+class Table:
+    """A table of text cells; ``literal`` lists the columns of text as typed (shown as code)."""
+
     header: tuple[str, ...]
     rows: tuple[tuple[str, ...], ...]
-    literal: tuple[int, ...] = ()  # columns of text as typed (shown as code)
+    literal: tuple[int, ...] = ()
 
 
 @dataclass(frozen=True)
-class _Formula:
+class Formula:
+    """Lines of formulas, shown as preformatted text."""
+
     lines: tuple[str, ...]
 
 
 @dataclass(frozen=True)
-class _Figure:
+class Figure:
+    """Where the mode-shape figure goes, with its caption."""
+
     caption: str
 
 
 @dataclass(frozen=True)
-class _Alert:
+class Alert:
+    """A statement the reader must not miss (a failed check, a changed input)."""
+
     text: str
 
 
-_Block = _Paragraph | _Bullets | _Table | _Formula | _Figure | _Alert
+Block = Paragraph | Bullets | Table | Formula | Figure | Alert
 
 
 @dataclass(frozen=True)
@@ -128,295 +148,151 @@ class Section:
     """
 
     title: str
-    blocks: tuple[_Block, ...]
+    blocks: tuple[Block, ...]
+
+
+@dataclass(frozen=True)
+class ModeShapes:
+    """The first mode shapes sampled along the member, and what the member carries.
+
+    Attributes
+    ----------
+    length : float [m]
+    x : tuple of float [m]
+        Positions from the left end.
+    modes : tuple of (int, float, tuple of float)
+        (mode number, frequency [Hz], deflection at each x scaled to a largest deflection
+        of +1 [-]).
+    supports : tuple of (float, str)
+        (position [m], kind) of the end and inner supports.
+    masses, springs : tuple of float [m]
+        Positions of the point masses and of the grounded springs.
+    """
+
+    length: float
+    x: tuple[float, ...]
+    modes: tuple[tuple[int, float, tuple[float, ...]], ...]
+    supports: tuple[tuple[float, str], ...]
+    masses: tuple[float, ...]
+    springs: tuple[float, ...]
 
 
 @dataclass(frozen=True)
 class Report:
-    """A calculation record, ready to render.
+    """The content of a calculation record, ready to render.
 
     Attributes
     ----------
     title : str
     sections : tuple of Section
-    figure_svg : str or None
-        The mode-shape figure as a standalone SVG document; None where it was not drawn.
-    figure_note : str
-        Why there is no figure, where there is none.
+    shapes : ModeShapes
+        The data of the mode-shape figure.
     """
 
     title: str
     sections: tuple[Section, ...]
-    figure_svg: str | None
-    figure_note: str = ""
-
-    def markdown(self, figure_file: str | None = None) -> str:
-        """The report as Markdown.
-
-        Parameters
-        ----------
-        figure_file : str, optional
-            Name of the SVG file (beside the Markdown file) the figure was written to; the
-            figure is referenced by it.  Without it the figure is left out with a note.
-
-        Returns
-        -------
-        str
-        """
-        lines = [f"# {_md(self.title)}", ""]
-        for number_, section in enumerate(self.sections, start=1):
-            lines += [f"## {number_}. {_md(section.title)}", ""]
-            for block in section.blocks:
-                lines += self._md_block(block, figure_file)
-                lines.append("")
-        return "\n".join(lines).rstrip() + "\n"
-
-    def _md_block(self, block: _Block, figure_file: str | None) -> list[str]:
-        if isinstance(block, _Paragraph):
-            return [_md(block.text)]
-        if isinstance(block, _Bullets):
-            return [f"- {_md(item)}" for item in block.items]
-        if isinstance(block, _Alert):
-            return [f"> **{_md(block.text)}**"]
-        if isinstance(block, _Formula):
-            return ["```text", *block.lines, "```"]
-        if isinstance(block, _Figure):
-            if self.figure_svg is None or figure_file is None:
-                return [f"*{_md(self.figure_note or 'figure not written')}*"]
-            return [f"![{_md(block.caption)}]({figure_file})", "", f"*{_md(block.caption)}*"]
-        header = "| " + " | ".join(_md(h) for h in block.header) + " |"
-        rule = "| " + " | ".join("---" for _ in block.header) + " |"
-        rows = [
-            "| " + " | ".join(_md_cell(c, i in block.literal) for i, c in enumerate(row)) + " |"
-            for row in block.rows
-        ]
-        return [header, rule, *rows]
-
-    def html(self) -> str:
-        """The report as one self-contained HTML file (inline style and figure).
-
-        Returns
-        -------
-        str
-        """
-        body = [f"<h1>{_esc(self.title)}</h1>"]
-        for number_, section in enumerate(self.sections, start=1):
-            body.append(f'<section id="s{number_}">')
-            body.append(f"<h2>{number_}. {_esc(section.title)}</h2>")
-            body += [self._html_block(b) for b in section.blocks]
-            body.append("</section>")
-        return (
-            "<!DOCTYPE html>\n"
-            '<html lang="en">\n<head>\n<meta charset="utf-8">\n'
-            '<meta name="viewport" content="width=device-width, initial-scale=1">\n'
-            f"<title>{_esc(self.title)}</title>\n<style>\n{_CSS}</style>\n</head>\n<body>\n"
-            + "\n".join(body)
-            + "\n</body>\n</html>\n"
-        )
-
-    def _html_block(self, block: _Block) -> str:
-        if isinstance(block, _Paragraph):
-            return f"<p>{_esc(block.text)}</p>"
-        if isinstance(block, _Bullets):
-            return "<ul>" + "".join(f"<li>{_esc(i)}</li>" for i in block.items) + "</ul>"
-        if isinstance(block, _Alert):
-            return f'<p class="alert">{_esc(block.text)}</p>'
-        if isinstance(block, _Formula):
-            return "<pre>" + _esc("\n".join(block.lines)) + "</pre>"
-        if isinstance(block, _Figure):
-            if self.figure_svg is None:
-                return f'<p class="note">{_esc(self.figure_note)}</p>'
-            return (
-                f"<figure>{_inline_svg(self.figure_svg, block.caption)}"
-                f"<figcaption>{_esc(block.caption)}</figcaption></figure>"
-            )
-        head = "".join(f"<th>{_esc(h)}</th>" for h in block.header)
-        rows = []
-        for row in block.rows:
-            cells = "".join(
-                f"<td><code>{_esc(c)}</code></td>" if i in block.literal else f"<td>{_esc(c)}</td>"
-                for i, c in enumerate(row)
-            )
-            rows.append(f"<tr>{cells}</tr>")
-        return f"<table><thead><tr>{head}</tr></thead><tbody>{''.join(rows)}</tbody></table>"
+    shapes: ModeShapes
 
 
-_CSS = """\
-body { font-family: system-ui, -apple-system, "Segoe UI", Helvetica, Arial, sans-serif;
-       max-width: 62rem; margin: 2rem auto; padding: 0 1rem; color: #1b1b1b; line-height: 1.45; }
-h1 { font-size: 1.6rem; border-bottom: 2px solid #444; padding-bottom: .3rem; }
-h2 { font-size: 1.2rem; margin-top: 2rem; border-bottom: 1px solid #bbb; }
-table { border-collapse: collapse; margin: .6rem 0; font-size: .9rem; }
-th, td { border: 1px solid #bbb; padding: .2rem .5rem; text-align: left; vertical-align: top; }
-th { background: #eee; }
-code, pre { font-family: ui-monospace, Menlo, Consolas, monospace; font-size: .88rem; }
-pre { background: #f4f4f4; padding: .6rem; overflow-x: auto; }
-.alert { border: 2px solid #a33; background: #fbeeee; padding: .5rem .8rem; font-weight: bold; }
-.note { font-style: italic; }
-figure { margin: 1rem 0; }
-figure svg { max-width: 100%; height: auto; }
-figcaption { font-style: italic; font-size: .9rem; }
-@media print { body { margin: 0; max-width: none; } section { break-inside: avoid-page; } }
-"""
-
-# Escape only what would change the rendering: backslashes, code and emphasis markers, table
-# pipes, the start of an HTML tag, a heading mark at the start, an underscore at a word edge.
-_MD_SPECIAL = re.compile(r"([\\`*|])|<(?=[A-Za-z/!?])|(?<!\w)_|_(?!\w)|^#")
+# --- the mode shapes -----------------------------------------------------------------------------
 
 
-def _md(text: str) -> str:
-    return _MD_SPECIAL.sub(lambda m: "\\" + m.group(0), text).replace("\n", " ")
-
-
-def _md_cell(text: str, literal: bool) -> str:
-    if not literal:
-        return _md(text)
-    text = text.replace("\n", " ").replace("|", "\\|")
-    fence = "`"
-    while fence in text:
-        fence += "`"
-    pad = " " if text.startswith("`") or text.endswith("`") else ""
-    return f"{fence}{pad}{text}{pad}{fence}"
-
-
-def _esc(text: str) -> str:
-    return _html.escape(text, quote=False)
-
-
-def _inline_svg(svg: str, label: str) -> str:
-    """The SVG document as an element inside HTML: no prolog, comments, metadata or namespaces
-    (the HTML parser puts ``<svg>`` in its namespace)."""
-    start = svg.find("<svg")
-    text = svg[start:] if start >= 0 else svg
-    text = re.sub(r"<!--.*?-->", "", text, flags=re.S)
-    text = re.sub(r"<metadata>.*?</metadata>", "", text, flags=re.S)
-    text = re.sub(r'\s+xmlns(:\w+)?="[^"]*"', "", text)
-    label_attr = _html.escape(label, quote=True)
-    return text.replace("<svg", f'<svg role="img" aria-label="{label_attr}"', 1).strip()
-
-
-# --- the figure ----------------------------------------------------------------------------------
-
-
-def _shape(mode: Any, xs: Sequence[float]) -> list[float]:
-    from beamtone.calc.fe import interpolate
-
-    peak = float(mode.w_modal[int(abs(mode.w_modal).argmax())])
-    theta = mode.theta_modal / peak
-    w = mode.w_modal / peak
-    return [interpolate(mode.x, w, theta, x) for x in xs]
-
-
-def mode_figure(analysis: Analysis, count: int = FIGURE_MODES) -> str | None:
-    """The first mode shapes as an SVG document, or None where matplotlib is not installed.
-
-    Each shape is scaled to unit largest deflection (largest deflection positive) and drawn
-    along the member with its supports, point masses and springs marked.
+def mode_shapes(analysis: Analysis, count: int = FIGURE_MODES, points: int = 401) -> ModeShapes:
+    """The first mode shapes sampled along the member, each scaled to unit largest deflection.
 
     Parameters
     ----------
     analysis : Analysis
     count : int
-        Modes to draw (at most this many).
+        Modes to sample (at most this many).
+    points : int
+        Sampling positions, evenly spaced from end to end.
 
     Returns
     -------
-    str or None
+    ModeShapes
     """
-    try:
-        import matplotlib
-        from matplotlib.figure import Figure
-    except ImportError:
-        return None
+    from beamtone.calc.fe import interpolate
+
     member = analysis.sheet.member
     L = member.length
-    modes = analysis.modes.modes[:count]
-    xs = [L * i / 400 for i in range(401)]
-    with matplotlib.rc_context({"svg.fonttype": "none", "svg.hashsalt": "beamtone-modes"}):
-        fig = Figure(figsize=(7.5, 3.8), layout="constrained")
-        ax = fig.add_subplot()
-        ax.axhline(0.0, color="#888888", linewidth=0.8)
-        styles = ("-", "--", "-.")
-        for mode, style in zip(modes, styles * 4, strict=False):
-            ax.plot(
-                xs,
-                _shape(mode, xs),
-                style,
-                linewidth=1.8,
-                label=f"mode {mode.number}: {number(mode.frequency_hz)} Hz",
-            )
-        _mark_member(ax, member)
-        ax.set_xlim(-0.04 * L, 1.04 * L)
-        ax.set_ylim(-1.45, 1.3)
-        ax.set_xlabel("position from the left end, x [m]")
-        ax.set_ylabel("deflection, unit maximum [-]")
-        ax.grid(True, color="#dddddd", linewidth=0.6)
-        ax.legend(
-            loc="upper center", bbox_to_anchor=(0.5, -0.2), ncol=4, frameon=False, fontsize="small"
-        )
-        buffer = io.StringIO()
-        fig.savefig(buffer, format="svg", metadata={"Date": None})
-    return buffer.getvalue()
-
-
-def _mark_member(ax: Any, member: Any) -> None:
-    L = member.length
-    seen: set[str] = set()
-
-    def label(name: str) -> str | None:
-        if name in seen:
-            return None
-        seen.add(name)
-        return name
-
+    xs = tuple(L * i / (points - 1) for i in range(points))
+    modes = []
+    for mode in analysis.modes.modes[:count]:
+        peak = float(mode.w_modal[int(abs(mode.w_modal).argmax())])
+        w, theta = mode.w_modal / peak, mode.theta_modal / peak
+        shape = tuple(interpolate(mode.x, w, theta, x) for x in xs)
+        modes.append((mode.number, float(mode.frequency_hz), shape))
     supports = [(0.0, member.left), (L, member.right)]
     supports += [(s.at, s.kind) for s in member.inner_supports]
-    for x, kind in supports:
-        if kind == "clamped":
-            ax.plot(
-                [x, x],
-                [-0.35, 0.35],
-                color="black",
-                linewidth=4,
-                solid_capstyle="butt",
-                label=label("clamped"),
-            )
-        elif kind == "pinned":
-            ax.plot(
-                [x],
-                [-0.12],
-                marker="^",
-                markersize=11,
-                color="black",
-                linestyle="none",
-                label=label("pinned"),
-            )
-        elif kind == "guided":
-            ax.plot(
-                [x],
-                [0.0],
-                marker="s",
-                markersize=10,
-                markerfacecolor="white",
-                markeredgecolor="black",
-                linestyle="none",
-                label=label("guided"),
-            )
-    for p in member.masses:
-        ax.plot(
-            [p.at],
-            [0.0],
-            marker="o",
-            markersize=8,
-            color="#b03030",
-            linestyle="none",
-            label=label("point mass"),
-        )
-    for s in member.springs:
-        width = 0.012 * L
-        ys = [-0.05 - 0.05 * i for i in range(9)]
-        zig = [s.at + (width if i % 2 else -width) * (0 < i < 8) for i in range(9)]
-        ax.plot(zig, ys, color="#2a6f2a", linewidth=1.2, label=label("grounded spring"))
+    return ModeShapes(
+        length=L,
+        x=xs,
+        modes=tuple(modes),
+        supports=tuple(supports),
+        masses=tuple(p.at for p in member.masses),
+        springs=tuple(s.at for s in member.springs),
+    )
+
+
+# --- the element matrices, as the finite-element code builds them --------------------------------
+
+# (name, factor as shown, the factor for unit EI, m and P as a function of h, which matrix)
+_ELEMENT_FACTORS = (
+    ("K_e", "EI/h^3", lambda h: 1.0 / h**3, 0),
+    ("M_e", "m h/420", lambda h: h / 420.0, 2),
+    ("G_e", "P/(30h)", lambda h: 1.0 / (30.0 * h), 1),
+)
+
+
+def _element_matrices(h: float) -> tuple[Any, Any, Any]:
+    """Stiffness, geometric stiffness (unit tension) and mass of one element of length ``h``
+    with unit EI and unit mass per length, in unscaled DOFs (w, theta, w, theta)."""
+    import numpy as np
+
+    from beamtone.calc import fe
+
+    k, g, m = fe._element_matrices(np.array([h]), np.array([1.0]), np.array([1.0]), 1.0, True)
+    assert g is not None
+    return k[0], g[0], m[0]
+
+
+def _term(coefficient: float, power: int) -> str:
+    whole = round(coefficient)
+    c = str(whole) if abs(coefficient - whole) < 1e-9 * max(1.0, abs(whole)) else f"{coefficient:g}"
+    if power == 0:
+        return c
+    c = {"1": "", "-1": "-"}.get(c, c)
+    return f"{c}h" + (f"^{power}" if power > 1 else "")
+
+
+def element_matrix_lines() -> tuple[str, ...]:
+    """The element matrices of the finite-element code, written out as the report shows them.
+
+    Each matrix is evaluated for elements of two lengths; the coefficient of every entry is
+    its value for a unit length divided by the factor shown, and the power of h in it is read
+    from the ratio of the two.
+
+    Returns
+    -------
+    tuple of str
+        ``K_e = EI/h^3 [[12, 6h, ...], ...]``, then ``M_e`` and ``G_e``, two lines each.
+    """
+    one, two = _element_matrices(1.0), _element_matrices(2.0)
+    lines = []
+    for name, shown, factor, which in _ELEMENT_FACTORS:
+        a, b = one[which] / factor(1.0), two[which] / factor(2.0)
+        rows = []
+        for i in range(4):
+            cells = []
+            for j in range(4):
+                power = 0 if a[i, j] == 0 else round(math.log2(abs(b[i, j] / a[i, j])))
+                cells.append(_term(float(a[i, j]), power))
+            rows.append("[" + ", ".join(cells) + "]")
+        head = f"{name} = {shown} "
+        lines.append(f"{head}[{rows[0]}, {rows[1]},")
+        lines.append(" " * (len(head) + 1) + f"{rows[2]}, {rows[3]}]")
+    return tuple(lines)
 
 
 # --- the content ---------------------------------------------------------------------------------
@@ -425,41 +301,39 @@ def _mark_member(ax: Any, member: Any) -> None:
 def build(
     analysis: Analysis,
     *,
-    caution: str,
+    caution: str = CAUTION,
     source: str | None = None,
     margins: MarginCheck | None = None,
     verification: Verification | None = None,
-    figure: bool = True,
     now: _dt.datetime | None = None,
 ) -> Report:
-    """The calculation record of an analysis.
+    """The content of the calculation record of an analysis.
 
     Parameters
     ----------
     analysis : Analysis
     caution : str
-        The caution to show (the command line's and the app's own wording).
+        The caution to show (default: :data:`beamtone.calc.caution.CAUTION`).
     source : str, optional
         The worksheet's name as the reader should see it (default: where it was loaded from).
     margins : MarginCheck, optional
-        An excitation check of the modes (see :func:`calc.sizing.margins`).
+        An excitation check of the modes (see :func:`beamtone.calc.sizing.margins`).
     verification : Verification, optional
         The outcome of verifying the worksheet's stored record, where it has one.
-    figure : bool
-        Whether to draw the mode-shape figure.
     now : datetime, optional
         The date to state (default: now, UTC).
 
     Returns
     -------
     Report
+        Sections of plain blocks and the mode shapes; ``beamtone.render`` writes it out.
     """
     from beamtone.calc.record import inputs_digest, tool_version
 
     sheet = analysis.sheet
     title = f"Calculation record: {sheet.title}" if sheet.title else "Calculation record"
     when = (now or _dt.datetime.now(_dt.UTC)).astimezone(_dt.UTC).strftime("%Y-%m-%d %H:%M UTC")
-    about = _Table(
+    about = Table(
         ("item", "value"),
         (
             ("worksheet", source or sheet.source),
@@ -470,10 +344,8 @@ def build(
         ),
         literal=(),
     )
-    svg = mode_figure(analysis) if figure else None
-    note = "" if svg is not None else (_NO_FIGURE if figure else "figure not requested")
     sections = [
-        Section("Purpose", (*_purpose(analysis), about, _Alert(caution))),
+        Section("Purpose", (*_purpose(analysis), about, Alert(caution))),
         Section("Inputs as entered and in SI", _inputs(analysis)),
         Section("Member: derived properties", _derived(analysis)),
         Section("Assumptions", _assumptions(analysis)),
@@ -482,12 +354,12 @@ def build(
         Section("Cross-checks", _checks(analysis, verification)),
         Section("Dimensional groups", _groups(analysis)),
         Section("Excitation margins", _margins(margins)),
-        Section("Mode shapes", (_Figure(_caption(analysis)),)),
+        Section("Mode shapes", (Figure(_caption(analysis)),)),
         Section("Warnings", _warnings(analysis)),
-        Section("Caution", (_Paragraph(caution),)),
+        Section("Caution", (Paragraph(caution),)),
         Section("References", _references(analysis, margins)),
     ]
-    return Report(title, tuple(sections), svg, note)
+    return Report(title, tuple(sections), mode_shapes(analysis))
 
 
 def _record_state(verification: Verification | None) -> str:
@@ -497,10 +369,10 @@ def _record_state(verification: Verification | None) -> str:
     return f"{state}: {verification.message}"
 
 
-def _purpose(analysis: Analysis) -> tuple[_Block, ...]:
+def _purpose(analysis: Analysis) -> tuple[Block, ...]:
     sheet = analysis.sheet
-    blocks: list[_Block] = [
-        _Paragraph(
+    blocks: list[Block] = [
+        Paragraph(
             f"Natural frequencies of the member \u201c{sheet.title or sheet.source}\u201d, with "
             "their mode shapes, to keep them clear of what excites it. The record states what "
             "was computed, from which inputs, by which methods and with which version, so that "
@@ -508,10 +380,10 @@ def _purpose(analysis: Analysis) -> tuple[_Block, ...]:
         )
     ]
     if sheet.notes.strip():
-        blocks.append(_Paragraph("Notes from the worksheet:"))
-        blocks += [_Paragraph(p.strip()) for p in re.split(r"\n\s*\n", sheet.notes) if p.strip()]
+        blocks.append(Paragraph("Notes from the worksheet:"))
+        blocks += [Paragraph(p.strip()) for p in re.split(r"\n\s*\n", sheet.notes) if p.strip()]
     else:
-        blocks.append(_Paragraph("The worksheet has no notes."))
+        blocks.append(Paragraph("The worksheet has no notes."))
     return tuple(blocks)
 
 
@@ -566,23 +438,31 @@ def _si(analysis: Analysis, key: str, value: Any) -> str:
     return f"{number(var.value)} {var.dimension.si_unit}"
 
 
-def _inputs(analysis: Analysis) -> tuple[_Block, ...]:
-    rows = []
-    for key, value in _leaves(analysis.sheet.data):
-        rows.append((key, _entered(value), _si(analysis, key, value)))
+def inputs_rows(analysis: Analysis) -> tuple[tuple[str, str, str], ...]:
+    """The rows of the inputs table: (key path, value as entered, value in SI).
+
+    Every entry of the worksheet except its stored ``[record]``.
+    """
+    return tuple(
+        (key, _entered(value), _si(analysis, key, value))
+        for key, value in _leaves(analysis.sheet.data)
+    )
+
+
+def _inputs(analysis: Analysis) -> tuple[Block, ...]:
     return (
-        _Paragraph(
+        Paragraph(
             "Every entry of the worksheet (its stored record aside), as written and as the "
             "calculation used it in SI units."
         ),
-        _Table(("key", "as entered", "in SI"), tuple(rows), literal=(0, 1, 2)),
+        Table(("key", "as entered", "in SI"), inputs_rows(analysis), literal=(0, 1, 2)),
     )
 
 
 # derived
 
 
-def _derived(analysis: Analysis) -> tuple[_Block, ...]:
+def _derived(analysis: Analysis) -> tuple[Block, ...]:
     member = analysis.sheet.member
     edges = member.boundaries
     sections = []
@@ -638,13 +518,13 @@ def _derived(analysis: Analysis) -> tuple[_Block, ...]:
         kind = "tension" if member.axial_force > 0 else "compression"
         extra.append(("axial force", f"{number(abs(member.axial_force))} N {kind}"))
     return (
-        _Paragraph("Sections (bending about the axis across the depth; SI units):"),
-        _Table(
+        Paragraph("Sections (bending about the axis across the depth; SI units):"),
+        Table(
             ("segment", "x [m]", "shape", "A [m^2]", "I [m^4]", "depth [m]", "r = sqrt(I/A) [m]"),
             tuple(sections),
         ),
-        _Paragraph("Stiffness and mass along the member:"),
-        _Table(
+        Paragraph("Stiffness and mass along the member:"),
+        Table(
             (
                 "segment",
                 "length [m]",
@@ -658,11 +538,11 @@ def _derived(analysis: Analysis) -> tuple[_Block, ...]:
             ),
             tuple(lines),
         ),
-        _Table(("quantity", "value"), (*totals, *extra)),
+        Table(("quantity", "value"), (*totals, *extra)),
     )
 
 
-def _assumptions(analysis: Analysis) -> tuple[_Block, ...]:
+def _assumptions(analysis: Analysis) -> tuple[Block, ...]:
     member = analysis.sheet.member
     items = [
         "Euler-Bernoulli bending in one plane: plane sections stay plane and normal to the "
@@ -680,36 +560,31 @@ def _assumptions(analysis: Analysis) -> tuple[_Block, ...]:
             "vibration (geometric stiffness)."
         )
     items.append(_DEPTH_PRACTICE + "; where a mode breaks this, the warnings say so.")
-    return (_Bullets(tuple(items)),)
+    return (Bullets(tuple(items)),)
 
 
 # methods
 
 
-def _methods(analysis: Analysis) -> tuple[_Block, ...]:
+def _methods(analysis: Analysis) -> tuple[Block, ...]:
     fe, est, low = analysis.modes, analysis.estimate, analysis.lower_bound
-    blocks: list[_Block] = [
-        _Paragraph(
+    blocks: list[Block] = [
+        Paragraph(
             f"Finite elements. Hermite cubic beam elements (deflection w and slope \u03b8 at "
             f"each node), consistent mass, supports enforced exactly by eliminating the degrees "
             f"of freedom they hold. Reported mesh: {fe.elements} elements, "
             f"{fe.degrees_of_freedom} free degrees of freedom; eigen solver: {fe.solver}."
         ),
-        _Formula(
+        Formula(
             (
                 "element of length h, bending stiffness EI, mass per length m, axial force P:",
-                "K_e = EI/h^3 [[12, 6h, -12, 6h], [6h, 4h^2, -6h, 2h^2],",
-                "              [-12, -6h, 12, -6h], [6h, 2h^2, -6h, 4h^2]]",
-                "M_e = m h/420 [[156, 22h, 54, -13h], [22h, 4h^2, 13h, -3h^2],",
-                "               [54, 13h, 156, -22h], [-13h, -3h^2, -22h, 4h^2]]",
-                "G_e = P/(30h) [[36, 3h, -36, 3h], [3h, 4h^2, -3h, -h^2],",
-                "               [-36, -3h, 36, -3h], [3h, -h^2, -3h, 4h^2]]",
+                *element_matrix_lines(),
                 "(K + G) \u03c6 = \u03c9\u00b2 M \u03c6,   f = \u03c9/(2\u03c0)",
                 "effective mass of mode i: (\u03c6_i\u1d40 M r)\u00b2,",
                 "  with \u03c6_i\u1d40 M \u03c6_i = 1 and r the unit translation",
             )
         ),
-        _Paragraph(
+        Paragraph(
             "Accuracy. The mesh is chosen so that every reported frequency meets a relative "
             "accuracy of 1e-6. Each mode is solved on two meshes, one twice as fine; the "
             "estimated error is twice the Richardson estimate from the h^4 convergence of the "
@@ -717,11 +592,11 @@ def _methods(analysis: Analysis) -> tuple[_Block, ...]:
             "of this kind converge from above. Eigenvalues are taken from the element strain "
             "energies of the eigenvectors."
         ),
-        _Paragraph(
+        Paragraph(
             "Rayleigh's quotient. For an assumed shape w(x) that meets the geometric conditions "
             "of every support, the quotient bounds the fundamental from above:"
         ),
-        _Formula(
+        Formula(
             (
                 "\u03c9\u2081\u00b2 \u2264 R[w] = (\u222bEI w''\u00b2 dx + P\u222bw'\u00b2 dx + "
                 "\u03a3k w(a)\u00b2 + \u03a3k_r w'(a)\u00b2)",
@@ -739,12 +614,12 @@ def _methods(analysis: Analysis) -> tuple[_Block, ...]:
         text += f" Integrated symbolically: {est.formula}."
     else:
         text += " Integrated numerically (Gauss quadrature on every segment)."
-    blocks.append(_Paragraph(text))
+    blocks.append(Paragraph(text))
     if est.notes:
-        blocks.append(_Bullets(tuple(est.notes)))
+        blocks.append(Bullets(tuple(est.notes)))
     if analysis.ritz is not None:
         blocks.append(
-            _Paragraph(
+            Paragraph(
                 "Rayleigh-Ritz. With several trial functions the quotient's stationary values "
                 "bound as many of the lowest frequencies from above: "
                 "det(K_r - \u03c9\u00b2 M_r) = 0 with K_r, M_r the energy matrices of the "
@@ -752,40 +627,40 @@ def _methods(analysis: Analysis) -> tuple[_Block, ...]:
             )
         )
     blocks += [
-        _Paragraph(
+        Paragraph(
             "Dunkerley's bound. The sum of the inverse squares of all natural frequencies "
             "equals the trace of flexibility times mass, which bounds the fundamental from below:"
         ),
-        _Formula(
+        Formula(
             (
                 "1/\u03c9\u2081\u00b2 \u2264 \u03a3 1/\u03c9_i\u00b2 = \u222bm(x) a(x,x) dx + "
                 "\u03a3M_j a(x_j,x_j) + \u03a3J_j b(x_j,x_j)",
                 "a(x,x): deflection at x under a unit force at x; b: rotation under a unit moment",
             )
         ),
-        _Paragraph(
+        Paragraph(
             "The flexibility is that of the supported member, exact at the element nodes and "
             "integrated exactly"
             + (" (no axial force)." if low.exact else "; with the axial force it is approximate.")
         ),
-        _Paragraph(
+        Paragraph(
             "Bracket. The finite-element fundamental must lie between Dunkerley's lower and "
             "Rayleigh's upper bound (within its estimated error); if it does not, the model or "
             "its input is suspect."
         ),
-        _Paragraph(
+        Paragraph(
             "Handbook frequencies (where the member is a tabulated case). The exact roots "
             "\u03bb_i of the characteristic equation of the case, solved to 1e-12, give"
         ),
-        _Formula(
+        Formula(
             ("f_i = \u03bb_i\u00b2/(2\u03c0 l\u00b2) \u221a(EI/m),   l the member or span length",)
         ),
-        _Paragraph(
+        Paragraph(
             "Equivalent single-degree-of-freedom model at a point a: with the fundamental "
             "normalized to unit modal mass, m_e = 1/\u03c6(a)\u00b2 and k_e = \u03c9\u2081\u00b2 "
             "m_e."
         ),
-        _Paragraph(
+        Paragraph(
             "Dimensional groups: with L, and EI and m of the first segment, as repeating "
             "variables, every result is f = \u03a9/(2\u03c0L\u00b2)\u221a(EI/m) and the groups "
             "below decide \u03a9."
@@ -797,7 +672,7 @@ def _methods(analysis: Analysis) -> tuple[_Block, ...]:
 # results
 
 
-def _results(analysis: Analysis) -> tuple[_Block, ...]:
+def _results(analysis: Analysis) -> tuple[Block, ...]:
     fe = analysis.modes
     floor = 1e-12 * fe.total_mass  # below it an effective mass is round-off of zero
     rows = tuple(
@@ -814,8 +689,8 @@ def _results(analysis: Analysis) -> tuple[_Block, ...]:
     )
     rigid = fe.rigid_body_modes
     est, low, eq = analysis.estimate, analysis.lower_bound, analysis.equivalent
-    blocks: list[_Block] = [
-        _Table(
+    blocks: list[Block] = [
+        Table(
             (
                 "mode",
                 "f [Hz]",
@@ -827,18 +702,18 @@ def _results(analysis: Analysis) -> tuple[_Block, ...]:
             ),
             rows,
         ),
-        _Paragraph(
+        Paragraph(
             f"Rigid-body modes: {rigid}"
             + (" (counted, not listed; mode 1 is the first flexible mode)." if rigid else ".")
             + " Effective masses are in the plane of vibration, as fractions of the total mass "
             f"{number(fe.total_mass)} kg."
         ),
-        _Paragraph(
+        Paragraph(
             f"Soundness of the eigen solution: mass orthogonality {fe.mass_orthogonality:.1e}, "
             f"stiffness orthogonality {fe.stiffness_orthogonality:.1e}; stiffness matrix "
             f"{fe.stiffness_definiteness}, mass matrix {fe.mass_definiteness}."
         ),
-        _Table(
+        Table(
             ("estimate", "value"),
             (
                 ("Rayleigh (upper bound on f1)", f"{number(est.frequency_hz)} Hz"),
@@ -857,9 +732,9 @@ def _results(analysis: Analysis) -> tuple[_Block, ...]:
     if analysis.ritz is not None:
         ritz = analysis.ritz
         count = len(ritz.frequencies_hz)
-        blocks.append(_Paragraph("Rayleigh-Ritz upper bounds [Hz] with 1, 2, ... functions:"))
+        blocks.append(Paragraph("Rayleigh-Ritz upper bounds [Hz] with 1, 2, ... functions:"))
         blocks.append(
-            _Table(
+            Table(
                 ("functions", *(f"f{i + 1}" for i in range(count))),
                 tuple(
                     (str(n), *(number(f) for f in row), *("-" for _ in range(count - len(row))))
@@ -870,12 +745,12 @@ def _results(analysis: Analysis) -> tuple[_Block, ...]:
     return tuple(blocks)
 
 
-def _checks(analysis: Analysis, verification: Verification | None) -> tuple[_Block, ...]:
-    blocks: list[_Block] = []
+def _checks(analysis: Analysis, verification: Verification | None) -> tuple[Block, ...]:
+    blocks: list[Block] = []
     check = analysis.handbook
     if check is None:
         blocks.append(
-            _Paragraph(
+            Paragraph(
                 "Handbook: the member is not one of the tabulated cases (uniform with classical "
                 "ends and nothing attached, a cantilever with a tip mass, equal pinned spans), so "
                 "the finite-element result stands on its own, with the bracket below."
@@ -896,13 +771,13 @@ def _checks(analysis: Analysis, verification: Verification | None) -> tuple[_Blo
                     f"{100 * diff:+.2e} %",
                 )
             )
-        blocks.append(_Paragraph(f"Handbook case: {check.case} (source: {check.source})."))
+        blocks.append(Paragraph(f"Handbook case: {check.case} (source: {check.source})."))
         blocks.append(
-            _Table(("mode", "FE [Hz]", "handbook [Hz]", "\u03bb_i", "FE vs handbook"), tuple(rows))
+            Table(("mode", "FE [Hz]", "handbook [Hz]", "\u03bb_i", "FE vs handbook"), tuple(rows))
         )
     br = analysis.bracket
     blocks.append(
-        _Table(
+        Table(
             ("Dunkerley [Hz]", "FE f1 [Hz]", "Rayleigh [Hz]", "width", "holds"),
             (
                 (
@@ -915,18 +790,18 @@ def _checks(analysis: Analysis, verification: Verification | None) -> tuple[_Blo
             ),
         )
     )
-    blocks.append(_Alert(br.message) if not br.inside else _Paragraph(f"Bracket: {br.message}."))
+    blocks.append(Alert(br.message) if not br.inside else Paragraph(f"Bracket: {br.message}."))
     if verification is not None:
-        blocks.append(_Paragraph(f"Stored record: {verification.message}."))
+        blocks.append(Paragraph(f"Stored record: {verification.message}."))
         if not verification.inputs_unchanged:
             blocks.append(
-                _Alert(
+                Alert(
                     f"The inputs changed since the record was written on "
                     f"{verification.record.written}: the stored results describe other inputs."
                 )
             )
         blocks.append(
-            _Table(
+            Table(
                 ("quantity", "stored", "now", "rel. difference", "tolerance", "agrees"),
                 tuple(_comparison_row(c) for c in verification.comparisons),
             )
@@ -949,23 +824,23 @@ def _comparison_row(c: Any) -> tuple[str, ...]:
     return (quantity, show(c.stored), show(c.now), rel, c.rule, "yes" if c.ok else "NO")
 
 
-def _groups(analysis: Analysis) -> tuple[_Block, ...]:
+def _groups(analysis: Analysis) -> tuple[Block, ...]:
     g = analysis.groups
     rows = tuple((x.symbol, x.expression, number(x.value), x.meaning) for x in g.groups)
     return (
-        _Paragraph(
+        Paragraph(
             f"Repeating variables: L = {number(g.length)} m, EI = {number(g.bending_stiffness)} "
             f"N m^2, m = {number(g.mass_per_length)} kg/m (first segment). "
             "\u03a9_i = \u03c9_i L\u00b2 \u221a(m/EI)."
         ),
-        _Table(("group", "definition", "value", "meaning"), rows, literal=(1,)),
+        Table(("group", "definition", "value", "meaning"), rows, literal=(1,)),
     )
 
 
-def _margins(margins: MarginCheck | None) -> tuple[_Block, ...]:
+def _margins(margins: MarginCheck | None) -> tuple[Block, ...]:
     if margins is None:
         return (
-            _Paragraph(
+            Paragraph(
                 'No excitation was given (beamtone report FILE --excitation "1480 rpm" adds '
                 "this check)."
             ),
@@ -982,16 +857,16 @@ def _margins(margins: MarginCheck | None) -> tuple[_Block, ...]:
             for hit, ln in zip(row, margins.lines, strict=True)
         ]
         rows.append((str(i), number(f), *cells))
-    blocks: list[_Block] = [
-        _Paragraph(
+    blocks: list[Block] = [
+        Paragraph(
             "Each mode against each excitation line: inside the band means closer to the line "
             "than the margin; the percentage is the mode's separation from the line."
         ),
-        _Table(tuple(header), tuple(rows)),
-        _Paragraph(_MARGIN_PRACTICE + "."),
+        Table(tuple(header), tuple(rows)),
+        Paragraph(_MARGIN_PRACTICE + "."),
     ]
     if not margins.clear:
-        blocks.append(_Alert("At least one mode lies inside an excitation band."))
+        blocks.append(Alert("At least one mode lies inside an excitation band."))
     return tuple(blocks)
 
 
@@ -1004,17 +879,17 @@ def _caption(analysis: Analysis) -> str:
     )
 
 
-def _warnings(analysis: Analysis) -> tuple[_Block, ...]:
+def _warnings(analysis: Analysis) -> tuple[Block, ...]:
     if not analysis.warnings:
-        return (_Paragraph("None."),)
-    blocks: list[_Block] = []
+        return (Paragraph("None."),)
+    blocks: list[Block] = []
     if not analysis.bracket.inside:
-        blocks.append(_Alert(analysis.bracket.message))
-    blocks.append(_Bullets(tuple(analysis.warnings)))
+        blocks.append(Alert(analysis.bracket.message))
+    blocks.append(Bullets(tuple(analysis.warnings)))
     return tuple(blocks)
 
 
-def _references(analysis: Analysis, margins: MarginCheck | None) -> tuple[_Block, ...]:
+def _references(analysis: Analysis, margins: MarginCheck | None) -> tuple[Block, ...]:
     items: list[str] = [_FE_REFERENCE, _ENERGY_REFERENCE]
     if analysis.handbook is not None:
         items.append(
@@ -1030,4 +905,4 @@ def _references(analysis: Analysis, margins: MarginCheck | None) -> tuple[_Block
     items.append(_DEPTH_PRACTICE)
     if margins is not None:
         items.append(_MARGIN_PRACTICE)
-    return (_Bullets(tuple(items)),)
+    return (Bullets(tuple(items)),)

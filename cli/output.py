@@ -8,16 +8,12 @@ import sys
 import textwrap
 from typing import TYPE_CHECKING, Any
 
+from beamtone.calc.caution import CAUTION
+
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.analysis import Analysis
 
 __all__ = ["CAUTION", "solve_text", "solve_json", "write_json"]
-
-CAUTION = (
-    "Caution: an early-stage estimate for linear, undamped bending. Confirm with detailed "
-    "analysis and test, and follow the applicable codes and a licensed engineer wherever "
-    "failure could hurt someone."
-)
 
 
 def _fmt(value: float, digits: int = 6) -> str:

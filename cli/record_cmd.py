@@ -215,9 +215,9 @@ def _excitation(args: argparse.Namespace) -> tuple[float, tuple[int, ...], float
 def report(args: argparse.Namespace) -> int:
     """Run ``beamtone report``: write the calculation record (Markdown or one HTML file)."""
     from beamtone.calc import record
-    from beamtone.calc import report as document
     from beamtone.calc.analysis import analyse
     from beamtone.calc.worksheet import load
+    from beamtone.render import report as document
 
     worksheet = Path(args.file)
     sheet = load(worksheet)

@@ -9,9 +9,12 @@ import pkgutil
 import pytest
 
 import beamtone.calc
+import beamtone.render
 
 MODULES = sorted(
-    f"beamtone.calc.{info.name}" for info in pkgutil.iter_modules(beamtone.calc.__path__)
+    f"{package.__name__}.{info.name}"
+    for package in (beamtone.calc, beamtone.render)
+    for info in pkgutil.iter_modules(package.__path__)
 )
 
 

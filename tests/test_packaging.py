@@ -27,7 +27,7 @@ def test_the_wheel_installs_one_top_level_package(tmp_path: Path) -> None:
     assert top == {"beamtone"}
     # Every source file of the mapped folders ships (a new subpackage must be listed in
     # pyproject.toml's packages, or it would be missing from the wheel).
-    folders = {"beamtone": "", "calc": "calc/", "cli": "cli/", "tui": "tui/"}
+    folders = {"beamtone": "", "calc": "calc/", "cli": "cli/", "render": "render/", "tui": "tui/"}
     for folder, inside in folders.items():
         for source in (ROOT / folder).rglob("*"):
             if source.suffix in (".py", ".tcss", ".toml", ".json") and "__pycache__" not in str(

@@ -9,7 +9,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, OptionList, Static
 from textual.widgets.option_list import Option
 
-from beamtone.cli.output import CAUTION
+from beamtone.calc.caution import CAUTION
 from beamtone.tui.document import TEMPLATES, Template
 
 __all__ = ["UnsavedDialog", "RecoverDialog", "PathDialog", "TemplateDialog", "HelpDialog"]
