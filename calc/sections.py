@@ -38,7 +38,8 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 
 from beamtone.calc.errors import InputError
-from beamtone.calc.units import AREA, LENGTH, SECOND_MOMENT, Dimension
+from beamtone.calc.schema import SECTION_SHAPES, section_dimension
+from beamtone.calc.units import Dimension
 
 __all__ = [
     "Section",
@@ -302,18 +303,28 @@ class ShapeSpec:
     build: Callable[[dict[str, float], str], Section]
 
 
-SHAPES: dict[str, ShapeSpec] = {
-    "rectangle": ShapeSpec((("width", LENGTH), ("depth", LENGTH)), (), _rectangle),
-    "round": ShapeSpec((("diameter", LENGTH),), (), _round),
-    "round-tube": ShapeSpec((("outside_diameter", LENGTH), ("wall", LENGTH)), (), _round_tube),
-    "box": ShapeSpec((("width", LENGTH), ("depth", LENGTH), ("wall", LENGTH)), (), _box),
-    "i-beam": ShapeSpec(
-        (("width", LENGTH), ("depth", LENGTH), ("flange", LENGTH), ("web", LENGTH)), (), _i_beam
-    ),
-    "properties": ShapeSpec(
-        (("area", AREA), ("second_moment", SECOND_MOMENT)), (("depth", LENGTH),), _properties
-    ),
+_BUILDERS: dict[str, Callable[[dict[str, float], str], Section]] = {
+    "rectangle": _rectangle,
+    "round": _round,
+    "round-tube": _round_tube,
+    "box": _box,
+    "i-beam": _i_beam,
+    "properties": _properties,
 }
+
+
+def _spec(shape: str) -> ShapeSpec:
+    required, optional = SECTION_SHAPES[shape]
+    return ShapeSpec(
+        tuple((n, section_dimension(n)) for n in required),
+        tuple((n, section_dimension(n)) for n in optional),
+        _BUILDERS[shape],
+    )
+
+
+# The dimension keys of each shape are the schema's (calc.schema.SECTION_SHAPES); a shape
+# there without a builder here fails at import.
+SHAPES: dict[str, ShapeSpec] = {shape: _spec(shape) for shape in SECTION_SHAPES}
 
 
 def build_section(shape: str, dimensions: dict[str, float], key: str = "section") -> Section:

@@ -1,43 +1,43 @@
 """Sizing: the value of one worksheet quantity that meets a frequency target or clears an
 excitation, and sweeps of the modes against that quantity.
 
-A variation changes one quantity of the worksheet (any key path: ``member.length``,
-``member.section.depth``, ``mass[0].mass``, ``supports.inner[0].at``, ...), re-reads the
-worksheet through the loader (so every check of the loader still applies) and solves it by
-finite elements.  Roots are found by scanning the range, then bracketing with Brent's method,
-since a frequency need not be monotonic in the variable.
+A variation changes one quantity of the worksheet (any key path the schema marks variable:
+``member.length``, ``member.section.depth``, ``mass[0].mass``, ``supports.inner[0].at``,
+...) on the immutable model with :func:`dataclasses.replace` (the value checked against the
+schema's limits, the section rebuilt, the member validated again) and solves it by finite
+elements.  Text is written only when a value is applied (:meth:`Variation.rewrite`).
+Roots are found by scanning the range, then bracketing with Brent's method, since a
+frequency need not be monotonic in the variable.
 """
 
 from __future__ import annotations
 
-import copy
 import math
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
 
-from beamtone.calc import fe, similitude
+from beamtone.calc import fe, schema, similitude
 from beamtone.calc.errors import InputError
-from beamtone.calc.model import Member
+from beamtone.calc.model import Member, Segment
+from beamtone.calc.sections import build_section
 from beamtone.calc.units import (
-    AREA,
-    DENSITY,
-    FORCE,
     LENGTH,
-    MASS,
-    MASS_PER_LENGTH,
-    PRESSURE,
-    ROTARY_INERTIA,
-    ROTATIONAL_STIFFNESS,
-    SECOND_MOMENT,
-    STIFFNESS,
     Dimension,
     convert_from_si,
+    parse_frequency,
     parse_quantity,
 )
-from beamtone.calc.worksheet import Worksheet, _worksheet, find_value, key_path
+from beamtone.calc.worksheet import (
+    MAX_MODES,
+    Worksheet,
+    find_value,
+    key_path,
+    point_mass,
+    spring,
+)
 
 __all__ = [
     "Variation",
@@ -56,6 +56,10 @@ __all__ = [
     "Sweep2Result",
     "parse_margin",
     "parse_harmonics",
+    "SizingRequest",
+    "read_request",
+    "read_value",
+    "run_request",
 ]
 
 _SCAN = 17
@@ -64,31 +68,9 @@ _DIRECT_SWEEP = 64  # sweeps of more points interpolate between verified solves
 _NODES = 9  # Chebyshev nodes per sweep interval
 _SWEEP_TOLERANCE = 3e-7  # interpolation error allowed, relative (under a third of the FE accuracy)
 _MAX_DEPTH = 7
-# values pass through the worksheet text (10 significant digits), so mass is exact to ~1e-10
-_MASS_TOLERANCE = 1e-9
+_MASS_TOLERANCE = 1e-9  # interpolated member mass, relative
 _NUMBER = re.compile(r"^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?\s*")
 _XTOL = 1e-10  # relative, on the variable
-_FIELD_DIMENSIONS: dict[str, Dimension] = {
-    "length": LENGTH,
-    "at": LENGTH,
-    "diameter": LENGTH,
-    "outside_diameter": LENGTH,
-    "wall": LENGTH,
-    "width": LENGTH,
-    "depth": LENGTH,
-    "flange": LENGTH,
-    "web": LENGTH,
-    "area": AREA,
-    "second_moment": SECOND_MOMENT,
-    "youngs_modulus": PRESSURE,
-    "density": DENSITY,
-    "added_mass": MASS_PER_LENGTH,
-    "axial_force": FORCE,
-    "mass": MASS,
-    "rotary_inertia": ROTARY_INERTIA,
-    "stiffness": STIFFNESS,
-    "rotational_stiffness": ROTATIONAL_STIFFNESS,
-}
 
 
 @dataclass(frozen=True)
@@ -120,28 +102,112 @@ class Variation:
 
     def member(self, value: float, *others: tuple[Variation, float]) -> Member:
         """The member with the quantity set to ``value`` [SI] (and other variations set to
-        theirs), validated by the loader."""
-        data = copy.deepcopy(self.sheet.data)
+        theirs), made with :func:`dataclasses.replace` on the loaded model and checked as the
+        loader checks it (the schema's limits, the section's geometry, positions on the
+        member)."""
+        member = self.sheet.member
         for var, v in ((self, value), *others):
-            var.apply(data, v)
-        try:
-            return _worksheet(data, self.sheet.source, self.sheet.title).member
-        except InputError as exc:
-            raise InputError(
-                "--between",
-                self.text(value),
-                f"values of {self.key} the worksheet accepts ({exc.key}: {exc.expected})",
-            ) from None
+            try:
+                member = var._set(member, v)
+            except InputError as exc:
+                raise InputError(
+                    "--between",
+                    var.text(v),
+                    f"values of {var.key} the worksheet accepts ({exc.key}: {exc.expected})",
+                ) from None
+        return member
 
-    def apply(self, data: dict[str, Any], value: float) -> None:
-        """Write the value into worksheet data (a copy the caller owns)."""
+    def _set(self, member: Member, value: float) -> Member:
+        """``member`` with this quantity set to ``value`` [SI]."""
+        entry = schema.entry(self.key)
+        entry.check(value, self.key, self.text(value))
         parts = key_path(self.key)
-        node: Any = data
-        for part in parts[:-1]:
-            node = node[part]
-        node[parts[-1]] = self.text(value)
-        if parts[-1] == "length":
-            self._follow_the_end(data, value)
+        head, name = parts[0], parts[-1]
+        if head == "mass":
+            i = int(parts[1])
+            old = member.masses[i]
+            fields = {"at": old.at, "mass": old.mass, "rotary_inertia": old.rotary_inertia}
+            fields[str(name)] = value
+            written = self.text(value) if name == "mass" else self._written("mass", i, "mass")
+            new = point_mass(*fields.values(), f"mass[{i}]", written)
+            masses = (*member.masses[:i], new, *member.masses[i + 1 :])
+            return replace(member, masses=masses)
+        if head == "spring":
+            i = int(parts[1])
+            old_spring = member.springs[i]
+            fields = {"at": old_spring.at, "stiffness": old_spring.stiffness,
+                      "rotational_stiffness": old_spring.rotational_stiffness}  # fmt: skip
+            fields[str(name)] = value
+            written = (
+                self.text(value) if name == "stiffness" else self._written("spring", i, "stiffness")
+            )
+            new_spring = spring(*fields.values(), f"spring[{i}]", written)
+            springs = (*member.springs[:i], new_spring, *member.springs[i + 1 :])
+            return replace(member, springs=springs)
+        if head == "supports":
+            i = int(parts[2])
+            inner = member.inner_supports
+            moved = replace(inner[i], at=value)
+            return replace(member, inner_supports=(*inner[:i], moved, *inner[i + 1 :]))
+        if parts == ["member", "axial_force"]:
+            return replace(member, axial_force=value)
+        return self._set_segments(member, parts, value)
+
+    def _written(self, table: str, index: int, name: str) -> object:
+        """What the worksheet wrote for ``table[index].name`` (for messages)."""
+        try:
+            return find_value(self.sheet.data, f"{table}[{index}].{name}")
+        except InputError:
+            return None
+
+    def _set_segments(self, member: Member, parts: list[str | int], value: float) -> Member:
+        """A quantity of ``[member]`` (for every segment that inherits it) or of one
+        ``[[member.segment]]``."""
+        table = self.sheet.data["member"]
+        rows = table.get("segment")
+        stepped = rows is not None
+        if stepped and not isinstance(rows, list):
+            rows = [rows]
+        if parts[1] == "segment":
+            which = [int(parts[2])]
+            rest = parts[3:]
+        else:
+            rest = parts[1:]
+            owner = str(rest[0])
+            which = [i for i in range(len(member.segments))
+                     if not stepped or owner not in rows[i]]  # fmt: skip
+        name = str(rest[-1])
+        if name == "length" and len(rest) == 1:
+            if stepped and "length" in table:  # the loader's check of member.length
+                given = sum(s.length for s in member.segments)
+                raise InputError(
+                    "member.length",
+                    self.text(value) if parts[1] != "segment" else table["length"],
+                    f"the sum of the segment lengths ({given:.6g} m), or no member.length at all",
+                )
+            old_length = member.length
+            segments = list(member.segments)
+            for i in which:
+                segments[i] = replace(segments[i], length=value)
+            return _follow_the_end(member, tuple(segments), old_length)
+        segments = list(member.segments)
+        for i in which:
+            seg = segments[i]
+            segments[i] = self._set_in_segment(seg, rest, value, i if stepped else None)
+        return replace(member, segments=tuple(segments))
+
+    def _set_in_segment(
+        self, seg: Segment, rest: list[str | int], value: float, index: int | None
+    ) -> Segment:
+        name = str(rest[-1])
+        if rest[0] == "added_mass":
+            return replace(seg, added_mass=value)
+        if rest[0] == "material":
+            return replace(seg, material=replace(seg.material, **{name: value}))
+        # a section dimension: rebuilt, so its geometry is checked as the loader checks it
+        where = self.key.rsplit(".", 1)[0]
+        dims = {**seg.section.dimensions, name: value}
+        return replace(seg, section=build_section(seg.section.shape, dims, where))
 
     def rewrite(self, text: str, value: float) -> str:
         """Worksheet text with the quantity set to ``value`` [SI] in the worksheet's unit,
@@ -153,7 +219,8 @@ class Variation:
 
         document = tomlkit.parse(text)
         plain = document.unwrap()
-        self.apply(plain, value)
+        if key_path(self.key)[-1] == "length":
+            self._follow_the_end_in_text(plain, value)
         node: Any = document
         parts = key_path(self.key)
         for part in parts[:-1]:
@@ -168,8 +235,9 @@ class Variation:
         loads(result)
         return result
 
-    def _follow_the_end(self, data: dict[str, Any], value: float) -> None:
-        """Masses and springs at the right end stay at the end when a length changes."""
+    def _follow_the_end_in_text(self, data: dict[str, Any], value: float) -> None:
+        """Masses and springs at the right end stay at the end when a length changes (in
+        worksheet data, as :func:`_follow_the_end` does on the model)."""
         old = self.sheet.member.length
         new = old + (value - self.value)
         for table in ("mass", "spring"):
@@ -185,6 +253,22 @@ class Variation:
                     item["at"] = f"{convert_from_si(new, unit):.10g} {unit}"
 
 
+def _follow_the_end(member: Member, segments: tuple[Segment, ...], old_length: float) -> Member:
+    """``member`` with new ``segments``: masses and springs at the old right end [m] stay at
+    the new end."""
+    new = sum(s.length for s in segments)
+
+    def moved(at: float) -> float:
+        return new if abs(at - old_length) <= 1e-9 * old_length else at
+
+    return replace(
+        member,
+        segments=segments,
+        masses=tuple(replace(m, at=moved(m.at)) for m in member.masses),
+        springs=tuple(replace(k, at=moved(k.at)) for k in member.springs),
+    )
+
+
 def variation(sheet: Worksheet, key: str) -> Variation:
     """Make the worksheet quantity at ``key`` variable.
 
@@ -194,12 +278,15 @@ def variation(sheet: Worksheet, key: str) -> Variation:
         Keyed ``--vary``, for a key that is not a quantity of this worksheet.
     """
     value = find_value(sheet.data, key)
-    field = key_path(key)[-1]
-    dimension = _FIELD_DIMENSIONS.get(field) if isinstance(field, str) else None
-    if dimension is None or not isinstance(value, str):
+    found = schema.find(key)
+    if found is None or found.kind != schema.QUANTITY or not found.variable or (
+        not isinstance(value, str)
+    ):  # fmt: skip
         raise InputError(
             "--vary", key, "a quantity of the worksheet, such as member.length or mass[0].mass"
         )
+    dimension = found.dimension
+    assert dimension is not None
     si = parse_quantity(value, dimension, key, allow_zero=True, allow_negative=True, minimum=False)
     match = _NUMBER.match(value)
     unit = value[match.end() :] if match else value
@@ -788,23 +875,9 @@ def _patch(
 
 
 def quantity_keys(data: dict[str, Any]) -> list[str]:
-    """Key paths of every quantity in worksheet data that sizing can vary, in file order."""
-    out: list[str] = []
-
-    def walk(node: Any, prefix: str) -> None:
-        if isinstance(node, dict):
-            for name, value in node.items():
-                key = f"{prefix}.{name}" if prefix else name
-                if isinstance(value, str) and name in _FIELD_DIMENSIONS:
-                    out.append(key)
-                elif name != "record":
-                    walk(value, key)
-        elif isinstance(node, list):
-            for i, item in enumerate(node):
-                walk(item, f"{prefix}[{i}]")
-
-    walk(data, "")
-    return out
+    """Key paths of every quantity in worksheet data that sizing can vary, in file order
+    (the schema's variable quantities)."""
+    return schema.quantity_keys(data)
 
 
 def parse_margin(text: str) -> float:
@@ -831,3 +904,125 @@ def parse_harmonics(text: str) -> tuple[int, ...]:
     if not orders or any(not 1 <= h <= 100 for h in orders):
         raise InputError("--harmonics", text, "orders from 1 to 100, e.g. 1,2")
     return tuple(sorted(set(orders)))
+
+
+# --- the request, checked in one place for the command line and the app ---------------------------
+
+_CLI_NAMES = {
+    "low": "--between", "high": "--between", "target": "--target",
+    "excitation": "--excitation", "mode": "--mode", "harmonics": "--harmonics",
+    "margin": "--margin",
+}  # fmt: skip
+
+
+@dataclass(frozen=True)
+class SizingRequest:
+    """A checked sizing request: what to vary, over which range, towards which goal.
+
+    Attributes
+    ----------
+    variation : Variation
+    low, high : float
+        The range [SI unit of the key].
+    target_hz : float or None
+        Frequency target [Hz] (None for an excitation check).
+    excitation_hz : float or None
+        Excitation frequency [Hz] (None for a target).
+    mode : int
+        Mode that must meet the target.
+    harmonics : tuple of int
+    margin : float
+        Band half-width as a fraction.
+    """
+
+    variation: Variation
+    low: float
+    high: float
+    target_hz: float | None
+    excitation_hz: float | None
+    mode: int = 1
+    harmonics: tuple[int, ...] = (1,)
+    margin: float = 0.2
+
+
+def read_value(var: Variation, text: str, name: str) -> float:
+    """One end of a range, as written, in the variable's dimension [SI]; InputError keyed
+    ``name``.  Any sign is read here: the values the member accepts are checked when solved."""
+    return parse_quantity(text, var.dimension, name, allow_zero=True, allow_negative=True,
+                          minimum=False)  # fmt: skip
+
+
+def read_request(
+    sheet: Worksheet,
+    key: str,
+    low: str,
+    high: str,
+    *,
+    target: str | None = None,
+    excitation: str | None = None,
+    mode: int | str = 1,
+    harmonics: str = "1",
+    margin: str = "20%",
+    names: dict[str, str] | None = None,
+) -> SizingRequest:
+    """Check a sizing request as the user wrote it (the command line's options, the app's
+    fields) and return it in SI.
+
+    Parameters
+    ----------
+    sheet : Worksheet
+    key : str
+        Key path to vary.
+    low, high : str
+        The range as ``"number unit"`` text, in the key's dimension.
+    target, excitation : str or None
+        Exactly one: a frequency target, or a running excitation (``"60 Hz"``, ``"1480 rpm"``).
+    mode : int or str
+        Mode number for a target, 1 to ``MAX_MODES``.
+    harmonics, margin : str
+        Excitation orders (``"1,2"``) and band half-width (``"20%"``), for an excitation.
+    names : dict of str to str, optional
+        What each input is called in messages (default: the command line's options).
+
+    Raises
+    ------
+    InputError
+        Keyed by the offending input's name, for the first input that is wrong.
+    """
+    name = {**_CLI_NAMES, **(names or {})}
+    var = variation(sheet, key)
+    bounds = [read_value(var, text, name[which]) for which, text in (("low", low), ("high", high))]
+    if (target is None) == (excitation is None):
+        raise InputError(name["target"], target, "either a frequency target or an excitation")
+    if target is not None:
+        target_hz = parse_frequency(target, name["target"])
+        if isinstance(mode, str):
+            try:
+                mode = int(mode)
+            except ValueError:
+                raise InputError(name["mode"], mode, "a mode number, 1 or more") from None
+        if not 1 <= mode <= MAX_MODES:
+            raise InputError(name["mode"], mode, f"a mode number from 1 to {MAX_MODES}")
+        return SizingRequest(var, bounds[0], bounds[1], target_hz, None, mode)
+    assert excitation is not None
+    excitation_hz = parse_frequency(excitation, name["excitation"])
+    try:
+        orders = parse_harmonics(harmonics)
+        fraction = parse_margin(margin)
+    except InputError as exc:
+        raise InputError(name[exc.key.lstrip("-")], exc.value, exc.expected, exc.hint) from None
+    return SizingRequest(var, bounds[0], bounds[1], None, excitation_hz, 1, orders, fraction)
+
+
+def run_request(request: SizingRequest) -> SizingResult:
+    """Size for a checked request (:func:`size_for_target` or :func:`size_for_excitation`)."""
+    var = request.variation
+    if request.target_hz is not None:
+        return size_for_target(
+            var.sheet, var.key, request.low, request.high, request.target_hz, request.mode
+        )
+    assert request.excitation_hz is not None
+    return size_for_excitation(
+        var.sheet, var.key, request.low, request.high, request.excitation_hz,
+        request.harmonics, request.margin,
+    )  # fmt: skip

@@ -9,15 +9,13 @@ read, never written.
 
 from __future__ import annotations
 
-import contextlib
-import difflib
 import math
 import re
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
-from beamtone.calc import materials
+from beamtone.calc import materials, schema
 from beamtone.calc.errors import InputError
 from beamtone.calc.materials import Material
 from beamtone.calc.model import (
@@ -30,18 +28,6 @@ from beamtone.calc.model import (
     Spring,
 )
 from beamtone.calc.sections import SHAPES, Section, build_section
-from beamtone.calc.units import (
-    DENSITY,
-    FORCE,
-    LENGTH,
-    MASS,
-    MASS_PER_LENGTH,
-    PRESSURE,
-    ROTARY_INERTIA,
-    ROTATIONAL_STIFFNESS,
-    STIFFNESS,
-    parse_quantity,
-)
 
 __all__ = [
     "FORMAT", "MAX_BYTES", "MAX_MODES", "MAX_RITZ", "EstimateSettings", "Worksheet", "load",
@@ -58,19 +44,6 @@ MAX_BYTES = 1_000_000
 MAX_MODES = 50
 """Most modes a worksheet may ask for."""
 
-_TOP_KEYS = (
-    "format", "title", "notes", "member", "supports", "mass", "spring", "check", "estimate",
-    "record",
-)  # fmt: skip
-_MEMBER_KEYS = ("length", "material", "section", "added_mass", "axial_force", "segment")
-_SEGMENT_KEYS = ("length", "material", "section", "added_mass")
-_MATERIAL_KEYS = ("youngs_modulus", "density", "poisson_ratio", "name")
-_SUPPORT_KEYS = ("left", "right", "inner")
-_INNER_KEYS = ("at", "kind")
-_MASS_KEYS = ("at", "mass", "rotary_inertia")
-_SPRING_KEYS = ("at", "stiffness", "rotational_stiffness")
-_CHECK_KEYS = ("modes",)
-_ESTIMATE_KEYS = ("shape", "shapes", "reference")
 MAX_RITZ = 12
 """Most trial functions in a Rayleigh-Ritz estimate."""
 
@@ -141,22 +114,10 @@ def load(path: str | Path) -> Worksheet:
         For a missing, unreadable, binary, empty, oversized or malformed file,
         and for any invalid entry in it.
     """
+    from beamtone.calc.files import read_limited
+
     p = Path(path)
-    try:
-        size = p.stat().st_size
-        if size > MAX_BYTES:
-            raise InputError(
-                "file", str(p), f"a worksheet of at most {MAX_BYTES // 1000} kB", f"{size} bytes"
-            )
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise InputError("file", str(p), "an existing worksheet file") from None
-    except IsADirectoryError:
-        raise InputError("file", str(p), "a worksheet file, not a folder") from None
-    except PermissionError:
-        raise InputError("file", str(p), "a worksheet file you may read") from None
-    except OSError as exc:
-        raise InputError("file", str(p), "a readable worksheet file", exc.strerror) from None
+    raw = read_limited(p, MAX_BYTES)  # regular files only, never more than MAX_BYTES
     return _from_bytes(raw, str(p), default_title=p.stem)
 
 
@@ -223,18 +184,30 @@ def _reason(exc: Exception) -> str:
 # --- validation ----------------------------------------------------------------------------------
 
 
-def _hint(name: str, allowed: tuple[str, ...] | list[str]) -> str | None:
-    close = difflib.get_close_matches(name, list(allowed), n=1, cutoff=0.6)
-    return f"did you mean {close[0]!r}?" if close else None
+_hint = schema.hint
 
 
-def _keys(table: dict[str, Any], allowed: tuple[str, ...], key: str) -> None:
+def _keys(table: dict[str, Any], key: str, allowed: tuple[str, ...] | None = None) -> None:
+    """Refuse a key the schema does not list for this table (``allowed``: the schema's keys
+    of the table at ``key``), with a did-you-mean hint."""
+    if allowed is None:
+        allowed = schema.children(key)
     for name in table:
         if name not in allowed:
             path = f"{key}.{name}" if key else name
             hint = _hint(name, allowed)
             expected = "one of the keys " + ", ".join(allowed)
             raise InputError(path, name, expected, hint or "unknown key")
+
+
+def _quantity(table: dict[str, Any], name: str, key: str, *, required: bool = True) -> float:
+    """The quantity ``name`` of ``table`` (at ``key``) in SI, parsed with its schema entry's
+    dimension and limits; a missing required one is named with the entry's ``missing``."""
+    path = f"{key}.{name}"
+    found = schema.entry(path)
+    if required:
+        return found.parse(_required(table, name, key, found.missing), path)
+    return found.parse(table[name], path)
 
 
 def _table(value: object, key: str, what: str) -> dict[str, Any]:
@@ -267,7 +240,7 @@ def _string(value: object, key: str, what: str) -> str:
 
 def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Worksheet:
     _format(data)
-    _keys(data, _TOP_KEYS, "")
+    _keys(data, "")
     title = _string(data.get("title", default_title), "title", "a text title")
     notes = _string(data.get("notes", ""), "notes", "text notes")
     member_table = _table(
@@ -310,26 +283,15 @@ def _format(data: dict[str, Any]) -> None:
 
 
 def _member(table: dict[str, Any]) -> tuple[tuple[Segment, ...], float]:
-    _keys(table, _MEMBER_KEYS, "member")
+    _keys(table, "member")
     axial = 0.0
     if "axial_force" in table:
-        axial = parse_quantity(
-            table["axial_force"],
-            FORCE,
-            "member.axial_force",
-            allow_zero=True,
-            allow_negative=True,
-            minimum=False,
-        )
+        axial = _quantity(table, "axial_force", "member", required=False)
     material = _material(table["material"], "member.material") if "material" in table else None
     section = _section(table["section"], "member.section") if "section" in table else None
     added = _added(table, "member")
     if "segment" not in table:
-        length = parse_quantity(
-            _required(table, "length", "member", "the member length, or [[member.segment]]"),
-            LENGTH,
-            "member.length",
-        )
+        length = _quantity(table, "length", "member")
         if material is None:
             _required(table, "material", "member", "a material name or table")
         if section is None:
@@ -339,8 +301,8 @@ def _member(table: dict[str, Any]) -> tuple[tuple[Segment, ...], float]:
     segments = []
     for i, seg in enumerate(_tables(table["segment"], "member.segment", "segments")):
         key = f"member.segment[{i}]"
-        _keys(seg, _SEGMENT_KEYS, key)
-        length = parse_quantity(_required(seg, "length", key, "a length"), LENGTH, f"{key}.length")
+        _keys(seg, key)
+        length = _quantity(seg, "length", key)
         mat = _material(seg["material"], f"{key}.material") if "material" in seg else material
         sec = _section(seg["section"], f"{key}.section") if "section" in seg else section
         if mat is None:
@@ -353,7 +315,7 @@ def _member(table: dict[str, Any]) -> tuple[tuple[Segment, ...], float]:
     if not segments:
         raise InputError("member.segment", [], "at least one segment")
     if "length" in table:
-        total = parse_quantity(table["length"], LENGTH, "member.length")
+        total = _quantity(table, "length", "member", required=False)
         given = sum(s.length for s in segments)
         if not math.isclose(total, given, rel_tol=1e-9):
             raise InputError(
@@ -367,8 +329,7 @@ def _member(table: dict[str, Any]) -> tuple[tuple[Segment, ...], float]:
 def _added(table: dict[str, Any], key: str) -> float:
     if "added_mass" not in table:
         return 0.0
-    value = table["added_mass"]
-    return parse_quantity(value, MASS_PER_LENGTH, f"{key}.added_mass", allow_zero=True)
+    return _quantity(table, "added_mass", key, required=False)
 
 
 def _material(value: object, key: str) -> Material:
@@ -381,21 +342,18 @@ def _material(value: object, key: str) -> Material:
             raise InputError(key, value, expected, hint)
         return found
     table = _table(value, key, "a material name, or youngs_modulus and density")
-    _keys(table, _MATERIAL_KEYS, key)
-    E = parse_quantity(
-        _required(table, "youngs_modulus", key, "Young's modulus"),
-        PRESSURE,
-        f"{key}.youngs_modulus",
-    )
-    rho = parse_quantity(_required(table, "density", key, "a density"), DENSITY, f"{key}.density")
+    _keys(table, key)
+    E = _quantity(table, "youngs_modulus", key)
+    rho = _quantity(table, "density", key)
     nu = table.get("poisson_ratio")
+    low, high = schema.entry(f"{key}.poisson_ratio").bounds or (-math.inf, math.inf)
     if nu is not None and (
         isinstance(nu, bool)
         or not isinstance(nu, int | float)
         or not math.isfinite(nu)
-        or not -1.0 < nu < 0.5
+        or not low < nu < high
     ):
-        raise InputError(f"{key}.poisson_ratio", nu, "a number between -1 and 0.5")
+        raise InputError(f"{key}.poisson_ratio", nu, f"a number between {low:g} and {high:g}")
     name = _string(table.get("name", "inline"), f"{key}.name", "a text name")
     return Material(name, E, rho, None if nu is None else float(nu))
 
@@ -410,22 +368,20 @@ def _section(value: object, key: str) -> Section:
     if not isinstance(shape, str) or shape not in SHAPES:
         hint = _hint(shape, list(SHAPES)) if isinstance(shape, str) else None
         raise InputError(f"{key}.shape", shape, "one of " + ", ".join(SHAPES), hint)
-    spec = SHAPES[shape]
-    allowed = ("shape", *(n for n, _ in spec.required), *(n for n, _ in spec.optional))
-    _keys(table, allowed, key)
+    required, optional = schema.SECTION_SHAPES[shape]
+    _keys(table, key, schema.section_keys(shape))
     dims: dict[str, float] = {}
-    for name, dim in spec.required:
-        dims[name] = parse_quantity(
-            _required(table, name, key, f"the {name} of a {shape} section"), dim, f"{key}.{name}"
-        )
-    for name, dim in spec.optional:
+    for name in required:
+        value = _required(table, name, key, f"the {name} of a {shape} section")
+        dims[name] = schema.entry(f"{key}.{name}").parse(value, f"{key}.{name}")
+    for name in optional:
         if name in table:
-            dims[name] = parse_quantity(table[name], dim, f"{key}.{name}")
+            dims[name] = _quantity(table, name, key, required=False)
     return build_section(shape, dims, key)
 
 
 def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]]:
-    _keys(table, _SUPPORT_KEYS, "supports")
+    _keys(table, "supports")
     ends = []
     for side in ("left", "right"):
         key = f"supports.{side}"
@@ -439,9 +395,8 @@ def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]
     inner = []
     for i, item in enumerate(_tables(table.get("inner", []), "supports.inner", "{ at, kind }")):
         key = f"supports.inner[{i}]"
-        _keys(item, _INNER_KEYS, key)
-        at = parse_quantity(_required(item, "at", key, "a position"), LENGTH, f"{key}.at",
-                            allow_zero=True, allow_negative=True, minimum=False)  # fmt: skip
+        _keys(item, key)
+        at = _quantity(item, "at", key)
         kind = _required(item, "kind", key, "one of " + ", ".join(INNER_KINDS))
         if not isinstance(kind, str) or kind not in INNER_KINDS:
             hint = _hint(kind, INNER_KINDS) if isinstance(kind, str) else None
@@ -450,46 +405,42 @@ def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]
     return ends[0], ends[1], tuple(inner)
 
 
-def _position(table: dict[str, Any], key: str) -> float:
-    value = _required(table, "at", key, "a position from the left end")
-    return parse_quantity(
-        value, LENGTH, f"{key}.at", allow_zero=True, allow_negative=True, minimum=False
-    )
-
-
 def _mass(table: dict[str, Any], key: str) -> PointMass:
-    _keys(table, _MASS_KEYS, key)
-    at = _position(table, key)
-    mass = parse_quantity(
-        _required(table, "mass", key, "a mass"), MASS, f"{key}.mass", allow_zero=True
-    )
+    _keys(table, key)
+    at = _quantity(table, "at", key)
+    mass = _quantity(table, "mass", key)
     inertia = 0.0
     if "rotary_inertia" in table:
-        inertia = parse_quantity(
-            table["rotary_inertia"], ROTARY_INERTIA, f"{key}.rotary_inertia", allow_zero=True
-        )
+        inertia = _quantity(table, "rotary_inertia", key, required=False)
+    return point_mass(at, mass, inertia, key, table["mass"])
+
+
+def point_mass(at: float, mass: float, inertia: float, key: str, written: object) -> PointMass:
+    """A point mass [m, kg, kg*m^2] that carries something: InputError keyed ``key.mass``
+    (showing ``written``) where both the mass and the rotary inertia are zero."""
     if mass == 0.0 and inertia == 0.0:
-        raise InputError(f"{key}.mass", table["mass"], "a positive mass or rotary inertia")
+        raise InputError(f"{key}.mass", written, "a positive mass or rotary inertia")
     return PointMass(at, mass, inertia)
 
 
 def _spring(table: dict[str, Any], key: str) -> Spring:
-    _keys(table, _SPRING_KEYS, key)
-    at = _position(table, key)
+    _keys(table, key)
+    at = _quantity(table, "at", key)
     k = kr = 0.0
     if "stiffness" in table:
-        k = parse_quantity(table["stiffness"], STIFFNESS, f"{key}.stiffness", allow_zero=True)
+        k = _quantity(table, "stiffness", key, required=False)
     if "rotational_stiffness" in table:
-        kr = parse_quantity(
-            table["rotational_stiffness"],
-            ROTATIONAL_STIFFNESS,
-            f"{key}.rotational_stiffness",
-            allow_zero=True,
-        )
+        kr = _quantity(table, "rotational_stiffness", key, required=False)
+    return spring(at, k, kr, key, table.get("stiffness"))
+
+
+def spring(at: float, k: float, kr: float, key: str, written: object) -> Spring:
+    """A spring [m, N/m, N*m/rad] that holds something: InputError keyed ``key.stiffness``
+    (showing ``written``) where both stiffnesses are zero."""
     if k == 0.0 and kr == 0.0:
         raise InputError(
             f"{key}.stiffness",
-            table.get("stiffness"),
+            written,
             "a positive stiffness or rotational_stiffness",
         )
     return Spring(at, k, kr)
@@ -497,17 +448,19 @@ def _spring(table: dict[str, Any], key: str) -> Spring:
 
 def _check(value: object) -> int:
     table = _table(value, "check", "check settings such as modes = 5")
-    _keys(table, _CHECK_KEYS, "check")
-    modes = table.get("modes", 5)
-    if isinstance(modes, bool) or not isinstance(modes, int) or not 1 <= modes <= MAX_MODES:
-        raise InputError("check.modes", modes, f"a whole number of modes from 1 to {MAX_MODES}")
+    _keys(table, "check")
+    entry = schema.entry("check.modes")
+    low, high = entry.bounds or (1, MAX_MODES)
+    modes = table.get("modes", entry.default)
+    if isinstance(modes, bool) or not isinstance(modes, int) or not low <= modes <= high:
+        raise InputError("check.modes", modes, f"a whole number of modes from {low:g} to {high:g}")
     return modes
 
 
 def _estimate(value: object) -> EstimateSettings:
     table = _table(value, "estimate", 'estimate settings such as shape = "static"')
-    _keys(table, _ESTIMATE_KEYS, "estimate")
-    shape = table.get("shape", "static")
+    _keys(table, "estimate")
+    shape = table.get("shape", schema.entry("estimate.shape").default)
     if not isinstance(shape, str) or not shape.strip():
         raise InputError(
             "estimate.shape",
@@ -534,9 +487,7 @@ def _estimate(value: object) -> EstimateSettings:
             shapes = tuple(shapes)
     reference = None
     if "reference" in table:
-        reference = parse_quantity(
-            table["reference"], LENGTH, "estimate.reference", allow_zero=True, minimum=False
-        )
+        reference = _quantity(table, "reference", "estimate", required=False)
     # Expressions are read now, so every command refuses a bad one (the named shapes and
     # "static" need no parsing); admissibility needs the member and is checked when solved.
     # (sympy's verdict on a formula is kept on disk, so this stays cheap; see calc.symbolic)
@@ -625,46 +576,8 @@ def replace_value(text: str, key: str, new: str, option: str = "--vary") -> str:
     return result
 
 
-def write_atomic(path: str | Path, text: str) -> None:
-    """Replace a file's contents atomically: a temporary file in the same folder, flushed and
-    fsynced, then renamed over the original.  An interruption leaves the original intact.
+def write_atomic(path: str | Path, text: str, *, expected: bytes | None = None) -> None:
+    """Replace a worksheet's text, keeping the file (see :func:`calc.files.write_atomic`)."""
+    from beamtone.calc.files import write_atomic as write
 
-    Raises
-    ------
-    InputError
-        Keyed ``"file"`` when the folder cannot be written; the original is then untouched.
-    """
-    import os
-    import tempfile
-
-    target = Path(path)
-    folder = target.parent
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=folder)
-    except OSError as exc:
-        raise InputError("file", str(target), "a worksheet in a folder you may write",
-                         exc.strerror) from None  # fmt: skip
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
-            handle.write(text)
-            handle.flush()
-            os.fsync(handle.fileno())
-        with contextlib.suppress(OSError):  # keep the original's permissions where possible
-            os.chmod(tmp, target.stat().st_mode & 0o7777)
-        os.replace(tmp, target)
-    except OSError as exc:
-        Path(tmp).unlink(missing_ok=True)
-        raise InputError("file", str(target), "a worksheet that can be written",
-                         exc.strerror) from None  # fmt: skip
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    try:
-        dir_fd = os.open(folder, os.O_RDONLY)
-    except OSError:
-        return
-    try:
-        with contextlib.suppress(OSError):  # not every file system syncs folders
-            os.fsync(dir_fd)
-    finally:
-        os.close(dir_fd)
+    write(path, text, expected=expected)

@@ -20,41 +20,34 @@ MARGIN_NOTE = (
 
 
 def _range(args: argparse.Namespace, var: Any) -> tuple[float, float]:
-    from beamtone.calc.units import parse_quantity
+    from beamtone.calc.sizing import read_value
 
     low_text, high_text = args.between
-    low = parse_quantity(low_text, var.dimension, "--between", allow_zero=True,
-                         allow_negative=True, minimum=False)  # fmt: skip
-    high = parse_quantity(high_text, var.dimension, "--between", allow_zero=True,
-                          allow_negative=True, minimum=False)  # fmt: skip
-    return low, high
+    return read_value(var, low_text, "--between"), read_value(var, high_text, "--between")
 
 
 def size(args: argparse.Namespace) -> int:
     """Run ``beamtone size``."""
     from beamtone.calc import sizing
-    from beamtone.calc.sizing import parse_harmonics, parse_margin
-    from beamtone.calc.units import parse_frequency
-    from beamtone.calc.worksheet import load, write_atomic
+    from beamtone.calc.files import read_limited
+    from beamtone.calc.worksheet import MAX_BYTES, load, write_atomic
 
     path = Path(args.file)
+    original = read_limited(path, MAX_BYTES) if args.apply else None  # what --apply rewrites
     sheet = load(path)
-    var = sizing.variation(sheet, args.vary)
-    low, high = _range(args, var)
-    if args.target is not None:
-        target = parse_frequency(args.target, "--target")
-        result = sizing.size_for_target(sheet, args.vary, low, high, target, args.mode)
-    else:
-        excitation = parse_frequency(args.excitation, "--excitation")
-        result = sizing.size_for_excitation(
-            sheet, args.vary, low, high, excitation, parse_harmonics(args.harmonics),
-            parse_margin(args.margin),
-        )  # fmt: skip
+    request = sizing.read_request(
+        sheet, args.vary, *args.between, target=args.target, excitation=args.excitation,
+        mode=args.mode, harmonics=args.harmonics, margin=args.margin,
+    )  # fmt: skip
+    var = request.variation
+    result = sizing.run_request(request)
     applied = None
     if args.apply and result.recommended is not None:
         chosen = result.solutions[result.recommended]
-        original = path.read_text(encoding="utf-8")
-        write_atomic(path, var.rewrite(original, chosen.value_si))
+        assert original is not None
+        text = original.decode("utf-8")  # load() accepted these bytes as UTF-8
+        # refused if the file changed since it was read (another run applied a value)
+        write_atomic(path, var.rewrite(text, chosen.value_si), expected=original)
         applied = chosen.value
     if args.json:
         obj: dict[str, Any] = {
@@ -196,16 +189,11 @@ def sweep(args: argparse.Namespace) -> int:
 
 def _sweep2(args: argparse.Namespace, sheet: Any, var: Any, low: float, high: float) -> int:
     from beamtone.calc import sizing
-    from beamtone.calc.units import parse_quantity
 
     if args.between2 is None:
         raise InputError("--vary2", args.vary2, "a range for it too: --between2 LOW HIGH")
     var2 = sizing.variation(sheet, args.vary2)
-    low2, high2 = (
-        parse_quantity(t, var2.dimension, "--between2", allow_zero=True, allow_negative=True,
-                       minimum=False)
-        for t in args.between2
-    )  # fmt: skip
+    low2, high2 = (sizing.read_value(var2, t, "--between2") for t in args.between2)
     result = sizing.sweep2(
         sheet, (args.vary, low, high, args.points), (args.vary2, low2, high2, args.points2),
         args.modes,

@@ -14,6 +14,17 @@ from beamtone.tui.document import Document
 
 __all__ = ["SizingScreen"]
 
+# What each sizing input is called in messages: the app's field names.
+_FIELD_NAMES = {
+    "low": "low",
+    "high": "high",
+    "target": "frequency",
+    "excitation": "frequency",
+    "mode": "mode",
+    "harmonics": "orders",
+    "margin": "margin",
+}
+
 
 class SizingScreen(Screen[tuple[str, str, str] | None]):
     """Returns ``(key, value, new worksheet text)`` to apply, or None."""
@@ -109,47 +120,24 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
     @work(thread=True, exclusive=True, group="sizing", exit_on_error=False)
     def _run(self, text: str, key: str, goal: str, values: dict[str, str]) -> None:
         from beamtone.calc import sizing
-        from beamtone.calc.units import parse_frequency, parse_quantity
         from beamtone.calc.worksheet import loads
 
+        frequency = values["frequency"]
         try:
             sheet = loads(text, "<app>")
-            var = sizing.variation(sheet, key)
-            low = parse_quantity(
+            request = sizing.read_request(
+                sheet,
+                key,
                 values["low"],
-                var.dimension,
-                "low",
-                allow_zero=True,
-                allow_negative=True,
-                minimum=False,
-            )
-            high = parse_quantity(
                 values["high"],
-                var.dimension,
-                "high",
-                allow_zero=True,
-                allow_negative=True,
-                minimum=False,
+                target=frequency if goal == "target" else None,
+                excitation=frequency if goal != "target" else None,
+                mode=values["mode"],
+                harmonics=values["harmonics"],
+                margin=values["margin"],
+                names=_FIELD_NAMES,
             )
-            frequency = parse_frequency(values["frequency"], "frequency")
-            if goal == "target":
-                try:
-                    mode = int(values["mode"])
-                except ValueError:
-                    raise InputError("mode", values["mode"], "a mode number, 1 or more") from None
-                if not 1 <= mode <= 50:
-                    raise InputError("mode", mode, "a mode number from 1 to 50")
-                result = sizing.size_for_target(sheet, key, low, high, frequency, mode)
-            else:
-                result = sizing.size_for_excitation(
-                    sheet,
-                    key,
-                    low,
-                    high,
-                    frequency,
-                    sizing.parse_harmonics(values["harmonics"]),
-                    sizing.parse_margin(values["margin"]),
-                )
+            result = sizing.run_request(request)
         except InputError as exc:
             self.app.call_from_thread(self._say, exc.message, True)
             return
