@@ -218,19 +218,13 @@ class Variation:
         from beamtone.calc.worksheet import loads
 
         document = tomlkit.parse(text)
-        plain = document.unwrap()
-        if key_path(self.key)[-1] == "length":
-            self._follow_the_end_in_text(plain, value)
         node: Any = document
         parts = key_path(self.key)
         for part in parts[:-1]:
             node = node[part]
         node[parts[-1]] = self.text(value)
-        for table in ("mass", "spring"):
-            for i, item in enumerate(plain.get(table, []) if isinstance(plain.get(table), list)
-                                     else []):  # fmt: skip
-                if item.get("at") != document[table][i].get("at"):
-                    document[table][i]["at"] = item["at"]
+        if parts[-1] == "length":
+            self._follow_the_end_in_text(document, value)
         result = tomlkit.dumps(document)
         loads(result)
         return result

@@ -15,21 +15,9 @@ from textual.containers import Horizontal, VerticalScroll
 from textual.message import Message
 from textual.widgets import Button, Label, Select, Static
 
-from beamtone.calc import materials
+from beamtone.calc import materials, schema
 from beamtone.calc.errors import InputError
-from beamtone.calc.model import END_KINDS, INNER_KINDS, Member
-from beamtone.calc.sections import SHAPES
-from beamtone.calc.units import (
-    DENSITY,
-    FORCE,
-    LENGTH,
-    MASS,
-    MASS_PER_LENGTH,
-    PRESSURE,
-    ROTARY_INERTIA,
-    ROTATIONAL_STIFFNESS,
-    STIFFNESS,
-)
+from beamtone.calc.model import Member
 from beamtone.tui.document import Document
 from beamtone.tui.widgets.quantity import QuantityField, TextField
 
@@ -44,37 +32,32 @@ _SHAPE_DEFAULTS = {
     "i-beam": {"width": "100 mm", "depth": "200 mm", "flange": "8 mm", "web": "6 mm"},
     "properties": {"area": "450 mm^2", "second_moment": "1e5 mm^4"},
 }
-# The fields of each attachment row: (key, label, dimension, QuantityField options).
-_ROW_FIELDS: dict[str, tuple[tuple[str, str, Any, dict[str, bool]], ...]] = {
-    "mass": (
-        ("at", "at", LENGTH, {"position": True}),
-        ("mass", "mass", MASS, {"allow_zero": True}),
-        ("rotary_inertia", "rot. inertia", ROTARY_INERTIA, {"allow_zero": True, "optional": True}),
-    ),
-    "spring": (
-        ("at", "at", LENGTH, {"position": True}),
-        ("stiffness", "stiffness", STIFFNESS, {"allow_zero": True, "optional": True}),
-        (
-            "rotational_stiffness",
-            "rot. stiffness",
-            ROTATIONAL_STIFFNESS,
-            {"allow_zero": True, "optional": True},
-        ),
-    ),
-}
-_LABELS = {
-    "outside_diameter": "outside dia.",
-    "second_moment": "second moment",
-    "youngs_modulus": "Young's mod.",
-    "rotary_inertia": "rot. inertia",
-    "rotational_stiffness": "rot. stiffness",
-    "added_mass": "added mass",
-    "axial_force": "axial force",
-}
+# The fields of each attachment row, in the schema's order.
+_ROWS = ("mass", "spring")
 
 
-def _label(name: str) -> str:
-    return _LABELS.get(name, name.replace("_", " "))
+def _field(key: str, value: Any, *, optional: bool | None = None) -> QuantityField:
+    """The field of a worksheet quantity: label, dimension and limits from the schema.
+
+    A position is on the member, so its field refuses a negative value at once (the loader
+    reads any sign and names the member's span when it solves).
+    """
+    entry = schema.entry(key)
+    assert entry.dimension is not None, key
+    return QuantityField(
+        key,
+        entry.label,
+        entry.dimension,
+        _text(value),
+        allow_zero=entry.allow_zero,
+        allow_negative=entry.allow_negative and not entry.position,
+        position=entry.position or not entry.minimum,
+        optional=not entry.required if optional is None else optional,
+    )
+
+
+def _text_field(key: str, value: str, placeholder: str = "") -> TextField:
+    return TextField(key, schema.entry(key).label, value, placeholder)
 
 
 class WorksheetForm(VerticalScroll):
@@ -100,10 +83,10 @@ class WorksheetForm(VerticalScroll):
     def compose(self) -> ComposeResult:
         doc = self.document
         yield Static("1  Member", classes="step")
-        yield TextField("title", "title", str(doc.get("title", "")))
+        yield _text_field("title", str(doc.get("title", "")))
         segments = doc.rows("member.segment")
         if not segments:
-            yield QuantityField("member.length", "length", LENGTH, _text(doc.get("member.length")))
+            yield _field("member.length", doc.get("member.length"))
         yield from self._material()
         yield from self._section(
             "member.section", doc.get("member.section"), optional=bool(segments)
@@ -113,7 +96,7 @@ class WorksheetForm(VerticalScroll):
             with Horizontal(classes="rowhead"):
                 yield Label(f"segment {i}", classes="rowtitle")
                 yield Button("remove", id=f"remove-segment-{i}", classes="small")
-            yield QuantityField(f"{key}.length", "length", LENGTH, _text(seg.get("length")))
+            yield _field(f"{key}.length", seg.get("length"))
             if isinstance(seg.get("section"), dict):
                 yield from self._section(f"{key}.section", seg["section"], picker=False)
         yield Button("+ segment (step the member)", id="add-segment", classes="small")
@@ -121,71 +104,54 @@ class WorksheetForm(VerticalScroll):
 
         yield Static("2  Ends", classes="step")
         for side in ("left", "right"):
+            ends = schema.entry(f"supports.{side}")
             with Horizontal(classes="pair"):
-                yield Label(f"{side} end", classes="pairlabel")
+                yield Label(ends.label, classes="pairlabel")
                 yield Select(
-                    [(k, k) for k in END_KINDS],
-                    value=_choice(doc.get(f"supports.{side}"), END_KINDS),
+                    [(k, k) for k in ends.choices],
+                    value=_choice(doc.get(f"supports.{side}"), ends.choices),
                     allow_blank=False,
                     id=f"supports-{side}",
                     compact=True,
                 )
+        inner_kinds = schema.entry("supports.inner[].kind").choices
         for i, sup in enumerate(doc.inner_supports()):
             with Horizontal(classes="rowhead"):
                 yield Label(f"inner support {i}", classes="rowtitle")
                 yield Select(
-                    [(k, k) for k in INNER_KINDS],
-                    value=_choice(sup.get("kind"), INNER_KINDS),
+                    [(k, k) for k in inner_kinds],
+                    value=_choice(sup.get("kind"), inner_kinds),
                     allow_blank=False,
                     id=f"inner-kind-{i}",
                     compact=True,
                 )
                 yield Button("remove", id=f"remove-inner-{i}", classes="small")
-            yield QuantityField(
-                f"supports.inner[{i}].at", "at", LENGTH, _text(sup.get("at")), position=True
-            )
+            yield _field(f"supports.inner[{i}].at", sup.get("at"))
         yield Button("+ inner support", id="add-inner", classes="small")
 
         yield Static("3  What it carries", classes="step")
-        yield QuantityField(
-            "member.added_mass",
-            "added mass",
-            MASS_PER_LENGTH,
-            _text(doc.get("member.added_mass")),
-            allow_zero=True,
-            optional=True,
-        )
-        yield QuantityField(
-            "member.axial_force",
-            "axial force",
-            FORCE,
-            _text(doc.get("member.axial_force")),
-            allow_zero=True,
-            allow_negative=True,
-            position=True,
-            optional=True,
-        )
-        for table in ("mass", "spring"):
+        yield _field("member.added_mass", doc.get("member.added_mass"))
+        yield _field("member.axial_force", doc.get("member.axial_force"))
+        for table in _ROWS:
             yield from self._rows(table)
         with Horizontal(classes="buttons"):
             yield Button("+ mass", id="add-mass", classes="small")
             yield Button("+ spring", id="add-spring", classes="small")
 
         yield Static("4  Assumed shape and checks", classes="step")
-        yield TextField(
+        yield _text_field(
             "estimate.shape",
-            "shape",
             _text(doc.get("estimate.shape")),
             "static (default), polynomial, trigonometric, or 1 - cos(pi*x/(2*L))",
         )
         ritz = doc.get("estimate.shapes")
-        yield TextField(
-            "estimate.shapes",
-            "Ritz functions",
-            "" if ritz is None else str(ritz),
-            "e.g. 4 (blank: none)",
+        yield _text_field(
+            "estimate.shapes", "" if ritz is None else str(ritz), "e.g. 4 (blank: none)"
         )
-        yield TextField("check.modes", "modes", _text(doc.get("check.modes")), "5 (default)")
+        modes = schema.entry("check.modes")
+        yield _text_field(
+            "check.modes", _text(doc.get("check.modes")), f"{modes.default} (default)"
+        )
 
     def _rows(self, table: str) -> ComposeResult:
         """The entries of ``[[mass]]`` or ``[[spring]]``, each with a remove button."""
@@ -193,28 +159,20 @@ class WorksheetForm(VerticalScroll):
             with Horizontal(classes="rowhead"):
                 yield Label(f"{table} {i}", classes="rowtitle")
                 yield Button("remove", id=f"remove-{table}-{i}", classes="small")
-            for name, label, dim, options in _ROW_FIELDS[table]:
-                value = _text(row.get(name))
-                yield QuantityField(f"{table}[{i}].{name}", label, dim, value, **options)
+            for name in schema.children(f"{table}[]"):
+                yield _field(f"{table}[{i}].{name}", row.get(name))
 
     def _material(self) -> ComposeResult:
         value = self.document.get("member.material")
-        names = list(materials.LIBRARY)
+        names = list(schema.entry("member.material").choices)
         current = _CUSTOM if isinstance(value, dict) else _choice(value, (*names, _CUSTOM))
         options = [(n, n) for n in names] + [(_CUSTOM, _CUSTOM)]
         with Horizontal(classes="pair"):
             yield Label("material", classes="pairlabel")
             yield Select(options, value=current, allow_blank=False, id="material", compact=True)
         if isinstance(value, dict):
-            yield QuantityField(
-                "member.material.youngs_modulus",
-                "Young's mod.",
-                PRESSURE,
-                _text(value.get("youngs_modulus")),
-            )
-            yield QuantityField(
-                "member.material.density", "density", DENSITY, _text(value.get("density"))
-            )
+            for name in ("youngs_modulus", "density"):
+                yield _field(f"member.material.{name}", value.get(name))
 
     def _section(
         self, key: str, section: Any, *, optional: bool = False, picker: bool = True
@@ -228,21 +186,18 @@ class WorksheetForm(VerticalScroll):
             with Horizontal(classes="pair"):
                 yield Label("section", classes="pairlabel")
                 yield Select(
-                    [(s, s) for s in SHAPES],
-                    value=_choice(shape, tuple(SHAPES)),
+                    [(s, s) for s in schema.SECTION_SHAPES],
+                    value=_choice(shape, tuple(schema.SECTION_SHAPES)),
                     allow_blank=False,
                     id="shape",
                     compact=True,
                 )
-        spec = SHAPES.get(shape)
+        spec = schema.SECTION_SHAPES.get(shape)
         if spec is None:
             return
-        for name, dim in spec.required:
-            yield QuantityField(f"{key}.{name}", _label(name), dim, _text(section.get(name)))
-        for name, dim in spec.optional:
-            yield QuantityField(
-                f"{key}.{name}", _label(name), dim, _text(section.get(name)), optional=True
-            )
+        required, optional_keys = spec
+        for name in (*required, *optional_keys):
+            yield _field(f"{key}.{name}", section.get(name), optional=name in optional_keys)
 
     # --- edits -----------------------------------------------------------------------------
 
@@ -250,14 +205,10 @@ class WorksheetForm(VerticalScroll):
     def _edited(self, event: QuantityField.Edited) -> None:
         event.stop()
         key, text = event.key, event.text
-        if key in ("check.modes", "estimate.shapes"):
+        entry = schema.find(key)
+        if entry is not None and entry.kind == schema.INTEGER:
             self._set_integer(key, text)
-        elif key == "estimate.shape":
-            if text.strip():
-                self.document.set(key, text)
-            else:
-                self.document.delete(key)
-        elif not text.strip() and _optional(key):
+        elif not text.strip() and _removable(entry):
             self.document.delete(key)
         else:
             self.document.set(key, text)
@@ -400,16 +351,12 @@ def _choice(value: Any, options: tuple[str, ...]) -> str:
     return value if isinstance(value, str) and value in options else options[0]
 
 
-def _optional(key: str) -> bool:
-    last = key.rsplit(".", 1)[-1]
-    return last in (
-        "added_mass",
-        "axial_force",
-        "rotary_inertia",
-        "stiffness",
-        "rotational_stiffness",
-        "depth",
-    )
+def _removable(entry: schema.Entry | None) -> bool:
+    """A blank field removes its key where the worksheet may leave it out: an optional
+    quantity, or text with a default of its own (a blank title stays a blank title)."""
+    if entry is None or entry.required:
+        return False
+    return entry.kind == schema.QUANTITY or entry.default not in (None, "")
 
 
 def _end(doc: Document) -> str:
