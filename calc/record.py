@@ -421,20 +421,18 @@ def save_record(
         Keyed ``"file"`` where the file cannot be read or written, or changed meanwhile;
         the file is then untouched.
     """
-    from beamtone.calc.worksheet import write_atomic
+    from beamtone.calc.files import read_limited
+    from beamtone.calc.worksheet import MAX_BYTES, write_atomic
 
     target = Path(path)
-    try:
-        raw = target.read_bytes()
-    except OSError as exc:
-        raise InputError("file", str(target), "a worksheet you may read", exc.strerror) from None
+    raw = read_limited(target, MAX_BYTES)
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError:
         raise InputError("file", str(target), "a TOML text file in UTF-8") from None
     bom = "\ufeff" if text.startswith("\ufeff") else ""
     record = build_record(analysis, elements=elements, margins=margins)
-    write_atomic(target, bom + with_record(text.removeprefix(bom), record))
+    write_atomic(target, bom + with_record(text.removeprefix(bom), record), expected=raw)
     return record
 
 
