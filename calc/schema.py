@@ -340,6 +340,7 @@ def _entries() -> dict[str, Entry]:
 
 
 _INDEX = re.compile(r"\[\d+\]")
+_LAST_INDEX = re.compile(r"\[\d+\]$")
 
 
 def pattern(key: str) -> str:
@@ -445,36 +446,44 @@ class InputRow:
 
 
 def input_rows(data: dict[str, Any]) -> list[InputRow]:
-    """The inputs table of a worksheet: every key written, with its SI value where a quantity.
+    """The inputs table of a worksheet: every entry written, with its SI value where a quantity.
 
-    Tables are walked in file order; choices, numbers and text appear as written.  The
-    ``[record]`` table is left out (it holds results, not inputs).
-
-    Raises
-    ------
-    InputError
-        For a quantity that does not parse (load the worksheet first to avoid it).
+    Tables are walked in file order; choices, numbers and text appear as written (``true`` /
+    ``false`` for booleans; a list's items each on a row of their own, ``estimate.shapes[0]``).
+    The ``[record]`` table is left out (it holds results, not inputs).  A quantity that does not
+    parse (a worksheet that was not loaded first) has no SI value.
     """
     rows: list[InputRow] = []
 
-    def walk(node: Any, prefix: str) -> None:
+    def add(key: str, value: Any) -> None:
+        found = find(key) or find(_LAST_INDEX.sub("", key))  # a list's item: its list's entry
+        label = found.label if found is not None else key.rsplit(".", 1)[-1]
+        written = ("true" if value else "false") if isinstance(value, bool) else str(value)
+        if found is not None and found.kind == QUANTITY and isinstance(value, str):
+            assert found.dimension is not None
+            try:
+                si: float | None = found.parse(value, key)
+            except InputError:
+                si = None
+            rows.append(InputRow(key, label, written, si, found.dimension.si_unit))
+        else:
+            rows.append(InputRow(key, label, written, None, ""))
+
+    def walk(node: dict[str, Any], prefix: str) -> None:
         for name, value in node.items():
             key = f"{prefix}.{name}" if prefix else name
-            found = find(key)
-            if found is None or found.pattern == "record":
+            if key == "record":
                 continue
             if isinstance(value, dict):  # a table, or an inline material
                 walk(value, key)
-            elif isinstance(value, list) and found.kind == TABLES:
+            elif isinstance(value, list) and value and all(isinstance(v, dict) for v in value):
                 for i, item in enumerate(value):
-                    if isinstance(item, dict):
-                        walk(item, f"{key}[{i}]")
-            elif found.kind == QUANTITY:
-                assert found.dimension is not None
-                rows.append(InputRow(key, found.label, str(value), found.parse(value, key),
-                                     found.dimension.si_unit))  # fmt: skip
+                    walk(item, f"{key}[{i}]")
+            elif isinstance(value, list):
+                for i, item in enumerate(value):
+                    add(f"{key}[{i}]", item)
             else:
-                rows.append(InputRow(key, found.label, str(value), None, ""))
+                add(key, value)
 
     walk(data, "")
     return rows

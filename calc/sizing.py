@@ -123,27 +123,18 @@ class Variation:
         entry.check(value, self.key, self.text(value))
         parts = key_path(self.key)
         head, name = parts[0], parts[-1]
-        if head == "mass":
+        if head in ("mass", "spring"):  # model fields are named as the worksheet's keys
             i = int(parts[1])
-            old = member.masses[i]
-            fields = {"at": old.at, "mass": old.mass, "rotary_inertia": old.rotary_inertia}
-            fields[str(name)] = value
-            written = self.text(value) if name == "mass" else self._written("mass", i, "mass")
-            new = point_mass(*fields.values(), f"mass[{i}]", written)
-            masses = (*member.masses[:i], new, *member.masses[i + 1 :])
-            return replace(member, masses=masses)
-        if head == "spring":
-            i = int(parts[1])
-            old_spring = member.springs[i]
-            fields = {"at": old_spring.at, "stiffness": old_spring.stiffness,
-                      "rotational_stiffness": old_spring.rotational_stiffness}  # fmt: skip
-            fields[str(name)] = value
-            written = (
-                self.text(value) if name == "stiffness" else self._written("spring", i, "stiffness")
-            )
-            new_spring = spring(*fields.values(), f"spring[{i}]", written)
-            springs = (*member.springs[:i], new_spring, *member.springs[i + 1 :])
-            return replace(member, springs=springs)
+            rows = member.masses if head == "mass" else member.springs
+            new = replace(rows[i], **{str(name): value})
+            check = "mass" if head == "mass" else "stiffness"  # the key its message names
+            written = self.text(value) if name == check else self._written(head, i, check)
+            if head == "mass":
+                point_mass(new.at, new.mass, new.rotary_inertia, f"mass[{i}]", written)
+            else:
+                spring(new.at, new.stiffness, new.rotational_stiffness, f"spring[{i}]", written)
+            rows = (*rows[:i], new, *rows[i + 1 :])
+            return replace(member, **{"masses" if head == "mass" else "springs": rows})
         if head == "supports":
             i = int(parts[2])
             inner = member.inner_supports
