@@ -24,6 +24,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.analysis import Analysis
     from beamtone.calc.record import Verification
     from beamtone.calc.sizing import MarginCheck
+    from beamtone.calc.worksheet import Worksheet
 
 __all__ = [
     "FIGURE_MODES",
@@ -42,6 +43,7 @@ __all__ = [
     "inputs_rows",
     "mode_shapes",
     "number",
+    "report_data",
 ]
 
 FIGURE_MODES = 3
@@ -187,11 +189,14 @@ class Report:
     sections : tuple of Section
     shapes : ModeShapes
         The data of the mode-shape figure.
+    verification : Verification or None
+        The outcome of verifying the worksheet's stored record, where it has one.
     """
 
     title: str
     sections: tuple[Section, ...]
     shapes: ModeShapes
+    verification: Verification | None = None
 
 
 # --- the mode shapes -----------------------------------------------------------------------------
@@ -248,13 +253,9 @@ _ELEMENT_FACTORS = (
 def _element_matrices(h: float) -> tuple[Any, Any, Any]:
     """Stiffness, geometric stiffness (unit tension) and mass of one element of length ``h``
     with unit EI and unit mass per length, in unscaled DOFs (w, theta, w, theta)."""
-    import numpy as np
+    from beamtone.calc.fe import element_matrices
 
-    from beamtone.calc import fe
-
-    k, g, m = fe._element_matrices(np.array([h]), np.array([1.0]), np.array([1.0]), 1.0, True)
-    assert g is not None
-    return k[0], g[0], m[0]
+    return element_matrices(h, 1.0, 1.0, 1.0)
 
 
 def _term(coefficient: float, power: int) -> str:
@@ -359,7 +360,72 @@ def build(
         Section("Caution", (Paragraph(caution),)),
         Section("References", _references(analysis, margins)),
     ]
-    return Report(title, tuple(sections), mode_shapes(analysis))
+    return Report(title, tuple(sections), mode_shapes(analysis), verification)
+
+
+def report_data(
+    sheet: Worksheet,
+    *,
+    modes: int | None = None,
+    elements: int | None = None,
+    excitation: tuple[float, tuple[int, ...], float] | None = None,
+    source: str | None = None,
+    caution: str = CAUTION,
+    now: _dt.datetime | None = None,
+) -> Report:
+    """Solve a worksheet and return the content of its calculation record.
+
+    Where the worksheet has a stored ``[record]``, it is solved with the record's mode count
+    and mesh (unless ``modes`` or ``elements`` say otherwise) and the record is verified.
+
+    Parameters
+    ----------
+    sheet : Worksheet
+    modes : int, optional
+        Overrides the worksheet's (and its record's) mode count.
+    elements : int, optional
+        Forces the finite-element mesh.
+    excitation : (float [Hz], tuple of int, float [-]), optional
+        Excitation frequency, the orders to check and the band half-width as a fraction:
+        adds the separation margins of every mode.
+    source : str, optional
+        The worksheet's name as the reader should see it.
+    caution : str
+    now : datetime, optional
+
+    Returns
+    -------
+    Report
+
+    Raises
+    ------
+    InputError
+        For a worksheet that cannot be solved and for a malformed record.
+    """
+    from beamtone.calc import record
+    from beamtone.calc.analysis import analyse
+
+    stored = record.read_record(sheet)
+    as_recorded = stored is not None and modes is None and elements is None
+    if stored is not None and as_recorded:
+        modes, elements = stored.modes, stored.elements
+    analysis = analyse(sheet, modes, elements)
+    check = None
+    if excitation is not None:
+        from beamtone.calc.sizing import margins
+
+        check = margins(analysis.modes.frequencies_hz, *excitation)
+    verification = None
+    if stored is not None:
+        verification = record.verify(sheet, analysis if as_recorded else None)
+    return build(
+        analysis,
+        caution=caution,
+        source=source,
+        margins=check,
+        verification=verification,
+        now=now,
+    )
 
 
 def _record_state(verification: Verification | None) -> str:

@@ -14,6 +14,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, replace
 from fractions import Fraction
+from typing import TYPE_CHECKING
 
 from beamtone.calc.errors import InputError
 from beamtone.calc.groups import formula
@@ -21,16 +22,22 @@ from beamtone.calc.materials import Material
 from beamtone.calc.model import InnerSupport, Member, PointMass, Segment, Spring
 from beamtone.calc.sections import Section
 
+if TYPE_CHECKING:  # pragma: no cover
+    from beamtone.calc.worksheet import Worksheet
+
 __all__ = [
     "MemberGroup",
     "MemberGroups",
     "Similitude",
     "MasterCurve",
+    "WorksheetGroups",
     "member_groups",
     "nondimensional",
     "compare",
     "master_curve",
     "variables_with_units",
+    "worksheet_groups",
+    "worksheet_master_curve",
 ]
 
 # Dimensions (mass, length, time) of the variables a member can have.
@@ -423,3 +430,78 @@ def _parse_name(name: str) -> tuple[str, int]:
     if name == "P":
         return "P", 0
     raise InputError("--sweep", name, "a group of a member property, attachment or load")
+
+
+# --- a worksheet's groups ------------------------------------------------------------------------
+
+MASTER_CURVE_MODES = 3
+"""At most this many frequency groups in a worksheet's master curve."""
+
+
+@dataclass(frozen=True)
+class WorksheetGroups:
+    """A worksheet's member in groups: what ``beamtone groups FILE`` shows.
+
+    Attributes
+    ----------
+    title : str
+        The worksheet's title.
+    groups : MemberGroups
+        The member's groups, with the frequency groups of its finite-element modes.
+    variables : tuple of (str, str, float)
+        (name, SI unit, value) of every governing variable, repeating ones first.
+    repeating : tuple of str
+        The repeating variables: L, EI and m (of the first segment).
+    like : Similitude or None
+        The comparison with another worksheet's member, where one was given.
+    """
+
+    title: str
+    groups: MemberGroups
+    variables: tuple[tuple[str, str, float], ...]
+    repeating: tuple[str, ...]
+    like: Similitude | None
+
+
+def worksheet_groups(sheet: Worksheet, like: Worksheet | None = None) -> WorksheetGroups:
+    """The groups of a worksheet's member and of its natural frequencies.
+
+    Parameters
+    ----------
+    sheet : Worksheet
+        Solved for its ``check.modes`` modes (automatic mesh).
+    like : Worksheet, optional
+        Another worksheet: whether its member is similar, and its frequencies predicted from
+        this one's where it is.
+
+    Returns
+    -------
+    WorksheetGroups
+    """
+    from beamtone.calc import fe
+
+    member = sheet.member
+    result = fe.solve(member, sheet.modes)
+    groups = member_groups(member, [m.omega for m in result.modes])
+    similitude = None
+    if like is not None:
+        similitude = compare(member, like.member, tuple(result.frequencies_hz))
+    return WorksheetGroups(
+        title=sheet.title,
+        groups=groups,
+        variables=tuple(variables_with_units(member)),
+        repeating=("L", "EI", "m"),
+        like=similitude,
+    )
+
+
+def worksheet_master_curve(
+    sheet: Worksheet, group: str, start: float, stop: float, points: int = 21
+) -> MasterCurve:
+    """A worksheet member's master curve: the first frequency groups (up to
+    :data:`MASTER_CURVE_MODES`, at most the worksheet's ``check.modes``) against one group.
+
+    See :func:`master_curve` for the parameters.
+    """
+    modes = min(sheet.modes, MASTER_CURVE_MODES)
+    return master_curve(sheet.member, group, start, stop, points, modes)

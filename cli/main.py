@@ -1,8 +1,8 @@
 """The ``beamtone`` command line: argument parsing and the one catch-all.
 
-The commands are thin: they load a worksheet through ``calc.worksheet``, call
-``calc`` and print what it returns.  Bad input exits with status 2 and one
-message on stderr; nothing the user wrote is modified.
+The commands are thin: they load a worksheet and call the computation library's front door
+(``beamtone.calc``), have ``beamtone.render`` turn what it returns into text, and print it.
+Bad input exits with status 2 and one message on stderr; nothing the user wrote is modified.
 """
 
 from __future__ import annotations
@@ -188,9 +188,9 @@ def _finite_float(what: str) -> Callable[[str], float]:
 
 
 def _solve(args: argparse.Namespace) -> int:
-    from beamtone.calc.analysis import analyse
-    from beamtone.calc.worksheet import load
-    from beamtone.cli import output
+    from beamtone.calc import analyse, load
+    from beamtone.cli.output import write_json
+    from beamtone.render.text import solve_json, solve_text
 
     analysis = analyse(load(args.file), args.modes, args.elements)
     note = None
@@ -199,9 +199,9 @@ def _solve(args: argparse.Namespace) -> int:
 
         note = record_cmd.store(args.file, analysis, args.elements)
     if args.json:
-        output.write_json(output.solve_json(analysis))
+        write_json(solve_json(analysis))
     else:
-        sys.stdout.write(output.solve_text(analysis))
+        sys.stdout.write(solve_text(analysis))
     if note:
         (sys.stderr if args.json else sys.stdout).write(f"{note}\n")
     return EXIT_OK

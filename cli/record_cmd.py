@@ -11,14 +11,13 @@ import contextlib
 import os
 import sys
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
 from beamtone.calc.errors import InputError
-from beamtone.cli.output import CAUTION, write_json
+from beamtone.cli.output import write_json
 
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.analysis import Analysis
-    from beamtone.calc.record import Comparison, Verification
 
 __all__ = ["store", "verify", "report"]
 
@@ -46,6 +45,7 @@ def verify(args: argparse.Namespace) -> int:
     """Run ``beamtone verify``: 0 when the record reproduces, 1 when not or when there is none."""
     from beamtone.calc import record
     from beamtone.calc.worksheet import load
+    from beamtone.render.verify import verify_json, verify_text
 
     sheet = load(args.file)
     result = record.verify(sheet)
@@ -63,95 +63,10 @@ def verify(args: argparse.Namespace) -> int:
             sys.stdout.write(f"beamtone verify: {message}\n")
         return EXIT_FAILED
     if args.json:
-        write_json(_verify_json(result))
+        write_json(verify_json(result))
     else:
-        sys.stdout.write(_verify_text(sheet.title, result))
+        sys.stdout.write(verify_text(sheet.title, result))
     return EXIT_OK if result.passed else EXIT_FAILED
-
-
-def _show(value: object) -> str:
-    if value is None:
-        return "(absent)"
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, float):
-        return f"{value:.12g}"
-    return str(value)
-
-
-def _verify_text(title: str, result: Verification) -> str:
-    rec = result.record
-    lines = [f"beamtone verify: {title}" if title else "beamtone verify", ""]
-    lines.append(
-        f"  record    written {rec.written} with beamtone {rec.version}; "
-        f"verified with beamtone {result.version_now}"
-    )
-    if result.inputs_unchanged:
-        lines.append(f"  inputs    unchanged since the record (sha256 {rec.inputs_sha256[:16]}...)")
-    else:
-        lines.append(
-            f"  inputs    CHANGED since the record was written on {rec.written} "
-            f"(sha256 stored {rec.inputs_sha256[:16]}..., now {result.digest_now[:16]}...)"
-        )
-    lines.append("")
-    rows = [("quantity", "stored", "now", "rel. diff", "tolerance", "")]
-    rows += [_row(c) for c in result.comparisons]
-    widths = [max(len(r[i]) for r in rows) for i in range(6)]
-    for r in rows:
-        cells = [r[0].ljust(widths[0])] + [r[i].rjust(widths[i]) for i in range(1, 5)] + [r[5]]
-        lines.append(("  " + "   ".join(cells)).rstrip())
-    lines.append("")
-    verdict = "VERIFIED" if result.passed else "NOT VERIFIED"
-    lines.append(f"  {verdict}: {result.message}")
-    if result.failures:
-        lines.append("  differences:")
-        for c in result.failures:
-            lines.append(
-                f"  - {c.quantity} (record.{c.key}): stored {_show(c.stored)}, now "
-                f"{_show(c.now)}"
-                + (f", relative difference {c.relative:.2e}" if c.relative is not None else "")
-            )
-    lines += ["", CAUTION]
-    return "\n".join(lines) + "\n"
-
-
-def _row(c: Comparison) -> tuple[str, str, str, str, str, str]:
-    quantity = f"{c.quantity} [{c.unit}]" if c.unit else c.quantity
-    rel = "" if c.relative is None else ("0" if c.relative == 0 else f"{c.relative:.1e}")
-    return (quantity, _show(c.stored), _show(c.now), rel, c.rule, "ok" if c.ok else "DIFFERS")
-
-
-def _verify_json(result: Verification) -> dict[str, Any]:
-    rec = result.record
-    return {
-        "verified": result.passed,
-        "inputs_unchanged": result.inputs_unchanged,
-        "reproduced": result.reproduced,
-        "message": result.message,
-        "record": {
-            "version": rec.version,
-            "written": rec.written,
-            "inputs_sha256": rec.inputs_sha256,
-            "modes": rec.modes,
-            "elements": rec.elements,
-        },
-        "inputs_sha256_now": result.digest_now,
-        "version_now": result.version_now,
-        "comparisons": [
-            {
-                "quantity": c.quantity,
-                "key": f"record.{c.key}",
-                "unit": c.unit,
-                "stored": c.stored,
-                "now": c.now,
-                "relative_difference": c.relative,
-                "tolerance": c.tolerance,
-                "rule": c.rule,
-                "ok": c.ok,
-            }
-            for c in result.comparisons
-        ],
-    }
 
 
 # --- report --------------------------------------------------------------------------------------
@@ -214,10 +129,9 @@ def _excitation(args: argparse.Namespace) -> tuple[float, tuple[int, ...], float
 
 def report(args: argparse.Namespace) -> int:
     """Run ``beamtone report``: write the calculation record (Markdown or one HTML file)."""
-    from beamtone.calc import record
-    from beamtone.calc.analysis import analyse
+    from beamtone.calc.report import report_data
     from beamtone.calc.worksheet import load
-    from beamtone.render import report as document
+    from beamtone.render.report import render
 
     worksheet = Path(args.file)
     sheet = load(worksheet)
@@ -226,25 +140,14 @@ def report(args: argparse.Namespace) -> int:
     for target in (out, figure):
         if _same(target, worksheet):
             raise InputError("-o", str(target), "a file other than the worksheet itself")
-    excitation = _excitation(args)
-    stored = record.read_record(sheet)
-    modes, elements = args.modes, args.elements
-    as_recorded = stored is not None and modes is None and elements is None
-    if as_recorded:
-        assert stored is not None
-        modes, elements = stored.modes, stored.elements
-    analysis = analyse(sheet, modes, elements)
-    check = None
-    if excitation is not None:
-        from beamtone.calc.sizing import margins
-
-        check = margins(analysis.modes.frequencies_hz, *excitation)
-    verification = None
-    if stored is not None:
-        verification = record.verify(sheet, analysis if as_recorded else None)
-    doc = document.build(
-        analysis, caution=CAUTION, source=args.file, margins=check, verification=verification
+    content = report_data(
+        sheet,
+        modes=args.modes,
+        elements=args.elements,
+        excitation=_excitation(args),
+        source=args.file,
     )
+    doc = render(content)
     if args.html:
         files = [(out, doc.html())]
     else:
@@ -258,6 +161,7 @@ def report(args: argparse.Namespace) -> int:
     sys.stdout.write(f"report written: {', '.join(written)}\n")
     if doc.figure_svg is None:
         sys.stdout.write(f"note: {doc.figure_note}\n")
+    verification = content.verification
     if verification is not None and not verification.passed:
         sys.stdout.write(f"note: the stored record does not verify: {verification.message}\n")
     return EXIT_OK
