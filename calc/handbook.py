@@ -23,7 +23,9 @@ End conditions (trade terms):
     Bending moment and shear force zero.
 
 Every root is bracketed by a sign change of an overflow-safe form of its characteristic equation
-and then refined with Brent's method to an absolute accuracy better than ``1e-12`` in ``lambda``.
+and then refined by our own bracketed regula falsi (the Anderson-Bjorck step, with bisection
+where that step would not shrink the bracket enough) to an absolute accuracy better than
+``1e-12`` in ``lambda``.
 
 References
 ----------
@@ -62,8 +64,8 @@ END_CONDITIONS: tuple[str, ...] = ("clamped", "pinned", "guided", "free")
 
 _SPAN_END_CONDITIONS: tuple[str, ...] = ("pinned", "clamped")
 
-# Brent's method settings. ``rtol`` is the smallest value scipy accepts; with ``xtol`` it bounds
-# the error of a root near lambda = 160 (mode 50) to well under 1e-12.
+# Settings of the bracketed refinement (_refine): the bracket is shrunk to ``xtol + rtol |x|``,
+# which bounds the error of a root near lambda = 160 (mode 50) to well under 1e-12.
 _XTOL = 1e-14
 _RTOL = 4.0 * np.finfo(float).eps
 _MAXITER = 200

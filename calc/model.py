@@ -17,6 +17,8 @@ from beamtone.calc.materials import Material
 from beamtone.calc.sections import Section
 
 __all__ = [
+    "HOLDS",
+    "POSITION_TOLERANCE",
     "END_KINDS",
     "INNER_KINDS",
     "Segment",
@@ -24,13 +26,18 @@ __all__ = [
     "Spring",
     "InnerSupport",
     "Member",
+    "Hold",
+    "holds",
+    "supports",
     "rigid_body_count",
+    "rigid_motion_rows",
+    "rotation_free",
 ]
 
 END_KINDS = ("clamped", "pinned", "guided", "free")
 INNER_KINDS = ("pinned", "clamped", "guided")
 
-# What each support kind holds: (deflection, slope).
+# What each support kind holds: (deflection, slope).  Read it through ``holds``.
 HOLDS = {
     "clamped": (True, True),
     "pinned": (True, False),
@@ -216,6 +223,103 @@ def _check_position(key: str, at: float, L: float, tol: float) -> None:
         raise InputError(key, f"{at:.6g} m", f"a position on the member, from 0 m to {L:.6g} m")
 
 
+@dataclass(frozen=True)
+class Hold:
+    """What one restraint holds of the rigid motions w = a + b*x.
+
+    Attributes
+    ----------
+    at : float or None
+        Position [m]; None for the axial force, whose geometric stiffness holds the slope
+        along the whole member.
+    deflection : bool
+        It holds the deflection at ``at`` (a rigid support, or a translational spring).
+    slope : bool
+        It holds the slope (a rigid support, a rotational spring, or the axial force).
+    source : str
+        ``"support"``, ``"spring"`` or ``"axial force"``.
+    """
+
+    at: float | None
+    deflection: bool
+    slope: bool
+    source: str
+
+
+def supports(member: Member) -> list[tuple[float, str]]:
+    """Every rigid support as (position [m], kind): the two ends, then the inner supports."""
+    out = [(0.0, member.left), (member.length, member.right)]
+    return out + [(s.at, s.kind) for s in member.inner_supports]
+
+
+def holds(member: Member, *, springs: bool = True, axial: bool = True) -> list[Hold]:
+    """What the supports (and the springs and the axial force) hold: the one place that says so.
+
+    Parameters
+    ----------
+    member : Member
+    springs : bool
+        Include the grounded springs (a translational spring holds the deflection at its
+        position, a rotational spring holds the slope).
+    axial : bool
+        Include the axial force (it holds the slope through its geometric stiffness).
+
+    Returns
+    -------
+    list of Hold
+        Supports in the order of :func:`supports`, then springs, then the axial force; entries
+        that hold nothing (a free end, a spring of zero stiffness) are left out.
+    """
+    out: list[Hold] = []
+    for x, kind in supports(member):
+        holds_w, holds_slope = HOLDS[kind]
+        if holds_w or holds_slope:
+            out.append(Hold(x, holds_w, holds_slope, "support"))
+    if springs:
+        for s in member.springs:
+            w, slope = s.stiffness > 0.0, s.rotational_stiffness > 0.0
+            if w or slope:
+                out.append(Hold(s.at, w, slope, "spring"))
+    if axial and member.axial_force != 0.0:
+        out.append(Hold(None, False, True, "axial force"))
+    return out
+
+
+def rigid_motion_rows(member: Member) -> list[list[float]]:
+    """Rows of the conditions the restraints put on (a, b) of the rigid motion w = a + b*x/L.
+
+    A held deflection at x gives [1, x/L]; a held slope gives [0, 1].  The null space of
+    these rows is the rigid motion the member has left.
+    """
+    L = member.length
+    rows: list[list[float]] = []
+    for h in holds(member):
+        if h.deflection:
+            rows.append([1.0, (h.at or 0.0) / L])
+        if h.slope:
+            rows.append([0.0, 1.0])
+    return rows
+
+
+def _deflection_points(member: Member, restraints: list[Hold]) -> list[float]:
+    """Distinct positions [m] where the deflection is held (closer than the tolerance: one)."""
+    tol = POSITION_TOLERANCE * member.length
+    distinct: list[float] = []
+    for x in sorted(h.at for h in restraints if h.deflection and h.at is not None):
+        if not distinct or x - distinct[-1] > tol:
+            distinct.append(x)
+    return distinct
+
+
+def rotation_free(member: Member) -> bool:
+    """True where the restraints leave a rigid rotation free (nothing holds a slope, and the
+    deflection is held at one place at most)."""
+    restraints = holds(member)
+    if any(h.slope for h in restraints):
+        return False
+    return len(_deflection_points(member, restraints)) <= 1
+
+
 def rigid_body_count(member: Member) -> int:
     """Number of rigid-body modes, decided from the supports and springs themselves.
 
@@ -234,25 +338,8 @@ def rigid_body_count(member: Member) -> int:
     int
         0, 1 or 2.
     """
-    L = member.length
-    tol = POSITION_TOLERANCE * L
-    deflection_at: list[float] = []
-    slope_held = member.axial_force != 0.0
-    supports = [(0.0, member.left), (L, member.right)]
-    supports += [(s.at, s.kind) for s in member.inner_supports]
-    for x, kind in supports:
-        holds_w, holds_slope = HOLDS[kind]
-        if holds_w:
-            deflection_at.append(x)
-        slope_held = slope_held or holds_slope
-    for s in member.springs:
-        if s.stiffness > 0.0:
-            deflection_at.append(s.at)
-        if s.rotational_stiffness > 0.0:
-            slope_held = True
-    distinct: list[float] = []
-    for x in sorted(deflection_at):
-        if not distinct or x - distinct[-1] > tol:
-            distinct.append(x)
+    restraints = holds(member)
+    slope_held = any(h.slope for h in restraints)
+    distinct = _deflection_points(member, restraints)
     rank = min(2, (1 if slope_held else 0) + min(len(distinct), 2 if not slope_held else 1))
     return 2 - rank

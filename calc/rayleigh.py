@@ -24,7 +24,14 @@ import scipy.linalg
 
 from beamtone.calc import fe
 from beamtone.calc.errors import InputError
-from beamtone.calc.model import HOLDS, POSITION_TOLERANCE, Member, rigid_body_count
+from beamtone.calc.model import (
+    HOLDS,
+    POSITION_TOLERANCE,
+    Member,
+    rigid_body_count,
+    rigid_motion_rows,
+    supports,
+)
 
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.expressions import Formula
@@ -270,7 +277,7 @@ def _rigid_trials(member: Member) -> list[Trial]:
     rigid = rigid_body_count(member)
     if rigid == 0:
         return []
-    rows = _restraint_rows(member)
+    rows = rigid_motion_rows(member)
     if rows:
         _, _, vt = np.linalg.svd(np.array(rows))
         null = vt[-rigid:]
@@ -287,30 +294,6 @@ def _rigid_trials(member: Member) -> list[Trial]:
     return out
 
 
-def _restraint_rows(member: Member) -> list[list[float]]:
-    L = member.length
-    rows: list[list[float]] = []
-    for x, kind in _supports(member):
-        holds_w, holds_slope = HOLDS[kind]
-        if holds_w:
-            rows.append([1.0, x / L])
-        if holds_slope:
-            rows.append([0.0, 1.0])
-    for sp in member.springs:
-        if sp.stiffness > 0.0:
-            rows.append([1.0, sp.at / L])
-        if sp.rotational_stiffness > 0.0:
-            rows.append([0.0, 1.0])
-    if member.axial_force != 0.0:
-        rows.append([0.0, 1.0])
-    return rows
-
-
-def _supports(member: Member) -> list[tuple[float, str]]:
-    out = [(0.0, member.left), (member.length, member.right)]
-    return out + [(s.at, s.kind) for s in member.inner_supports]
-
-
 # --- energies ------------------------------------------------------------------------------------
 
 
@@ -323,7 +306,7 @@ class _Quadrature:
 
 
 def _quadrature(member: Member, subdivisions: int = _SUBDIVISIONS) -> _Quadrature:
-    stations = fe._stations(member)
+    stations = fe.stations(member)
     nodes, weights = np.polynomial.legendre.leggauss(_GAUSS_POINTS)
     xs, ws, segs = [], [], []
     for a, b in zip(stations[:-1], stations[1:], strict=True):
@@ -450,7 +433,7 @@ def admissibility(
         return math.isfinite(v) and abs(v) <= 1e-10 * scale
 
     notes: list[str] = []
-    for where, kind in _supports(member):
+    for where, kind in supports(member):
         holds_w, holds_slope = HOLDS[kind]
         end: str | None = None
         if where == 0.0:
@@ -614,7 +597,7 @@ def static_shape(member: Member, elements: int = 96) -> tuple[fe.Mesh, fe.System
     label = "deflection under the member's own weight and the weights it carries"
     if rigid == 0:
         return mesh, system, _solve_static(system.K, weight), label
-    R = fe._rigid_vectors(member, mesh, system)
+    R = fe.rigid_vectors(member, mesh, system)
     MR = system.M @ R
     bordered = scipy.sparse.bmat([[system.K, scipy.sparse.csr_matrix(MR)], [MR.T, None]]).tocsc()
     full = np.zeros(system.n_full)
@@ -629,7 +612,7 @@ def static_shape(member: Member, elements: int = 96) -> tuple[fe.Mesh, fe.System
         if np.linalg.norm(flex) <= 1e-6 * np.linalg.norm(load):
             continue
         u = _solve_static(bordered, np.concatenate([flex, np.zeros(rigid)]))[: len(flex)]
-        lam = float(fe._strain_energy_quotient(member, mesh, system, u[:, None])[0])
+        lam = float(fe.strain_energy_quotient(member, mesh, system, u[:, None])[0])
         if best is None or lam < best[0]:
             best = (lam, u, name)
     assert best is not None
@@ -654,7 +637,7 @@ def rayleigh_static(member: Member) -> RayleighEstimate:
     RayleighEstimate
     """
     mesh, system, u, label = static_shape(member)
-    lam = float(fe._strain_energy_quotient(member, mesh, system, u[:, None])[0])
+    lam = float(fe.strain_energy_quotient(member, mesh, system, u[:, None])[0])
     omega = math.sqrt(lam)
     return RayleighEstimate("static", None, omega, omega / (2.0 * math.pi), notes=(label,))
 
@@ -684,7 +667,7 @@ def polynomial_family(member: Member, count: int) -> list[Trial]:
     """
     L = member.length
     rows = []
-    for where, kind in _supports(member):
+    for where, kind in supports(member):
         holds_w, holds_slope = HOLDS[kind]
         t = 2.0 * where / L - 1.0
         if holds_w:
@@ -791,7 +774,7 @@ def dunkerley(member: Member) -> DunkerleyBound:
         )
     exact = member.axial_force == 0.0
     points, weights = np.polynomial.legendre.leggauss(4 if exact else 8)
-    stations = fe._stations(member)
+    stations = fe.stations(member)
     xs, ws = [], []
     pieces = 1 if exact else 8
     for a, b in zip(stations[:-1], stations[1:], strict=True):
@@ -815,7 +798,7 @@ def dunkerley(member: Member) -> DunkerleyBound:
             factors.append(w * m)
     s = system.scale
     for pm in member.masses:
-        node, e = fe._node_offset(mesh, pm.at)
+        node, e = mesh.carrier(pm.at)
         wdof, tdof = position.get(2 * node), position.get(2 * node + 1)
         translation = {k: v for k, v in ((wdof, 1.0), (tdof, e / s)) if k is not None and v}
         if pm.mass and translation:

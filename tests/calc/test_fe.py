@@ -559,7 +559,7 @@ def test_eigen_solvers_match_scipy_dense(left: str, right: str, elements: int) -
     """The subset and value-only paths against scipy.linalg.eigh of the whole spectrum."""
     member = uniform(left, right, masses=(PointMass(0.3, 0.1),))
     system = fe.assemble(member, fe.build_mesh(member, elements))
-    shift = -fe._shift_scale(member)
+    shift = -fe.shift_below(member)
     Kd, Md = system.K.toarray(), system.M.toarray()
     # the plain solve: the whole spectrum of the inverted problem by divide and conquer (the
     # direct form K x = lambda M x loses the lowest modes' relative accuracy on fine meshes)
@@ -567,7 +567,7 @@ def test_eigen_solvers_match_scipy_dense(left: str, right: str, elements: int) -
     exact = np.sort(1.0 / mu + shift)[:7]
     rigid = rigid_body_count(member)
     vals, vecs = fe.default_eigensolver(system.K, system.M, 7, shift)
-    only = fe._lowest_eigenvalues(system.K, system.M, 7, shift)
+    only = fe.lowest_eigenvalues(system.K, system.M, 7, shift)
     scale = exact[rigid]
     assert np.allclose(vals, exact, rtol=1e-9, atol=1e-9 * scale)
     assert np.allclose(only, exact, rtol=1e-9, atol=1e-9 * scale)
@@ -599,9 +599,31 @@ def test_sparse_solves_repeat_to_the_bit() -> None:
     masses = tuple(PointMass(0.05 + 0.09 * i, 0.05) for i in range(11))
     member = uniform("clamped", "free", masses=masses)
     first = fe.solve(member, 5)
-    assert first.degrees_of_freedom > fe._DENSE_LIMIT
+    assert first.degrees_of_freedom > fe.DENSE_LIMIT
     assert "ARPACK" in first.solver
     for _ in range(3):
         again = fe.solve(member, 5)
         assert np.array_equal(again.frequencies_hz, first.frequencies_hz)
         assert all(np.array_equal(a.w, b.w) for a, b in zip(again.modes, first.modes, strict=True))
+
+
+def test_the_solver_that_ran_names_itself() -> None:
+    """A supplied eigen solver is reported as such, never as the built-in dense path."""
+    member = uniform("clamped", "pinned", masses=(PointMass(0.4, 0.3),))
+    supplied = fe.solve(member, 3, eigensolver=dense_solver([]))
+    assert supplied.solver.startswith("supplied eigen solver")
+    assert "LAPACK" not in supplied.solver
+    small = fe.solve(member, 3, elements=20)
+    assert small.solver == fe.SOLVERS["dense"].name
+    assert fe.method_for(small.degrees_of_freedom, 3) == "dense"
+
+
+def test_public_element_matrices_are_the_textbook_ones() -> None:
+    """fe.element_matrices against the matrices typed out in _plain_assembly (Przemieniecki)."""
+    member = uniform("pinned", "pinned", axial_force=250.0)
+    mesh = fe.Mesh(np.array([0.0, 0.3]), np.array([0]), {0.0: 0, 0.3: 1})
+    K, M = _plain_assembly(member, mesh)
+    seg = member.segments[0]
+    k, g, m = fe.element_matrices(0.3, seg.bending_stiffness, seg.mass_per_length, 250.0)
+    assert np.allclose(k + g, K, rtol=1e-13, atol=1e-13 * abs(K).max())
+    assert np.allclose(m, M, rtol=1e-13, atol=1e-13 * abs(M).max())

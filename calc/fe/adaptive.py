@@ -1,0 +1,270 @@
+"""The adaptive solve: a mesh sized from a trial solve, compared with one twice as fine.
+
+Each reported mode carries an estimate of its error: Richardson's argument on the known h^4
+convergence of the eigenvalues of Hermite cubic elements (common practice) applied to the
+two meshes, or the round-off bound where that is larger.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Callable
+
+import numpy as np
+import scipy.sparse.linalg
+
+from beamtone.calc.errors import InputError
+from beamtone.calc.fe.assembly import assemble
+from beamtone.calc.fe.buckling import check_buckling
+from beamtone.calc.fe.checks import Solution, build_result, check_mass, check_system, wavenumber
+from beamtone.calc.fe.eigen import (
+    Eigensolver,
+    default_eigensolver,
+    lowest_eigenvalues,
+    solver_name,
+)
+from beamtone.calc.fe.energy import rigid_vectors, strain_energy_quotient
+from beamtone.calc.fe.mesh import Mesh, build_mesh
+from beamtone.calc.fe.result import FEResult
+from beamtone.calc.model import Member, rigid_body_count
+
+__all__ = ["ACCURACY", "solve", "shift_below", "solve_mesh"]
+
+ACCURACY = 1e-6
+"""Relative accuracy every reported natural frequency meets by default."""
+
+_EPS = np.finfo(float).eps
+_SAFETY = 2.0  # factor on the asymptotic Richardson estimate
+_ROUNDOFF_FACTOR = 10.0  # on eps * sqrt(lambda_max / lambda_i) (see _roundoff_estimate)
+_MAX_REFINEMENTS = 4
+_MIN_ELEMENTS = 16  # on the coarser mesh of the two compared
+_MAX_DOFS = 400_000
+
+
+def solve(
+    member: Member,
+    modes: int = 5,
+    *,
+    elements: int | None = None,
+    accuracy: float = ACCURACY,
+    eigensolver: Eigensolver | None = None,
+) -> FEResult:
+    """Natural frequencies and mode shapes of a member by finite elements.
+
+    Parameters
+    ----------
+    member : Member
+        The member, in SI.
+    modes : int
+        Number of flexible modes to report.
+    elements : int, optional
+        Force a mesh of about this many elements (nodes stay at every station);
+        by default the mesh is chosen to meet ``accuracy``.
+    accuracy : float
+        Relative accuracy target of every reported frequency [-].
+    eigensolver : callable, optional
+        Replacement eigen solver with the signature of :func:`default_eigensolver`.
+
+    Returns
+    -------
+    FEResult
+
+    Raises
+    ------
+    InputError
+        For compression at or beyond the buckling load, or a model with no
+        freedom or no mass to solve for.
+
+    Examples
+    --------
+    >>> from beamtone.calc.materials import LIBRARY
+    >>> from beamtone.calc.sections import build_section
+    >>> from beamtone.calc.model import Member, Segment
+    >>> sec = build_section("rectangle", {"width": 0.05, "depth": 0.01})
+    >>> beam = Member((Segment(1.0, LIBRARY["steel"], sec),), "clamped", "free")
+    >>> round(solve(beam, 1).modes[0].frequency_hz, 3)
+    8.154
+    """
+    if modes < 1:
+        raise InputError("check.modes", modes, "a whole number of modes, 1 or more")
+    solver = eigensolver or default_eigensolver
+    check_mass(member)
+    rigid = rigid_body_count(member)
+    check_buckling(member)
+    warnings: list[str] = []
+    shift = -shift_below(member)
+
+    if elements is not None:
+        fine_mesh = build_mesh(member, int(elements))
+        coarse = solve_mesh(member, fine_mesh, modes, rigid, shift, solver)
+        reported = coarse
+        check = solve_mesh(member, fine_mesh.refined(), modes, rigid, shift, solver)
+        _need_modes(len(reported.lam), modes)
+        disc = _SAFETY * 16.0 / 15.0 * np.abs(reported.omega - check.omega) / check.omega
+        lower = check
+    else:
+        trial_mesh = build_mesh(member, max(4 * modes + 8, 16))
+        omega = _trial_omega(member, trial_mesh, modes, rigid, shift, eigensolver)
+        coarse_mesh = build_mesh(member, _designed_size(member, omega, accuracy))
+        lower = solve_mesh(member, coarse_mesh, modes, rigid, shift, solver)
+        for _ in range(_MAX_REFINEMENTS):
+            _need_modes(len(lower.lam), modes)
+            if 4 * lower.system.K.shape[0] > _MAX_DOFS:
+                warnings.append(
+                    f"the mesh reached its size limit ({lower.mesh.elements} elements) "
+                    "before every mode met the accuracy target"
+                )
+                reported = lower
+                disc = np.full(modes, np.nan)
+                break
+            reported = solve_mesh(member, lower.mesh.refined(), modes, rigid, shift, solver)
+            disc = _SAFETY / 15.0 * np.abs(lower.omega - reported.omega) / reported.omega
+            if np.all(disc <= accuracy):
+                break
+            lower = reported
+        else:
+            warnings.append("some modes did not meet the accuracy target after refinement")
+
+    roundoff = _roundoff_estimate(reported)[:modes]
+    disc = disc[:modes]
+    # Finite elements converge from above; a finer mesh giving a higher frequency is round-off.
+    wrong_way = (lower.omega - reported.omega)[:modes] < -1e-12 * reported.omega[:modes]
+    if elements is not None:
+        wrong_way = (reported.omega - check.omega)[:modes] < -1e-12 * check.omega[:modes]
+    error = np.fmax(disc, roundoff)
+    # A forced mesh is an experiment: say whenever round-off dominates.  The automatic mesh
+    # only says so where round-off keeps a mode from its accuracy target.
+    limiting = (roundoff > disc) if elements is not None else (roundoff > disc) & (error > accuracy)
+    roundoff_dominated = bool(np.any(wrong_way | limiting))
+    if roundoff_dominated:
+        worst = int(np.argmax(np.where(wrong_way, np.inf, roundoff / np.maximum(disc, 1e-300))))
+        worst += 1
+        warnings.append(
+            f"round-off, not discretization, limits the accuracy (mode {worst}); "
+            "a coarser mesh (--elements) would not be less accurate"
+        )
+    if elements is not None and np.any(error > accuracy):
+        warnings.append(
+            f"the forced mesh of {reported.mesh.elements} elements leaves an estimated "
+            f"error of {float(np.max(error)):.1e}, above the {accuracy:.0e} target"
+        )
+    return build_result(member, reported, rigid, modes, error, roundoff_dominated, warnings)
+
+
+def _need_modes(available: int, modes: int) -> None:
+    if available < modes:
+        raise InputError(
+            "check.modes",
+            modes,
+            f"at most {available} modes for this model; ask for fewer or give --elements",
+        )
+
+
+def shift_below(member: Member) -> float:
+    """A positive number below the lowest flexible eigenvalue scale [rad^2/s^2].
+
+    The solver shifts by minus this value, so that K + value*M is definite even where the
+    member has rigid-body modes.
+    """
+    EI = min(s.bending_stiffness for s in member.segments)
+    m = max(s.mass_per_length for s in member.segments)
+    extra = sum(p.mass for p in member.masses)
+    L = member.length
+    return 0.1 * EI / ((m + extra / L) * L**4)
+
+
+def _designed_size(member: Member, omega: float, accuracy: float) -> Callable[[int], float]:
+    # Hermite cubic elements with consistent mass: relative frequency error about (kh)^4 / 1440
+    # for a uniform beam (h^4 convergence of the eigenvalues, common practice); aim for a tenth
+    # of the target on the coarser of the two meshes compared.
+    # At least _MIN_ELEMENTS over the member keeps the error estimate in its asymptotic range
+    # even for modes that barely bend it (a member bouncing on soft springs).
+    kh = (1440.0 * accuracy * 0.1 * 16.0) ** 0.25
+    k = wavenumber(member, omega)
+    longest = member.length / _MIN_ELEMENTS
+    return lambda seg: min(kh / max(k[seg], 1e-300), longest)
+
+
+def _roundoff_estimate(sol: Solution) -> np.ndarray:
+    # With eigenvalues taken from element strain energies (see strain_energy_quotient) the
+    # relative round-off of lambda_i stays near eps * sqrt(lambda_max / lambda_i); lambda_max is
+    # bounded by the largest element eigenvalue (element eigenvalue bound, common practice)
+    # plus what springs add.  The frequency error is half the eigenvalue error; the factor
+    # keeps the estimate above what is observed against exact roots.
+    return _ROUNDOFF_FACTOR * _EPS * np.sqrt(sol.system.lambda_max_bound / sol.lam)
+
+
+def _trial_omega(
+    member: Member, mesh: Mesh, modes: int, rigid: int, shift: float, solver: Eigensolver | None
+) -> float:
+    """Circular frequency [rad/s] of the highest wanted mode on a coarse trial mesh.
+
+    It only sizes the elements of the meshes that follow, whose two-mesh comparison decides
+    the accuracy; so eigenvalues alone are found, straight from the matrices.
+    """
+    if solver is not None:
+        return float(solve_mesh(member, mesh, modes, rigid, shift, solver).omega[-1])
+    system = assemble(member, mesh)
+    check_system(system)
+    n = system.K.shape[0]
+    want = min(modes + rigid, n)
+    if want - rigid < modes:  # the plain solve says what is wrong
+        sol = solve_mesh(member, mesh, modes, rigid, shift, default_eigensolver)
+        _need_modes(len(sol.lam), modes)
+    try:
+        lam = lowest_eigenvalues(system.K, system.M, want, shift)[rigid:]
+    except (np.linalg.LinAlgError, scipy.sparse.linalg.ArpackNoConvergence):
+        sol = solve_mesh(member, mesh, modes, rigid, shift, default_eigensolver)
+        return float(sol.omega[-1])
+    return math.sqrt(max(float(lam[-1]), 0.0))
+
+
+def solve_mesh(
+    member: Member, mesh: Mesh, count: int, rigid: int, shift: float, solver: Eigensolver
+) -> Solution:
+    """The lowest ``count`` flexible modes on one mesh.
+
+    Parameters
+    ----------
+    member : Member
+    mesh : Mesh
+    count : int
+        Flexible modes wanted.
+    rigid : int
+        Rigid-body modes of the member (solved for and set aside).
+    shift : float
+        Shift below the lowest eigenvalue [rad^2/s^2].
+    solver : Eigensolver
+
+    Returns
+    -------
+    Solution
+        Eigenvalues from the strain-energy quotient, ascending.
+    """
+    system = assemble(member, mesh)
+    check_system(system)
+    n = system.K.shape[0]
+    want = min(count + rigid, n)
+    if want - rigid < 1:
+        raise InputError(
+            "supports", None, "a member left with some freedom to vibrate; every DOF is held"
+        )
+    try:
+        found = solver(system.K, system.M, want, shift)
+    except np.linalg.LinAlgError:
+        raise InputError(
+            "member",
+            None,
+            "a model the eigen solver can factor; its matrices are numerically singular "
+            "(a massless part, or stiffnesses of wildly different size)",
+        ) from None
+    vals, vecs = found
+    flexible = vecs[:, rigid:]
+    if rigid:
+        # Purify: make the flexible vectors exactly mass-orthogonal to the exact rigid motions.
+        R = rigid_vectors(member, mesh, system)
+        flexible = flexible - R @ (R.T @ (system.M @ flexible))
+        flexible = flexible / np.sqrt(np.einsum("ij,ij->j", flexible, system.M @ flexible))
+    lam = strain_energy_quotient(member, mesh, system, flexible)
+    order = np.argsort(lam)
+    return Solution(lam[order], flexible[:, order], system, mesh, solver_name(solver, found))

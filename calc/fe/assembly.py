@@ -1,0 +1,248 @@
+"""Banded assembly of the stiffness and mass matrices, with the supports eliminated.
+
+The matrices are banded (three off-diagonals: w and theta of two neighbouring nodes); they
+are summed in band storage and the held degrees of freedom are eliminated while the
+compressed rows are built, so no general sparse assembly (sorting and summing duplicates)
+and no full-size matrix is ever formed.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.sparse
+
+from beamtone.calc.fe.elements import (
+    ELEMENT_LAMBDA_MAX,
+    GEOMETRIC_LAMBDA_MAX,
+    scaled_element_matrices,
+)
+from beamtone.calc.fe.mesh import Mesh
+from beamtone.calc.model import Member, holds
+
+__all__ = ["System", "assemble"]
+
+
+@dataclass(frozen=True)
+class System:
+    """Assembled matrices of a mesh, reduced to the free degrees of freedom.
+
+    ``K`` and ``M`` act on the free DOFs in scaled form: slopes are multiplied
+    by a reference length ``scale`` [m] so that all entries are of one size.
+    ``free`` maps free DOF index to the full DOF index (2*node for w, 2*node+1 for theta).
+
+    Attributes
+    ----------
+    K, M : scipy.sparse.csr_matrix
+        Stiffness (elastic plus geometric of the axial force) [N/m] and mass [kg].
+    Kg_unit : scipy.sparse.csr_matrix or None
+        Geometric stiffness of a unit tension [1/m], where asked for.
+    free : ndarray of int
+        Full DOF index of each free DOF.
+    n_full : int
+        Number of DOFs before the supports are eliminated.
+    scale : float
+        Slope scale [m].
+    influence_load : ndarray
+        M times the unit rigid translation, on the free DOFs [kg].
+    total_mass : float
+        Member plus point masses [kg].
+    lambda_max_bound : float
+        Upper bound on the largest eigenvalue [rad^2/s^2].
+    """
+
+    K: scipy.sparse.csr_matrix
+    M: scipy.sparse.csr_matrix
+    Kg_unit: scipy.sparse.csr_matrix | None
+    free: np.ndarray
+    n_full: int
+    scale: float
+    influence_load: np.ndarray
+    total_mass: float
+    lambda_max_bound: float
+
+    def full(self, vectors: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Nodal deflections and slopes (unscaled) of vectors on the free DOFs.
+
+        Parameters
+        ----------
+        vectors : ndarray, shape (free DOFs, k)
+
+        Returns
+        -------
+        w, theta : ndarray, shape (nodes, k)
+            Deflections and slopes [rad per unit of the vectors' deflection]; zero where held.
+        """
+        out = np.zeros((self.n_full, vectors.shape[1]))
+        out[self.free] = vectors
+        return out[0::2], out[1::2] / self.scale
+
+
+def _block(out: list[tuple[int, int, float]], j: int, a: float, e: float, b: float) -> None:
+    """Add a * (w + e theta)^2 + b theta^2 at node j (theta in scaled units)."""
+    w, t = 2 * j, 2 * j + 1
+    out += [(w, w, a), (w, t, a * e), (t, w, a * e), (t, t, a * e * e + b)]
+
+
+# Local (a, b) pairs of the upper triangle of a 4x4 element matrix, and their band offsets.
+_UPPER_A = np.array([a for a in range(4) for b in range(a, 4)])
+_UPPER_B = np.array([b for a in range(4) for b in range(a, 4)])
+_BAND = 3  # off-diagonals of the assembled matrices (w and theta of two neighbouring nodes)
+_OFFSETS = np.arange(-_BAND, _BAND + 1)
+
+
+def _triplets(points: list[tuple[int, int, float]]) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    rows = np.array([t[0] for t in points], dtype=int)
+    cols = np.array([t[1] for t in points], dtype=int)
+    return rows, cols, np.array([t[2] for t in points], dtype=float)
+
+
+def _band(
+    element: np.ndarray, points: tuple[np.ndarray, np.ndarray, np.ndarray], n: int
+) -> np.ndarray:
+    """Sum element matrices (elements, 4, 4) and point entries into upper band storage.
+
+    Returns ``band`` of shape (4, n) with ``band[d, i]`` the entry at row i, column i + d.
+    """
+    start = 2 * np.arange(element.shape[0])[:, None]
+    index = (_UPPER_B - _UPPER_A) * n + start + _UPPER_A
+    rows, cols, values = points
+    upper = rows <= cols
+    index = np.concatenate([index.ravel(), (cols - rows)[upper] * n + rows[upper]])
+    weights = np.concatenate([element[:, _UPPER_A, _UPPER_B].ravel(), values[upper]])
+    return np.bincount(index, weights=weights, minlength=(_BAND + 1) * n).reshape(_BAND + 1, n)
+
+
+@dataclass(frozen=True)
+class _Pattern:
+    """Where the entries of a banded matrix go once the held DOFs are eliminated."""
+
+    offset: np.ndarray  # band row (|column - row|) of each kept entry
+    start: np.ndarray  # band column (the smaller of row and column) of each kept entry
+    indices: np.ndarray  # column of each kept entry in the reduced matrix
+    indptr: np.ndarray
+    size: int
+
+
+def _pattern(free: np.ndarray, number: np.ndarray) -> _Pattern:
+    n = len(number)
+    j = free[:, None] + _OFFSETS
+    inside = (j >= 0) & (j < n)
+    j = np.clip(j, 0, n - 1)
+    keep = inside & (number[j] >= 0)
+    indptr = np.zeros(len(free) + 1, dtype=np.int32)
+    np.cumsum(keep.sum(axis=1), out=indptr[1:])
+    offset = np.broadcast_to(np.abs(_OFFSETS), keep.shape)[keep]
+    start = np.minimum(free[:, None], j)[keep]
+    return _Pattern(offset, start, number[j][keep].astype(np.int32), indptr, len(free))
+
+
+def _reduced(band: np.ndarray, pattern: _Pattern) -> scipy.sparse.csr_matrix:
+    """The symmetric banded matrix on the free DOFs, in compressed rows."""
+    return scipy.sparse.csr_matrix(
+        (band[pattern.offset, pattern.start], pattern.indices, pattern.indptr),
+        shape=(pattern.size, pattern.size),
+    )
+
+
+def _held_dofs(member: Member, mesh: Mesh) -> list[int]:
+    """Full DOF indices the rigid supports hold."""
+    fixed: list[int] = []
+    last = len(mesh.x) - 1
+    for hold in holds(member, springs=False, axial=False):
+        at = hold.at if hold.at is not None else 0.0
+        node = 0 if at == 0.0 else last if at == member.length else mesh.node_at(at)
+        if hold.deflection:
+            fixed.append(2 * node)
+        if hold.slope:
+            fixed.append(2 * node + 1)
+    return fixed
+
+
+def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
+    """Assemble stiffness and mass matrices and eliminate the supported DOFs.
+
+    Parameters
+    ----------
+    member : Member
+    mesh : Mesh
+    geometric : bool
+        Also assemble the geometric stiffness of a unit tension (``Kg_unit``, for buckling).
+
+    Returns
+    -------
+    System
+        Sparse K (elastic plus geometric) and M on the free DOFs, in scaled form.
+    """
+    h = np.diff(mesh.x)
+    segs = member.segments
+    EI = np.array([seg.bending_stiffness for seg in segs])[mesh.segment]
+    m = np.array([seg.mass_per_length for seg in segs])[mesh.segment]
+    s = float(np.median(h))
+    P = member.axial_force
+    ke, ge, me = scaled_element_matrices(h, EI, m, s, geometric or P != 0.0)
+    n_nodes = len(mesh.x)
+    n = 2 * n_nodes
+
+    # Point masses and springs: 2x2 blocks on (w, theta) of their node; an attachment at an
+    # offset e from its node acts on w + e*theta (rigid offset).
+    point_k: list[tuple[int, int, float]] = []
+    point_m: list[tuple[int, int, float]] = []
+    for pm in member.masses:
+        j, e = mesh.carrier(pm.at)
+        _block(point_m, j, pm.mass, e / s, pm.rotary_inertia / s**2)
+    for sp in member.springs:
+        j, e = mesh.carrier(sp.at)
+        _block(point_k, j, sp.stiffness, e / s, sp.rotational_stiffness / s**2)
+
+    held = np.zeros(n, dtype=bool)
+    held[_held_dofs(member, mesh)] = True
+    free = np.flatnonzero(~held)
+    number = np.full(n, -1)
+    number[free] = np.arange(len(free))
+
+    pk, pm_ = _triplets(point_k), _triplets(point_m)
+    no_points = _triplets([])
+    pattern = _pattern(free, number)
+    K_band = _band(ke + P * ge if ge is not None and P else ke, pk, n)
+    M_band = _band(me, pm_, n)
+    K = _reduced(K_band, pattern)
+    M = _reduced(M_band, pattern)
+    G = _reduced(_band(ge, no_points, n), pattern) if ge is not None and geometric else None
+
+    # Mass-weighted rigid translation of member and ground together (all DOFs, held or not):
+    # M_full @ 1_w, without the full matrix.  Element rows: consistent mass times [1, 0, 1, 0].
+    unit = np.array([1.0, 0.0, 1.0, 0.0])
+    element_load = me @ unit  # (elements, 4)
+    dofs = 2 * np.arange(mesh.elements)[:, None] + np.arange(4)[None, :]
+    w_cols = pm_[1] % 2 == 0
+    full_load = np.bincount(
+        np.concatenate([dofs.ravel(), pm_[0][w_cols]]),
+        weights=np.concatenate([element_load.ravel(), pm_[2][w_cols]]),
+        minlength=n,
+    )
+    load = full_load[free]
+    total_mass = float(full_load[0::2].sum())
+
+    # Largest eigenvalue: bounded by the largest element eigenvalue (element eigenvalue bound,
+    # common practice; Weyl's inequality for the axial part), plus what springs add at their
+    # degrees of freedom.
+    lam_elem = float(np.max((ELEMENT_LAMBDA_MAX * EI + GEOMETRIC_LAMBDA_MAX * abs(P) * h**2)
+                            / (m * h**4)))  # fmt: skip
+    on_diagonal = pk[0] == pk[1]
+    diag_k = np.bincount(pk[0][on_diagonal], weights=pk[2][on_diagonal], minlength=n)
+    mass_diag = M_band[0]
+    lam_spring = float(np.max(diag_k / mass_diag, initial=0.0))
+
+    return System(
+        K=K,
+        M=M,
+        Kg_unit=G,
+        free=free,
+        n_full=n,
+        scale=s,
+        influence_load=load,
+        total_mass=total_mass,
+        lambda_max_bound=lam_elem + lam_spring,
+    )
