@@ -1,0 +1,70 @@
+"""Checks of :mod:`calc.tolerances`: the member at any value of a key path."""
+
+from __future__ import annotations
+
+import math
+import pickle
+
+import pytest
+
+from beamtone.calc import worksheet
+from beamtone.calc.errors import InputError
+from beamtone.calc.tolerances import COMPLIANCE, Design, Tolerance, nominal_value, vary
+
+_ROOT = __import__("pathlib").Path(__file__).resolve().parents[2]
+
+
+def _design(name: str) -> Design:
+    return Design(worksheet.load(_ROOT / "worksheets" / name).member)
+
+
+def test_a_length_change_moves_the_end_attachments() -> None:
+    d = _design("sensor-mast.toml")
+    longer = vary(d, {"member.length": 1.5}).member
+    assert longer.length == 1.5 and longer.masses[0].at == 1.5
+
+
+def test_values_are_exact_and_the_design_is_unchanged() -> None:
+    d = _design("stepped-spindle.toml")
+    v = 0.1234567890123456
+    out = vary(d, {"member.segment[1].section.diameter": v, "spring[0].stiffness": 1.5e8})
+    assert out.member.segments[1].section.dimensions["diameter"] == v
+    assert out.member.springs[0].stiffness == 1.5e8
+    assert nominal_value(d, "member.segment[1].section.diameter") == 0.045
+    # member.material applies to every segment that takes it from [member]
+    soft = vary(d, {"member.material.youngs_modulus": 1e11}).member
+    assert all(s.material.youngs_modulus == 1e11 for s in soft.segments)
+    only = Design(d.member, member_level={"material": (0, 2)})
+    part = vary(only, {"member.material.youngs_modulus": 1e11}).member
+    assert [s.material.youngs_modulus for s in part.segments] == [1e11, 200e9, 1e11]
+
+
+def test_support_stiffness_keys() -> None:
+    d = _design("sensor-mast.toml")
+    assert nominal_value(d, "supports.left.rotational_stiffness") == math.inf
+    soft = vary(d, {"supports.left.rotational_stiffness": 5e4})
+    member = soft.solved_member()
+    assert member.left == "pinned" and member.springs[-1].rotational_stiffness == 5e4
+    t = Tolerance("supports.left.rotational_stiffness", 0.0, 0.0, 2e-5, COMPLIANCE)
+    assert t.key_value(0.0) == math.inf and t.key_value(2e-5) == pytest.approx(5e4)
+    pickle.loads(pickle.dumps(soft))  # designs travel to other processes
+
+
+@pytest.mark.parametrize(
+    ("key", "value"),
+    [("member.length", -1.0), ("mass[0].at", 2.0), ("mass[3].mass", 1.0),
+     ("member.section.depth", 0.01), ("supports.right.stiffness", 1e5),
+     ("member.material.youngs_modulus", 0.0), ("nonsense", 1.0),
+     ("member.section.wall", 0.03)],
+)  # fmt: skip
+def test_refusals_name_the_key(key: str, value: float) -> None:
+    d = _design("sensor-mast.toml")
+    with pytest.raises(InputError) as err:
+        vary(d, {key: value}).solved_member()
+    assert key.split(".")[0] in err.value.key
+
+
+def test_a_tolerance_must_contain_its_nominal() -> None:
+    with pytest.raises(InputError) as err:
+        Tolerance("member.length", 1.0, 1.1, 1.2, written="1.1 m to 1.2 m")
+    assert err.value.key == "tolerances.member.length"
