@@ -31,7 +31,7 @@ import hashlib
 import json
 import math
 import re
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -143,6 +143,153 @@ class StoredResults:
     ritz_hz: tuple[float, ...] | None
     equivalent: tuple[float, float, float]
     margins: StoredMargins | None = None
+
+
+# --- the table of stored results -----------------------------------------------------------------
+#
+# One row per stored result drives writing (:func:`_table`), reading (:func:`read_record`) and
+# verifying (:func:`compare`).  A new key result is one row here (and its field in
+# StoredResults); the tolerances are stated in the module docstring.
+
+
+@dataclass(frozen=True)
+class _Stored:
+    """One stored result.
+
+    name : its key in ``[record.results]``; ``parent.leaf`` for a value of an inline table.
+    quantity : what it is, in words; ``{n}`` is the mode or bound number in a list.
+    unit : unit of the values ("" for counts, flags, texts and estimated errors).
+    kind : how it is stored: "count", "number", "numbers", "text", "flag" or "margins".
+    rule : how it is verified: "exact", "relative", "error" (within x10), "point" (of L)
+        or "margins" (the flags of the stored excitation check, worked out again).
+    now : its value for an analysis (what is written, and what is compared); None for the
+        margins, which come with the excitation check.
+    tolerance : the relative tolerance of the "relative" rule, for an analysis and the index
+        in a list.
+    optional : absent where the analysis has none (Dunkerley without a bound, Ritz bounds
+        not asked for, no excitation check).
+    per_mode : one value per mode; lists of this kind are verified side by side, mode by mode,
+        and must hold ``modes`` values.
+    many : the per-mode values in words, plural (for the message on a short list).
+    """
+
+    name: str
+    quantity: str
+    unit: str
+    kind: str
+    rule: str
+    now: Callable[[Analysis], Any] | None
+    tolerance: Callable[[Analysis, int], float] | None = None
+    optional: bool = False
+    per_mode: bool = False
+    many: str = ""
+
+    @property
+    def parent(self) -> str:
+        """The field of :class:`StoredResults` (and the key in the table) holding it."""
+        return self.name.split(".")[0]
+
+    @property
+    def leaf(self) -> str:
+        """Its key inside its parent's inline table (its name where it has no parent)."""
+        return self.name.split(".")[-1]
+
+
+def _frequency_tolerance(analysis: Analysis, i: int) -> float:
+    modes = analysis.modes.modes
+    if i >= len(modes):
+        return FREQUENCY_TOLERANCE
+    return max(FREQUENCY_TOLERANCE, 2.0 * modes[i].estimated_error)
+
+
+def _floats(values: Any) -> tuple[float, ...]:
+    return tuple(float(v) for v in values)
+
+
+_RESULTS = (
+    _Stored(
+        "rigid_body_modes", "rigid-body modes", "", "count", "exact",
+        lambda a: int(a.modes.rigid_body_modes),
+    ),
+    _Stored(
+        "frequencies_hz", "mode {n} frequency", "Hz", "numbers", "relative",
+        lambda a: _floats(m.frequency_hz for m in a.modes.modes),
+        _frequency_tolerance, per_mode=True, many="frequencies",
+    ),
+    _Stored(
+        "estimated_errors", "mode {n} estimated error", "", "numbers", "error",
+        lambda a: _floats(m.estimated_error for m in a.modes.modes),
+        per_mode=True, many="estimated errors",
+    ),
+    _Stored(
+        "rayleigh_hz", "Rayleigh estimate", "Hz", "number", "relative",
+        lambda a: float(a.estimate.frequency_hz), lambda a, i: FREQUENCY_TOLERANCE,
+    ),
+    _Stored(
+        "rayleigh_shape", "Rayleigh shape", "", "text", "exact", lambda a: a.estimate.shape
+    ),
+    _Stored(
+        "dunkerley_hz", "Dunkerley bound", "Hz", "number", "relative",
+        lambda a: None if a.lower_bound.frequency_hz is None else float(a.lower_bound.frequency_hz),
+        lambda a, i: max(FREQUENCY_TOLERANCE, 2.0 * a.lower_bound.uncertainty), optional=True,
+    ),
+    _Stored(
+        "bracket_inside", "bracket holds", "", "flag", "exact", lambda a: bool(a.bracket.inside)
+    ),
+    _Stored(
+        "ritz_hz", "Ritz bound {n}", "Hz", "numbers", "relative",
+        lambda a: None if a.ritz is None else _floats(a.ritz.frequencies_hz),
+        lambda a, i: FREQUENCY_TOLERANCE, optional=True,
+    ),
+    _Stored(
+        "equivalent.at_m", "1-DOF point", "m", "number", "point",
+        lambda a: float(a.equivalent.at_m),
+    ),
+    _Stored(
+        "equivalent.mass_kg", "1-DOF effective mass", "kg", "number", "relative",
+        lambda a: float(a.equivalent.mass_kg), lambda a, i: EQUIVALENT_TOLERANCE,
+    ),
+    _Stored(
+        "equivalent.stiffness_n_per_m", "1-DOF effective stiffness", "N/m", "number", "relative",
+        lambda a: float(a.equivalent.stiffness_n_per_m), lambda a, i: EQUIVALENT_TOLERANCE,
+    ),
+    _Stored("margins", "", "", "margins", "margins", None, optional=True),
+)  # fmt: skip
+
+
+def _groups(entries: tuple[_Stored, ...]) -> list[tuple[_Stored, ...]]:
+    """The rows in order, those of one inline table together and the per-mode lists together."""
+    out: list[tuple[_Stored, ...]] = []
+    for entry in entries:
+        previous = out[-1][-1] if out else None
+        if previous is not None and (
+            ("." in entry.name and previous.parent == entry.parent)
+            or (entry.per_mode and previous.per_mode)
+        ):
+            out[-1] = (*out[-1], entry)
+        else:
+            out.append((entry,))
+    return out
+
+
+def _stored_results(values: Mapping[str, Any]) -> StoredResults:
+    """StoredResults from the value of every row (an inline table's rows give one tuple)."""
+    fields: dict[str, Any] = {}
+    for entry in _RESULTS:
+        value = values.get(entry.name)
+        if "." in entry.name:
+            fields[entry.parent] = (*fields.get(entry.parent, ()), value)
+        else:
+            fields[entry.name] = value
+    return StoredResults(**fields)
+
+
+def _stored_value(results: StoredResults, entry: _Stored) -> Any:
+    value = getattr(results, entry.parent)
+    if "." in entry.name:
+        children = [e for e in _RESULTS if e.parent == entry.parent]
+        return value[children.index(entry)]
+    return value
 
 
 @dataclass(frozen=True)
@@ -257,46 +404,35 @@ def build_record(
     Record
     """
     when = (now or _dt.datetime.now(_dt.UTC)).astimezone(_dt.UTC).replace(microsecond=0)
-    modes = analysis.modes.modes
-    ritz = analysis.ritz
-    eq = analysis.equivalent
-    low = analysis.lower_bound.frequency_hz
-    stored_margins = None
-    if margins is not None and margins.lines:
-        first = margins.lines[0]
-        base = first.frequency_hz / first.harmonic
-        stored_margins = StoredMargins(
-            float(base),
-            tuple(line.harmonic for line in margins.lines),
-            float((first.high_hz - first.frequency_hz) / first.frequency_hz),
-            tuple(tuple(bool(x) for x in row) for row in margins.inside),
-        )
-    results = StoredResults(
-        rigid_body_modes=int(analysis.modes.rigid_body_modes),
-        frequencies_hz=tuple(float(m.frequency_hz) for m in modes),
-        estimated_errors=tuple(float(m.estimated_error) for m in modes),
-        rayleigh_hz=float(analysis.estimate.frequency_hz),
-        rayleigh_shape=analysis.estimate.shape,
-        dunkerley_hz=None if low is None else float(low),
-        bracket_inside=bool(analysis.bracket.inside),
-        ritz_hz=None if ritz is None else tuple(float(f) for f in ritz.frequencies_hz),
-        equivalent=(float(eq.at_m), float(eq.mass_kg), float(eq.stiffness_n_per_m)),
-        margins=stored_margins,
-    )
+    values = {e.name: e.now(analysis) for e in _RESULTS if e.now is not None}
+    values["margins"] = _stored_margins(margins)
     return Record(
         version=tool_version(),
         written=when.strftime("%Y-%m-%dT%H:%M:%SZ"),
         inputs_sha256=inputs_digest(analysis.sheet.data),
-        modes=len(modes),
+        modes=len(analysis.modes.modes),
         elements=elements,
-        results=results,
+        results=_stored_results(values),
+    )
+
+
+def _stored_margins(margins: MarginCheck | None) -> StoredMargins | None:
+    """What is kept of an excitation check: the excitation from its first line, the margin
+    from that line's band, the orders and the inside-band flags."""
+    if margins is None or not margins.lines:
+        return None
+    first = margins.lines[0]
+    return StoredMargins(
+        float(first.frequency_hz / first.harmonic),
+        tuple(line.harmonic for line in margins.lines),
+        float((first.high_hz - first.frequency_hz) / first.frequency_hz),
+        tuple(tuple(bool(x) for x in row) for row in margins.inside),
     )
 
 
 def _table(record: Record) -> Any:
     import tomlkit
 
-    res = record.results
     table = tomlkit.table()
     for line in _NOTE:
         table.add(tomlkit.comment(line))
@@ -309,34 +445,40 @@ def _table(record: Record) -> Any:
     table.add("modes", record.modes)
     if record.elements is not None:
         table.add("elements", record.elements)
+    table.add("results", _results_table(record.results))
+    return table
+
+
+def _results_table(res: StoredResults) -> Any:
+    import tomlkit
+
     results = tomlkit.table()
-    results.add("rigid_body_modes", res.rigid_body_modes)
-    results.add("frequencies_hz", _array(res.frequencies_hz))
-    results.add("estimated_errors", _array(res.estimated_errors))
-    results.add("rayleigh_hz", res.rayleigh_hz)
-    results.add("rayleigh_shape", res.rayleigh_shape)
-    if res.dunkerley_hz is not None:
-        results.add("dunkerley_hz", res.dunkerley_hz)
-    results.add("bracket_inside", res.bracket_inside)
-    if res.ritz_hz is not None:
-        results.add("ritz_hz", _array(res.ritz_hz))
-    equivalent = tomlkit.inline_table()
-    equivalent.update(
-        {
-            "at_m": res.equivalent[0],
-            "mass_kg": res.equivalent[1],
-            "stiffness_n_per_m": res.equivalent[2],
-        }
-    )
-    results.add("equivalent", equivalent)
-    if res.margins is not None:
-        margins = tomlkit.table()
-        margins.add("excitation_hz", res.margins.excitation_hz)
-        margins.add("harmonics", list(res.margins.harmonics))
-        margins.add("margin", res.margins.margin)
-        margins.add("inside", [list(row) for row in res.margins.inside])
-        results.add("margins", margins)
-    table.add("results", results)
+    for group in _groups(_RESULTS):
+        first = group[0]
+        if "." in first.name:
+            inline = tomlkit.inline_table()
+            inline.update({e.leaf: _stored_value(res, e) for e in group})
+            results.add(first.parent, inline)
+            continue
+        for entry in group:
+            value = _stored_value(res, entry)
+            if value is not None:  # an optional result the analysis did not have
+                results.add(entry.name, _WRITE.get(entry.kind, _same)(value))
+    return results
+
+
+def _same(value: Any) -> Any:
+    return value
+
+
+def _margins_table(margins: StoredMargins) -> Any:
+    import tomlkit
+
+    table = tomlkit.table()
+    table.add("excitation_hz", margins.excitation_hz)
+    table.add("harmonics", list(margins.harmonics))
+    table.add("margin", margins.margin)
+    table.add("inside", [list(row) for row in margins.inside])
     return table
 
 
@@ -346,6 +488,9 @@ def _array(values: tuple[float, ...]) -> Any:
     array = tomlkit.array()
     array.extend(values)
     return array.multiline(len(values) > 1)
+
+
+_WRITE: dict[str, Callable[[Any], Any]] = {"numbers": _array, "margins": _margins_table}
 
 
 def with_record(text: str, record: Record) -> str:
@@ -536,6 +681,40 @@ def _margins(value: object, modes: int) -> StoredMargins:
     return StoredMargins(excitation, tuple(orders), margin, tuple(tuple(r) for r in inside))
 
 
+_READ: dict[str, Callable[[Mapping[str, Any], str, str, bool, int], Any]] = {
+    "count": lambda t, n, k, optional, modes: _integer(t, n, k, 0, 2),  # rigid-body modes
+    "number": lambda t, n, k, optional, modes: _number(t, n, k, optional=optional),
+    "numbers": lambda t, n, k, optional, modes: _numbers(t, n, k, optional=optional),
+    "text": lambda t, n, k, optional, modes: _text(t, n, k),
+    "flag": lambda t, n, k, optional, modes: _flag(t, n, k),
+    "margins": lambda t, n, k, optional, modes: _margins(t[n], modes) if n in t else None,
+}
+
+
+def _read_results(results: Mapping[str, Any], modes: int) -> StoredResults:
+    key = "results."
+    values: dict[str, Any] = {}
+    for group in _groups(_RESULTS):
+        first = group[0]
+        if "." in first.name:
+            table = results.get(first.parent)
+            if not isinstance(table, Mapping):
+                names = [e.leaf for e in group]
+                expected = f"a table with {', '.join(names[:-1])} and {names[-1]}"
+                raise _bad(f"{key}{first.parent}", table, expected)
+            for e in group:
+                values[e.name] = _READ[e.kind](
+                    table, e.leaf, f"{key}{e.parent}.", e.optional, modes
+                )
+            continue
+        for e in group:
+            values[e.name] = _READ[e.kind](results, e.name, key, e.optional, modes)
+        if first.per_mode and any(len(values[e.name]) != modes for e in group):
+            expected = f"{modes} " + " and ".join(e.many for e in group)
+            raise _bad(f"{key}{first.name}", values[first.name], expected)
+    return _stored_results(values)
+
+
 def read_record(sheet: Worksheet) -> Record | None:
     """The worksheet's ``[record]``, or None where it has none.
 
@@ -561,32 +740,7 @@ def read_record(sheet: Worksheet) -> Record | None:
     results = table.get("results")
     if not isinstance(results, Mapping):
         raise _bad("results", results, "a table of results")
-    key = "results."
-    freqs = _numbers(results, "frequencies_hz", key)
-    errors = _numbers(results, "estimated_errors", key)
-    if len(freqs) != modes or len(errors) != modes:
-        raise _bad(f"{key}frequencies_hz", freqs, f"{modes} frequencies and estimated errors")
-    eq = results.get("equivalent")
-    if not isinstance(eq, Mapping):
-        raise _bad(f"{key}equivalent", eq, "a table with at_m, mass_kg and stiffness_n_per_m")
-    equivalent = tuple(
-        _number(eq, n, f"{key}equivalent.") for n in ("at_m", "mass_kg", "stiffness_n_per_m")
-    )
-    margins = None
-    if "margins" in results:
-        margins = _margins(results["margins"], modes)
-    stored = StoredResults(
-        rigid_body_modes=_integer(results, "rigid_body_modes", key, 0, 2),
-        frequencies_hz=freqs,
-        estimated_errors=errors,
-        rayleigh_hz=_number(results, "rayleigh_hz", key),
-        rayleigh_shape=_text(results, "rayleigh_shape", key),
-        dunkerley_hz=_number(results, "dunkerley_hz", key, optional=True),
-        bracket_inside=_flag(results, "bracket_inside", key),
-        ritz_hz=_numbers(results, "ritz_hz", key, optional=True),
-        equivalent=(equivalent[0], equivalent[1], equivalent[2]),
-        margins=margins,
-    )
+    stored = _read_results(results, modes)
     return Record(
         version=_text(table, "version", ""),
         written=_written(table.get("written")),
@@ -722,149 +876,75 @@ def _error_agrees(stored: float, now: float) -> bool:
     return high <= 10.0 * low
 
 
+def _compare(
+    entry: _Stored, analysis: Analysis, stored: Any, now: Any, i: int | None
+) -> Comparison:
+    quantity = entry.quantity.format(n=(i or 0) + 1)
+    key = f"results.{entry.name}" + ("" if i is None else f"[{i}]")
+    if entry.rule == "relative":
+        assert entry.tolerance is not None
+        tolerance = entry.tolerance(analysis, i or 0)
+        return _value(quantity, key, entry.unit, stored, now, tolerance)
+    if entry.rule == "error":
+        ok = stored is not None and now is not None and _error_agrees(stored, now)
+        return Comparison(quantity, key, "", stored, now, None, None, ok, "within x10")
+    if entry.rule == "point":
+        shift = abs(now - stored) / analysis.sheet.member.length
+        ok = shift <= EQUIVALENT_TOLERANCE
+        rule = f"{EQUIVALENT_TOLERANCE:.0e} of L"
+        return Comparison(
+            quantity, key, entry.unit, stored, now, None, EQUIVALENT_TOLERANCE, ok, rule
+        )
+    return _exact(quantity, key, stored, now)
+
+
+def _compare_margins(stored: StoredMargins | None, analysis: Analysis) -> list[Comparison]:
+    """The stored inside-band flags against those worked out again for the same excitation."""
+    if stored is None:
+        return []
+    from beamtone.calc.sizing import margins
+
+    m = stored
+    check = margins(analysis.modes.frequencies_hz, m.excitation_hz, m.harmonics, m.margin)
+    out = []
+    for i, row in enumerate(m.inside):
+        now_row = check.inside[i] if i < len(check.inside) else None
+        for j, flag in enumerate(row):
+            now_flag = None if now_row is None else bool(now_row[j])
+            out.append(
+                _exact(
+                    f"mode {i + 1} in the band of {m.harmonics[j]}x excitation",
+                    f"results.margins.inside[{i}][{j}]",
+                    flag,
+                    now_flag,
+                )
+            )
+    return out
+
+
 def compare(record: Record, analysis: Analysis) -> tuple[Comparison, ...]:
-    """Every stored result of ``record`` against ``analysis`` (see the module's tolerances)."""
+    """Every stored result of ``record`` against ``analysis`` (see the module's tolerances).
+
+    Lists are compared entry by entry (the per-mode lists side by side, mode by mode); an
+    entry present on one side only does not agree.
+    """
     res = record.results
     out: list[Comparison] = []
-    out.append(
-        _exact(
-            "rigid-body modes",
-            "results.rigid_body_modes",
-            res.rigid_body_modes,
-            analysis.modes.rigid_body_modes,
-        )
-    )
-    now_modes = analysis.modes.modes
-    for i in range(max(len(res.frequencies_hz), len(now_modes))):
-        stored_f = res.frequencies_hz[i] if i < len(res.frequencies_hz) else None
-        mode = now_modes[i] if i < len(now_modes) else None
-        tol = (
-            FREQUENCY_TOLERANCE
-            if mode is None
-            else max(FREQUENCY_TOLERANCE, 2.0 * mode.estimated_error)
-        )
-        out.append(
-            _value(
-                f"mode {i + 1} frequency",
-                f"results.frequencies_hz[{i}]",
-                "Hz",
-                stored_f,
-                None if mode is None else mode.frequency_hz,
-                tol,
-            )
-        )
-        stored_e = res.estimated_errors[i] if i < len(res.estimated_errors) else None
-        now_e = None if mode is None else mode.estimated_error
-        ok = stored_e is not None and now_e is not None and _error_agrees(stored_e, now_e)
-        out.append(
-            Comparison(
-                f"mode {i + 1} estimated error",
-                f"results.estimated_errors[{i}]",
-                "",
-                stored_e,
-                now_e,
-                None,
-                None,
-                ok,
-                "within x10",
-            )
-        )
-    est = analysis.estimate
-    out.append(
-        _value(
-            "Rayleigh estimate",
-            "results.rayleigh_hz",
-            "Hz",
-            res.rayleigh_hz,
-            est.frequency_hz,
-            FREQUENCY_TOLERANCE,
-        )
-    )
-    out.append(_exact("Rayleigh shape", "results.rayleigh_shape", res.rayleigh_shape, est.shape))
-    low = analysis.lower_bound
-    out.append(
-        _value(
-            "Dunkerley bound",
-            "results.dunkerley_hz",
-            "Hz",
-            res.dunkerley_hz,
-            low.frequency_hz,
-            max(FREQUENCY_TOLERANCE, 2.0 * low.uncertainty),
-        )
-    )
-    out.append(
-        _exact(
-            "bracket holds", "results.bracket_inside", res.bracket_inside, analysis.bracket.inside
-        )
-    )
-    ritz_now = None if analysis.ritz is None else tuple(analysis.ritz.frequencies_hz)
-    if res.ritz_hz is not None or ritz_now is not None:
-        stored_r, now_r = res.ritz_hz or (), ritz_now or ()
-        for i in range(max(len(stored_r), len(now_r))):
-            out.append(
-                _value(
-                    f"Ritz bound {i + 1}",
-                    f"results.ritz_hz[{i}]",
-                    "Hz",
-                    stored_r[i] if i < len(stored_r) else None,
-                    now_r[i] if i < len(now_r) else None,
-                    FREQUENCY_TOLERANCE,
-                )
-            )
-    eq = analysis.equivalent
-    length = analysis.sheet.member.length
-    at_stored, at_now = res.equivalent[0], eq.at_m
-    shift = abs(at_now - at_stored) / length
-    out.append(
-        Comparison(
-            "1-DOF point",
-            "results.equivalent.at_m",
-            "m",
-            at_stored,
-            at_now,
-            None,
-            EQUIVALENT_TOLERANCE,
-            shift <= EQUIVALENT_TOLERANCE,
-            f"{EQUIVALENT_TOLERANCE:.0e} of L",
-        )
-    )
-    out.append(
-        _value(
-            "1-DOF effective mass",
-            "results.equivalent.mass_kg",
-            "kg",
-            res.equivalent[1],
-            eq.mass_kg,
-            EQUIVALENT_TOLERANCE,
-        )
-    )
-    out.append(
-        _value(
-            "1-DOF effective stiffness",
-            "results.equivalent.stiffness_n_per_m",
-            "N/m",
-            res.equivalent[2],
-            eq.stiffness_n_per_m,
-            EQUIVALENT_TOLERANCE,
-        )
-    )
-    if res.margins is not None:
-        from beamtone.calc.sizing import margins
-
-        m = res.margins
-        check = margins(analysis.modes.frequencies_hz, m.excitation_hz, m.harmonics, m.margin)
-        for i, row in enumerate(m.inside):
-            now_row = check.inside[i] if i < len(check.inside) else None
-            for j, flag in enumerate(row):
-                now_flag = None if now_row is None else bool(now_row[j])
-                out.append(
-                    _exact(
-                        f"mode {i + 1} in the band of {m.harmonics[j]}x excitation",
-                        f"results.margins.inside[{i}][{j}]",
-                        flag,
-                        now_flag,
-                    )
-                )
+    for group in _groups(_RESULTS):
+        if group[0].kind == "numbers":
+            stored = [_stored_value(res, e) or () for e in group]
+            now = [(e.now(analysis) if e.now else None) or () for e in group]
+            for i in range(max(len(v) for v in (*stored, *now))):
+                for e, s, n in zip(group, stored, now, strict=True):
+                    s_i = s[i] if i < len(s) else None
+                    n_i = n[i] if i < len(n) else None
+                    out.append(_compare(e, analysis, s_i, n_i, i))
+            continue
+        for e in group:
+            if e.rule == "margins":
+                out += _compare_margins(res.margins, analysis)
+            elif e.now is not None:
+                out.append(_compare(e, analysis, _stored_value(res, e), e.now(analysis), None))
     return tuple(out)
 
 

@@ -317,3 +317,49 @@ def test_windows_line_endings_are_kept(solved: tuple[str, object]) -> None:
     out = _recorded(crlf, analysis)
     assert out.startswith(crlf.rstrip()) and "\n" not in out.replace("\r\n", "")
     assert record.verify(loads(out)).passed
+
+
+BEFORE_TABLE = ROOT / "tests" / "calc" / "records" / "machine-span-before-table.toml"
+
+
+def test_a_record_written_before_the_table_reads_writes_and_verifies_the_same() -> None:
+    """A record written by the record code as it was before one table drove writing, reading
+    and verifying (Ritz bounds, Dunkerley's bound, the inline 1-DOF table and an excitation
+    check, the excitation 10 % above mode 1): read back it writes the same bytes, and it
+    verifies with every comparison in the order and under the rule it had."""
+    text = BEFORE_TABLE.read_text(encoding="utf-8")
+    sheet = loads(text)
+    stored = record.read_record(sheet)
+    assert stored is not None and stored.results.margins is not None
+    assert record.with_record(text, stored) == text
+    result = record.verify(sheet)
+    assert result is not None and result.passed, result.failures
+    rows = [(c.key, c.unit, c.rule) for c in result.comparisons]
+    assert rows[:5] == [
+        ("results.rigid_body_modes", "", "equal"),
+        ("results.frequencies_hz[0]", "Hz", rows[1][2]),
+        ("results.estimated_errors[0]", "", "within x10"),
+        ("results.frequencies_hz[1]", "Hz", rows[3][2]),
+        ("results.estimated_errors[1]", "", "within x10"),
+    ]
+    assert rows[7:12] == [
+        ("results.rayleigh_hz", "Hz", "1e-06"),
+        ("results.rayleigh_shape", "", "equal"),
+        ("results.dunkerley_hz", "Hz", rows[9][2]),
+        ("results.bracket_inside", "", "equal"),
+        ("results.ritz_hz[0]", "Hz", "1e-06"),
+    ]
+    assert rows[15:18] == [
+        ("results.equivalent.at_m", "m", "1e-03 of L"),
+        ("results.equivalent.mass_kg", "kg", "1e-03"),
+        ("results.equivalent.stiffness_n_per_m", "N/m", "1e-03"),
+    ]
+    assert [r[0] for r in rows[18:]] == [
+        f"results.margins.inside[{i}][{j}]" for i in range(3) for j in range(2)
+    ]
+    assert result.comparisons[18].stored is True  # mode 1 inside the 1x band
+
+
+def test_one_table_holds_every_stored_result() -> None:
+    covered = {entry.parent for entry in record._RESULTS}
+    assert covered == set(record.StoredResults.__dataclass_fields__)
