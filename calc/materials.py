@@ -28,6 +28,9 @@ class Material:
         Poisson's ratio nu [-], where known.
     source : str
         Where the values come from.
+    shear_modulus : float or None
+        Shear modulus G [Pa] where given (e.g. an orthotropic material such as timber,
+        whose G is not E/(2(1 + nu))); else derived from ``poisson_ratio``.
     """
 
     name: str
@@ -35,6 +38,16 @@ class Material:
     density: float
     poisson_ratio: float | None = None
     source: str = "given in the worksheet"
+    shear_modulus: float | None = None
+
+    @property
+    def shear_modulus_or_none(self) -> float | None:
+        """G [Pa]: as given, else E/(2(1 + nu)) of an isotropic material, else None."""
+        if self.shear_modulus is not None:
+            return self.shear_modulus
+        if self.poisson_ratio is not None:
+            return self.youngs_modulus / (2.0 * (1.0 + self.poisson_ratio))
+        return None
 
 
 LIBRARY: dict[str, Material] = {
@@ -98,9 +111,11 @@ LIBRARY: dict[str, Material] = {
             11e9,
             420.0,
             None,
-            # EN 338 strength class C24: E0,mean = 11.0 kN/mm^2, rho_mean = 420 kg/m^3. From memory.
-            "softwood strength class C24, along the grain: E0,mean and rho_mean of EN 338 "
-            "(from memory)",
+            # EN 338 strength class C24: E0,mean = 11.0 kN/mm^2, rho_mean = 420 kg/m^3,
+            # G_mean = 0.69 kN/mm^2. From memory.
+            "softwood strength class C24, along the grain: E0,mean, G_mean and rho_mean of "
+            "EN 338 (from memory)",
+            shear_modulus=0.69e9,
         ),
     )
 }

@@ -84,28 +84,49 @@ class Segment:
 
 @dataclass(frozen=True)
 class PointMass:
-    """A point mass at ``at`` [m]: mass [kg], rotary inertia about the bending axis [kg*m^2]."""
+    """A point mass at ``at`` [m]: mass [kg], rotary inertia about the bending axis [kg*m^2].
+
+    ``rotary_inertia_width`` [kg*m^2] is the rotary inertia for bending in the width plane
+    (None: the same as ``rotary_inertia``); ``polar_inertia`` [kg*m^2] its moment of inertia
+    about the member's axis (torsion).  The mass acts in both bending planes and axially.
+    """
 
     at: float
     mass: float
     rotary_inertia: float = 0.0
+    rotary_inertia_width: float | None = None
+    polar_inertia: float = 0.0
 
 
 @dataclass(frozen=True)
 class Spring:
-    """A grounded spring at ``at`` [m]: stiffness [N/m], rotational stiffness [N*m/rad]."""
+    """A grounded spring at ``at`` [m]: stiffness [N/m], rotational stiffness [N*m/rad].
+
+    Both act in the depth plane, and in the width plane too unless ``stiffness_width`` [N/m]
+    or ``rotational_stiffness_width`` [N*m/rad] are given; ``torsional_stiffness``
+    [N*m/rad] and ``axial_stiffness`` [N/m] act in torsion and axially.
+    """
 
     at: float
     stiffness: float = 0.0
     rotational_stiffness: float = 0.0
+    stiffness_width: float | None = None
+    rotational_stiffness_width: float | None = None
+    torsional_stiffness: float = 0.0
+    axial_stiffness: float = 0.0
 
 
 @dataclass(frozen=True)
 class InnerSupport:
-    """A rigid support strictly inside the member at ``at`` [m]; kind pinned, clamped or guided."""
+    """A rigid support strictly inside the member at ``at`` [m]; kind pinned, clamped or guided.
+
+    ``overrides`` are (direction, kind) pairs the worksheet sets for the width plane, torsion
+    or axial motion (:mod:`calc.restraints` states each kind's defaults).
+    """
 
     at: float
     kind: str
+    overrides: tuple[tuple[str, str], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -123,6 +144,9 @@ class Member:
     inner_supports : tuple of InnerSupport
     axial_force : float
         Constant axial force [N], tension positive.
+    left_overrides, right_overrides : tuple of (str, str)
+        (direction, kind) pairs an end sets for the width plane, torsion or axial motion
+        (:mod:`calc.restraints`).
 
     Raises
     ------
@@ -137,6 +161,8 @@ class Member:
     springs: tuple[Spring, ...] = ()
     inner_supports: tuple[InnerSupport, ...] = ()
     axial_force: float = 0.0
+    left_overrides: tuple[tuple[str, str], ...] = ()
+    right_overrides: tuple[tuple[str, str], ...] = ()
     _boundaries: tuple[float, ...] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -216,6 +242,14 @@ def _validate(member: Member) -> None:
                     f"a position different from supports.inner[{j}].at; two supports at one place",
                 )
         seen.append(sup.at)
+    if (
+        member.left_overrides
+        or member.right_overrides
+        or any(s.overrides for s in member.inner_supports)
+    ):
+        from beamtone.calc.restraints import member_restraints
+
+        member_restraints(member)  # every direction a support sets is a known kind
 
 
 def _check_position(key: str, at: float, L: float, tol: float) -> None:

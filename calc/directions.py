@@ -1,0 +1,583 @@
+"""Every direction a member vibrates in: both bending planes, torsion and axial motion.
+
+The four directions are solved as uncoupled, which is exact for a doubly symmetric section
+(every built-in shape) whose attached masses sit on its axis:
+
+- **depth plane**: the member as the worksheet describes it (the finite-element solve of
+  :mod:`calc.fe`);
+- **width plane**: the same member bending about its other principal axis (second moment
+  ``Section.second_moment_width``), with each support's width-plane kind, the springs' and
+  masses' width-plane values; solved by the same bending machinery;
+- **torsion**: Saint-Venant torsion G J phi'' with the polar mass moment rho Ip per length
+  (added mass spread like the section, its share rho_added Ip / A), point masses' polar
+  inertias, torsional springs; where every segment has warping stiffness (an i-beam) and one
+  G J, the warping equation E Cw phi'''' - G J phi'' + rho Ip phi_tt = 0, which has the form
+  of a beam under tension and is solved by the bending machinery (fork = pinned, clamped =
+  twist and warping held);
+- **axial**: E A u'' with rho A (+ added mass) per length, point masses, axial springs
+  (second-order finite elements, :mod:`calc.fe.rod`).
+
+What each support holds in each direction is stated in :mod:`calc.restraints`.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, replace
+
+from beamtone.calc import fe, handbook
+from beamtone.calc.closedforms import ClosedForm, fork_warping_closed_form, rod_closed_form
+from beamtone.calc.errors import InputError
+from beamtone.calc.fe.rod import RodProblem, RodResult, solve_rod
+from beamtone.calc.materials import Material
+from beamtone.calc.model import InnerSupport, Member, PointMass, Segment, Spring
+from beamtone.calc.restraints import DIRECTIONS, Restraint, member_restraints
+from beamtone.calc.sections import Section
+
+__all__ = [
+    "DIRECTIONS",
+    "COUPLING_NOTE",
+    "DirectionMode",
+    "Direction",
+    "Directions",
+    "width_member",
+    "torsion_problem",
+    "axial_problem",
+    "solve_directions",
+]
+
+COUPLING_NOTE = (
+    "bending in the two planes, torsion and axial motion are solved as uncoupled: exact for a "
+    "doubly symmetric section with every attached mass on its axis; bending-torsion coupling "
+    "(masses off the shear centre, channels and angles) and lateral-torsional effects are not "
+    "modelled"
+)
+"""The model assumption every direction result states."""
+
+
+@dataclass(frozen=True)
+class DirectionMode:
+    """One flexible mode of one direction.
+
+    Attributes
+    ----------
+    direction : str
+        ``"depth"``, ``"width"``, ``"torsion"`` or ``"axial"``.
+    number : int
+        1 for the direction's first flexible mode.
+    frequency_hz : float
+        Natural frequency [Hz].
+    omega : float
+        Circular natural frequency [rad/s].
+    estimated_error : float
+        Estimated relative error of the frequency [-].
+    effective : float
+        Effective modal mass [kg] (bending, axial) or polar inertia [kg*m^2] (torsion).
+    effective_fraction : float
+        ``effective`` over the direction's total [-].
+    """
+
+    direction: str
+    number: int
+    frequency_hz: float
+    omega: float
+    estimated_error: float
+    effective: float
+    effective_fraction: float
+
+
+@dataclass(frozen=True)
+class Direction:
+    """The result of one direction.
+
+    Attributes
+    ----------
+    name : str
+        One of ``DIRECTIONS``.
+    modes : tuple of DirectionMode
+        Flexible modes, lowest first (empty where not computed).
+    rigid_body_modes : int
+        Rigid-body modes of this direction (counted, not listed).
+    reason : str
+        Why the direction was not computed ("" where it was).
+    solution : fe.FEResult or RodResult or None
+        The solver's own result (mode shapes, mesh, soundness checks).
+    handbook : handbook.HandbookCheck or None
+        Handbook frequencies of a bending plane that is a tabulated case.
+    closed_form : ClosedForm or None
+        Closed-form frequencies of torsion or axial motion where the member is such a case.
+    supports : tuple of str
+        What each support holds in this direction: left end, right end, inner supports.
+    notes : tuple of str
+        What this direction's model assumes or leaves out.
+    warnings : tuple of str
+        The solver's warnings.
+    same_as : str
+        The direction whose modes this one repeats (a round or square section's two bending
+        planes coincide), else "".
+    """
+
+    name: str
+    modes: tuple[DirectionMode, ...]
+    rigid_body_modes: int = 0
+    reason: str = ""
+    solution: fe.FEResult | RodResult | None = None
+    handbook: handbook.HandbookCheck | None = None
+    closed_form: ClosedForm | None = None
+    supports: tuple[str, ...] = ()
+    notes: tuple[str, ...] = ()
+    warnings: tuple[str, ...] = ()
+    same_as: str = ""
+
+    @property
+    def computed(self) -> bool:
+        """True where the direction was solved."""
+        return not self.reason
+
+    @property
+    def reference_hz(self) -> tuple[float, ...] | None:
+        """Handbook or closed-form frequencies [Hz], where the member is such a case."""
+        if self.handbook is not None:
+            return self.handbook.frequencies_hz
+        if self.closed_form is not None:
+            return self.closed_form.frequencies_hz
+        return None
+
+
+@dataclass(frozen=True)
+class Directions:
+    """Every direction of one member.
+
+    Attributes
+    ----------
+    directions : tuple of Direction
+        In the order of ``DIRECTIONS``.
+    notes : tuple of str
+        Assumptions of the whole model (coupling), and where the section or attachments make
+        what is left out likely to matter.
+    """
+
+    directions: tuple[Direction, ...]
+    notes: tuple[str, ...]
+
+    def __getitem__(self, name: str) -> Direction:
+        for d in self.directions:
+            if d.name == name:
+                return d
+        raise KeyError(name)
+
+    @property
+    def all_modes(self) -> tuple[DirectionMode, ...]:
+        """Every computed mode of every direction, lowest frequency first."""
+        modes = [m for d in self.directions for m in d.modes]
+        order = {name: i for i, name in enumerate(DIRECTIONS)}
+        return tuple(sorted(modes, key=lambda m: (m.frequency_hz, order[m.direction], m.number)))
+
+    @property
+    def governing(self) -> DirectionMode | None:
+        """The lowest mode of all directions (None where nothing was computed)."""
+        modes = self.all_modes
+        return modes[0] if modes else None
+
+
+# --- the width plane -----------------------------------------------------------------------------
+
+
+def width_member(member: Member) -> Member | str:
+    """The member bending in its width plane, or the reason it cannot be described.
+
+    Each segment's section turned a quarter turn (second moments and depth and width swapped),
+    each support's width-plane kind, springs' and masses' width-plane values (the depth
+    plane's where not given).  The axial force acts in both planes.
+    """
+    left, right, inner = member_restraints(member)
+    segments = []
+    for i, seg in enumerate(member.segments):
+        sec = seg.section
+        if sec.second_moment_width is None:
+            key = f"member.segment[{i}]" if len(member.segments) > 1 else "member"
+            return (
+                f"{key}.section gives no second moment for the width plane "
+                "(direct properties: add second_moment_width)"
+            )
+        turned = replace(
+            sec,
+            second_moment=sec.second_moment_width,
+            second_moment_width=sec.second_moment,
+            depth=sec.width,
+            width=sec.depth,
+        )
+        segments.append(replace(seg, section=turned))
+    springs = tuple(
+        Spring(
+            s.at,
+            s.stiffness if s.stiffness_width is None else s.stiffness_width,
+            s.rotational_stiffness
+            if s.rotational_stiffness_width is None
+            else s.rotational_stiffness_width,
+        )
+        for s in member.springs
+    )
+    masses = tuple(
+        PointMass(
+            m.at,
+            m.mass,
+            m.rotary_inertia if m.rotary_inertia_width is None else m.rotary_inertia_width,
+        )
+        for m in member.masses
+    )
+    inner_supports = tuple(
+        InnerSupport(s.at, r.width) for s, r in zip(member.inner_supports, inner, strict=True)
+    )
+    return Member(
+        tuple(segments),
+        left.width,
+        right.width,
+        masses,
+        springs,
+        inner_supports,
+        member.axial_force,
+    )
+
+
+def _plain(member: Member) -> Member:
+    """The depth-plane member without its direction overrides (for comparison)."""
+    return Member(
+        member.segments,
+        member.left,
+        member.right,
+        tuple(PointMass(m.at, m.mass, m.rotary_inertia) for m in member.masses),
+        tuple(Spring(s.at, s.stiffness, s.rotational_stiffness) for s in member.springs),
+        tuple(InnerSupport(s.at, s.kind) for s in member.inner_supports),
+        member.axial_force,
+    )
+
+
+def _same_bending(a: Member, b: Member) -> bool:
+    """True where two bending members have the same stiffness, mass, supports and attachments."""
+    if (a.left, a.right, a.masses, a.springs, a.inner_supports, a.axial_force) != (
+        b.left,
+        b.right,
+        b.masses,
+        b.springs,
+        b.inner_supports,
+        b.axial_force,
+    ):
+        return False
+    return all(
+        sa.length == sb.length
+        and sa.bending_stiffness == sb.bending_stiffness
+        and sa.mass_per_length == sb.mass_per_length
+        for sa, sb in zip(a.segments, b.segments, strict=True)
+    )
+
+
+# --- torsion and axial ---------------------------------------------------------------------------
+
+
+def _rod_positions(member: Member, direction: str, restraints: list[tuple[float, Restraint]]):
+    return tuple(x for x, r in restraints if r.kind(direction) not in ("free",))
+
+
+def _restraints(member: Member) -> list[tuple[float, Restraint]]:
+    left, right, inner = member_restraints(member)
+    out = [(0.0, left), (member.length, right)]
+    return out + [(s.at, r) for s, r in zip(member.inner_supports, inner, strict=True)]
+
+
+def _shear_modulus(member: Member) -> list[float] | str:
+    out = []
+    for i, seg in enumerate(member.segments):
+        G = seg.material.shear_modulus_or_none
+        if G is None:
+            key = f"member.segment[{i}]" if len(member.segments) > 1 else "member"
+            return (
+                f"{key}.material gives no shear modulus: give poisson_ratio or shear_modulus "
+                "(torsion needs G)"
+            )
+        out.append(G)
+    return out
+
+
+def torsion_problem(member: Member) -> RodProblem | Member | str:
+    """Torsion of the member: a rod problem (Saint-Venant), an equivalent member under tension
+    (with warping), or the reason it cannot be described.
+
+    The equivalent member of the warping equation has E I -> E Cw, mass per length ->
+    rho Ip (+ the added mass's share), axial force -> G J; its supports are pinned where the
+    twist is held as a fork, clamped where twist and warping are held; point masses carry
+    the polar inertias, springs the torsional stiffnesses.
+    """
+    G = _shear_modulus(member)
+    if isinstance(G, str):
+        return G
+    k, mu, ecw = [], [], []
+    for i, seg in enumerate(member.segments):
+        sec = seg.section
+        key = f"member.segment[{i}]" if len(member.segments) > 1 else "member"
+        if sec.torsion_constant is None or sec.polar_moment is None:
+            missing = "torsion_constant" if sec.torsion_constant is None else "polar_moment"
+            words = missing.replace("_", " ")
+            return f"{key}.section gives no {words} (direct properties: add {missing})"
+        k.append(G[i] * sec.torsion_constant)
+        mu.append((seg.material.density + seg.added_mass / sec.area) * sec.polar_moment)
+        ecw.append(seg.material.youngs_modulus * (sec.warping_constant or 0.0))
+    restraints = _restraints(member)
+    inertias = tuple((m.at, m.polar_inertia) for m in member.masses if m.polar_inertia > 0.0)
+    springs = tuple(
+        (s.at, s.torsional_stiffness) for s in member.springs if s.torsional_stiffness > 0.0
+    )
+    warping = all(e > 0.0 for e in ecw) and all(math.isclose(x, k[0], rel_tol=1e-12) for x in k)
+    if not warping:
+        return RodProblem(
+            member.boundaries,
+            tuple(k),
+            tuple(mu),
+            inertias,
+            springs,
+            _rod_positions(member, "torsion", restraints),
+        )
+    kinds = {"clamped": "clamped", "fork": "pinned", "free": "free"}
+    segments = tuple(
+        Segment(
+            seg.length,
+            Material("torsion", ecw[i], mu[i]),
+            Section("properties", 1.0, 1.0, 0.0),
+        )
+        for i, seg in enumerate(member.segments)
+    )
+    left, right = restraints[0][1], restraints[1][1]
+    inner = tuple(
+        InnerSupport(x, kinds[r.torsion]) for x, r in restraints[2:] if r.torsion != "free"
+    )
+    return Member(
+        segments,
+        kinds[left.torsion],
+        kinds[right.torsion],
+        tuple(PointMass(x, j) for x, j in inertias),
+        tuple(Spring(x, s) for x, s in springs),
+        inner,
+        k[0],
+    )
+
+
+def axial_problem(member: Member) -> RodProblem:
+    """Axial motion of the member: E A, rho A + added mass, point masses, axial springs."""
+    restraints = _restraints(member)
+    return RodProblem(
+        member.boundaries,
+        tuple(s.material.youngs_modulus * s.section.area for s in member.segments),
+        tuple(s.mass_per_length for s in member.segments),
+        tuple((m.at, m.mass) for m in member.masses if m.mass > 0.0),
+        tuple((s.at, s.axial_stiffness) for s in member.springs if s.axial_stiffness > 0.0),
+        _rod_positions(member, "axial", restraints),
+    )
+
+
+# --- the solve -----------------------------------------------------------------------------------
+
+
+def _direction_modes(name: str, result: fe.FEResult | RodResult) -> tuple[DirectionMode, ...]:
+    """The solver's modes as one direction's modes (effective mass or inertia beside each)."""
+    out = []
+    for m in result.modes:
+        if isinstance(m, fe.Mode):
+            effective, fraction = m.effective_mass, m.effective_mass_fraction
+        else:
+            effective, fraction = m.effective_inertia, m.effective_fraction
+        out.append(
+            DirectionMode(
+                name, m.number, m.frequency_hz, m.omega, m.estimated_error, effective, fraction
+            )
+        )
+    return tuple(out)
+
+
+def _support_words(member: Member, direction: str) -> tuple[str, ...]:
+    restraints = _restraints(member)
+    words = [
+        f"left {restraints[0][1].kind(direction)}",
+        f"right {restraints[1][1].kind(direction)}",
+    ]
+    words += [f"inner at {x:.6g} m {r.kind(direction)}" for x, r in restraints[2:]]
+    return tuple(words)
+
+
+def _width(member: Member, count: int, depth: fe.FEResult, elements: int | None) -> Direction:
+    supports = _support_words(member, "width")
+    turned = width_member(member)
+    if isinstance(turned, str):
+        return Direction("width", (), reason=turned, supports=supports)
+    if _same_bending(turned, _plain(member)):
+        return Direction(
+            "width",
+            _direction_modes("width", depth),
+            depth.rigid_body_modes,
+            solution=depth,
+            handbook=handbook.check(turned, count),
+            supports=supports,
+            notes=(
+                "the section, supports and attachments are the same in both planes: the "
+                "width-plane modes coincide with the depth plane's (two physical modes "
+                "at each frequency)",
+            ),  # fmt: skip
+            warnings=depth.warnings,
+            same_as="depth",
+        )
+    result = fe.solve(turned, count, elements=elements)
+    return Direction(
+        "width",
+        _direction_modes("width", result),
+        result.rigid_body_modes,
+        solution=result,
+        handbook=handbook.check(turned, count),
+        supports=supports,
+        warnings=result.warnings,
+    )
+
+
+def _torsion(member: Member, count: int) -> Direction:
+    supports = _support_words(member, "torsion")
+    problem = torsion_problem(member)
+    if isinstance(problem, str):
+        return Direction("torsion", (), reason=problem, supports=supports)
+    notes = []
+    if any(s.added_mass > 0.0 for s in member.segments):
+        notes.append("added mass taken as spread like the section (its polar inertia rho Ip/A)")
+    bare = [i for i, m in enumerate(member.masses) if m.mass > 0.0 and m.polar_inertia == 0.0]
+    if bare:
+        which = ", ".join(f"mass[{i}]" for i in bare)
+        notes.append(
+            f"{which} without polar_inertia add nothing in torsion (the true torsional "
+            "frequencies are lower where they have one)"
+        )
+    if member.axial_force != 0.0:
+        notes.append("the axial force's effect on torsion (Wagner term) is not modelled")
+    if isinstance(problem, RodProblem):
+        if any((s.section.warping_constant or 0.0) > 0.0 for s in member.segments):
+            notes.append(
+                "warping stiffness neglected: the segments differ in G J or not all have it"
+            )
+        result = solve_rod(problem, count)
+        return Direction(
+            "torsion",
+            _direction_modes("torsion", result),
+            result.rigid_body_modes,
+            solution=result,
+            closed_form=rod_closed_form(problem, count, "torsion"),
+            supports=supports,
+            notes=tuple(notes),
+            warnings=result.warnings,
+        )
+    notes.append("warping torsion E Cw phi'''' - G J phi'' (fork: warping free; clamped: held)")
+    fer = fe.solve(problem, count)
+    closed = None
+    if (
+        problem.is_uniform
+        and problem.left == problem.right == "pinned"
+        and not problem.masses
+        and not problem.springs
+        and not problem.inner_supports
+    ):
+        seg = problem.segments[0]
+        closed = fork_warping_closed_form(
+            problem.length,
+            problem.axial_force,
+            seg.bending_stiffness,
+            seg.mass_per_length,
+            count,
+        )
+    return Direction(
+        "torsion",
+        _direction_modes("torsion", fer),
+        fer.rigid_body_modes,
+        solution=fer,
+        closed_form=closed,
+        supports=supports,
+        notes=tuple(notes),
+        warnings=fer.warnings,
+    )
+
+
+def _axial(member: Member, count: int) -> Direction:
+    problem = axial_problem(member)
+    result = solve_rod(problem, count)
+    return Direction(
+        "axial",
+        _direction_modes("axial", result),
+        result.rigid_body_modes,
+        solution=result,
+        closed_form=rod_closed_form(problem, count, "axial"),
+        supports=_support_words(member, "axial"),
+        warnings=result.warnings,
+    )
+
+
+def _model_notes(member: Member) -> tuple[str, ...]:
+    notes = [COUPLING_NOTE]
+    shapes = {s.section.shape for s in member.segments}
+    if "properties" in shapes:
+        notes.append(
+            "a section given by its properties may not be doubly symmetric: where its shear "
+            "centre is off its centroid, bending and torsion couple and the true frequencies "
+            "are lower than these uncoupled ones"
+        )
+    if member.masses and any(
+        m.polar_inertia > 0.0 or m.rotary_inertia > 0.0 for m in member.masses
+    ):
+        notes.append(
+            "attached bodies are taken as centred on the member's axis; one mounted on a "
+            "flange or a bracket couples bending and torsion"
+        )
+    if "i-beam" in shapes and member.axial_force < 0.0:
+        notes.append("compression in an open section: flexural-torsional effects are not modelled")
+    return tuple(notes)
+
+
+def solve_directions(
+    member: Member,
+    modes: int = 5,
+    *,
+    depth: fe.FEResult | None = None,
+    elements: int | None = None,
+) -> Directions:
+    """Solve every direction of a member.
+
+    Parameters
+    ----------
+    member : Member
+    modes : int
+        Flexible modes wanted in each direction.
+    depth : fe.FEResult, optional
+        The depth-plane solution where already computed (it is reused, not repeated).
+    elements : int, optional
+        Force the bending meshes (see :func:`calc.fe.solve`).
+
+    Returns
+    -------
+    Directions
+
+    Raises
+    ------
+    InputError
+        For bad input in any direction (an override naming an unknown kind, no freedom).
+    """
+    if modes < 1:
+        raise InputError("check.modes", modes, "a whole number of modes, 1 or more")
+    if depth is None:
+        depth = fe.solve(member, modes, elements=elements)
+    results = (
+        Direction(
+            "depth",
+            _direction_modes("depth", depth),
+            depth.rigid_body_modes,
+            solution=depth,
+            handbook=handbook.check(_plain(member), modes),
+            supports=_support_words(member, "depth"),
+            warnings=depth.warnings,
+        ),
+        _width(member, modes, depth, elements),
+        _torsion(member, modes),
+        _axial(member, modes),
+    )
+    return Directions(results, _model_notes(member))
