@@ -242,20 +242,13 @@ def mode_shapes(analysis: Analysis, count: int = FIGURE_MODES, points: int = 401
 
 # --- the element matrices, as the finite-element code builds them --------------------------------
 
-# (name, factor as shown, the factor for unit EI, m and P as a function of h, which matrix)
+# (name, factor as shown, the factor for unit EI, m and P as a function of h, which of
+# fe.element_matrices' (K, K_G, M) it is)
 _ELEMENT_FACTORS = (
     ("K_e", "EI/h^3", lambda h: 1.0 / h**3, 0),
     ("M_e", "m h/420", lambda h: h / 420.0, 2),
     ("G_e", "P/(30h)", lambda h: 1.0 / (30.0 * h), 1),
 )
-
-
-def _element_matrices(h: float) -> tuple[Any, Any, Any]:
-    """Stiffness, geometric stiffness (unit tension) and mass of one element of length ``h``
-    with unit EI and unit mass per length, in unscaled DOFs (w, theta, w, theta)."""
-    from beamtone.calc.fe import element_matrices
-
-    return element_matrices(h, 1.0, 1.0, 1.0)
 
 
 def _term(coefficient: float, power: int) -> str:
@@ -270,7 +263,8 @@ def _term(coefficient: float, power: int) -> str:
 def element_matrix_lines() -> tuple[str, ...]:
     """The element matrices of the finite-element code, written out as the report shows them.
 
-    Each matrix is evaluated for elements of two lengths; the coefficient of every entry is
+    The matrices are those of :func:`beamtone.calc.fe.element_matrices`, evaluated for
+    elements of two lengths; the coefficient of every entry is
     its value for a unit length divided by the factor shown, and the power of h in it is read
     from the ratio of the two.
 
@@ -279,7 +273,10 @@ def element_matrix_lines() -> tuple[str, ...]:
     tuple of str
         ``K_e = EI/h^3 [[12, 6h, ...], ...]``, then ``M_e`` and ``G_e``, two lines each.
     """
-    one, two = _element_matrices(1.0), _element_matrices(2.0)
+    from beamtone.calc.fe import element_matrices
+
+    # unit bending stiffness, mass per length and tension: (K, K_G, M)
+    one, two = element_matrices(1.0, 1.0, 1.0, 1.0), element_matrices(2.0, 1.0, 1.0, 1.0)
     lines = []
     for name, shown, factor, which in _ELEMENT_FACTORS:
         a, b = one[which] / factor(1.0), two[which] / factor(2.0)

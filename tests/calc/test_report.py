@@ -276,15 +276,16 @@ def test_element_matrices_shown_are_the_fe_code_s() -> None:
 def test_element_matrices_follow_the_fe_code(monkeypatch: pytest.MonkeyPatch) -> None:
     """The formulas are read from the finite-element code, not typed: a changed element
     matrix shows in the report."""
-    from beamtone.calc import report as content
+    from beamtone.calc import fe
+    from beamtone.calc.report import element_matrix_lines
 
-    real = content._element_matrices
+    real = fe.element_matrices
 
-    def changed(h: float) -> Any:
-        k, g, m = real(h)
+    def changed(h: float, EI: float, m: float, P: float = 0.0) -> Any:
+        k, g, mm = real(h, EI, m, P)
         k = k.copy()
         k[0, 0] *= 2.0
-        return k, g, m
+        return k, g, mm
 
-    monkeypatch.setattr(content, "_element_matrices", changed)
-    assert content.element_matrix_lines()[0].startswith("K_e = EI/h^3 [[24, 6h,")
+    monkeypatch.setattr(fe, "element_matrices", changed)
+    assert element_matrix_lines()[0].startswith("K_e = EI/h^3 [[24, 6h,")
