@@ -29,7 +29,7 @@ import numpy as np
 from beamtone.calc import fe
 from beamtone.calc.fe import FEResult
 from beamtone.calc.sensitivity import Sensitivities, sensitivities
-from beamtone.calc.tolerances import Design, Tolerance, vary
+from beamtone.calc.tolerances import Design, Tolerance, vary_within
 
 __all__ = [
     "MAX_CORNERS",
@@ -167,10 +167,6 @@ def latin_hypercube(tolerances: Sequence[Tolerance], samples: int, seed: int = _
     return low + u * (high - low)
 
 
-def _values(tolerances: Sequence[Tolerance], point: np.ndarray) -> dict[str, float]:
-    return {t.key: t.key_value(float(v)) for t, v in zip(tolerances, point, strict=True)}
-
-
 def _solve_points(
     design: Design, tolerances: Sequence[Tolerance], points: np.ndarray, modes: int
 ) -> tuple[np.ndarray, float]:
@@ -178,7 +174,7 @@ def _solve_points(
     out = np.empty((len(points), modes))
     worst = 0.0
     for i, point in enumerate(points):
-        member = vary(design, _values(tolerances, point)).solved_member()
+        member = vary_within(design, tolerances, point)
         res = fe.solve(member, modes)
         out[i] = res.frequencies_hz
         worst = max(worst, max(m.estimated_error for m in res.modes))

@@ -43,7 +43,15 @@ from beamtone.calc.fe import FEResult
 from beamtone.calc.model import POSITION_TOLERANCE, Member
 from beamtone.calc.tolerances import COMPLIANCE, Design, Tolerance, vary
 
-__all__ = ["Sensitivities", "sensitivities", "element_forms"]
+__all__ = [
+    "Sensitivities",
+    "Layout",
+    "Coefficients",
+    "sensitivities",
+    "element_forms",
+    "layout",
+    "coefficients",
+]
 
 _STEP = 1e-6  # relative central-difference step on the inputs (property formulas only)
 _COMPLEX_STEP = 1e-20  # relative complex step on the mesh and the coefficients
@@ -92,8 +100,23 @@ class Sensitivities:
 
 
 @dataclass(frozen=True)
-class _Model:
-    """What the quadratic forms need of a member on a fixed mesh topology (SI)."""
+class Coefficients:
+    """What the quadratic forms need of a member on a fixed mesh layout, in SI.
+
+    Attributes
+    ----------
+    EI, m : ndarray, shape (elements,)
+        Bending stiffness [N*m^2] and mass per length [kg/m] of each element.
+    P : float
+        Axial force [N], tension positive.
+    spring_k, spring_kr, spring_at : ndarray
+        Springs: stiffness [N/m], rotational stiffness [N*m/rad], position [m].
+    mass_m, mass_j, mass_at : ndarray
+        Point masses: mass [kg], rotary inertia [kg*m^2], position [m].
+    points : dict
+        Position [m] of every placed thing by label: ``("b", k)`` segment boundaries,
+        ``("s", i)`` inner supports, ``("m", i)`` masses, ``("k", i)`` springs.
+    """
 
     EI: np.ndarray  # per element
     m: np.ndarray  # per element
@@ -107,13 +130,14 @@ class _Model:
     points: dict[tuple[str, int], float]  # boundaries, inner supports, masses, springs
 
 
-def _model(member: Member, element_segment: np.ndarray) -> _Model:
+def coefficients(member: Member, element_segment: np.ndarray) -> Coefficients:
+    """The coefficients of ``member`` on elements whose segments are ``element_segment``."""
     segs = member.segments
     points = {("b", k): x for k, x in enumerate(member.boundaries)}
     points.update({("s", i): s.at for i, s in enumerate(member.inner_supports)})
     points.update({("m", i): p.at for i, p in enumerate(member.masses)})
     points.update({("k", i): s.at for i, s in enumerate(member.springs)})
-    return _Model(
+    return Coefficients(
         EI=np.array([s.bending_stiffness for s in segs])[element_segment],
         m=np.array([s.mass_per_length for s in segs])[element_segment],
         P=member.axial_force,
@@ -183,7 +207,7 @@ def element_forms(
 
 def _forms(
     x: np.ndarray,
-    model: _Model,
+    model: Coefficients,
     w: np.ndarray,
     theta: np.ndarray,
     spring_node: tuple[np.ndarray, np.ndarray],
@@ -208,7 +232,23 @@ def _forms(
 
 
 @dataclass(frozen=True)
-class _Topology:
+class Layout:
+    """A mesh's nodes and what each placed thing rides on.
+
+    Attributes
+    ----------
+    x : ndarray
+        Node positions [m].
+    element_segment : ndarray of int
+        Segment index of each element.
+    spring_nodes, mass_nodes : ndarray of int
+        Node carrying each spring and each mass.
+    point_node : dict
+        Node carrying each labelled point (see :class:`Coefficients`).
+    station_owner : dict
+        For every node placed by a point, the point that places it.
+    """
+
     x: np.ndarray
     element_segment: np.ndarray
     spring_nodes: np.ndarray
@@ -217,13 +257,14 @@ class _Topology:
     station_owner: dict[int, tuple[str, int]]  # node -> the point that places it
 
 
-def _topology(member: Member, x: np.ndarray) -> _Topology:
+def layout(member: Member, x: np.ndarray) -> Layout:
+    """The layout of ``member`` on the nodes ``x`` [m] of one of its meshes (a mode's ``x``)."""
     mesh = fe.mesh_through(member, x)
     if len(mesh.x) != len(x) or not np.array_equal(mesh.x, x):
         raise AssertionError("the mode's nodes do not form a mesh of this member")
     mid = 0.5 * (x[:-1] + x[1:])
     element_segment = np.array([member.segment_index(float(p)) for p in mid], dtype=int)
-    model = _model(member, element_segment)
+    model = coefficients(member, element_segment)
     tol = POSITION_TOLERANCE * member.length
     point_node: dict[tuple[str, int], int] = {}
     owner: dict[int, tuple[str, int]] = {}
@@ -235,10 +276,10 @@ def _topology(member: Member, x: np.ndarray) -> _Topology:
             owner[j] = label
     spring_nodes = np.array([point_node[("k", i)] for i in range(len(member.springs))], dtype=int)
     mass_nodes = np.array([point_node[("m", i)] for i in range(len(member.masses))], dtype=int)
-    return _Topology(x, element_segment, spring_nodes, mass_nodes, point_node, owner)
+    return Layout(x, element_segment, spring_nodes, mass_nodes, point_node, owner)
 
 
-def _node_velocity(topo: _Topology, velocity: dict[tuple[str, int], float]) -> np.ndarray:
+def _node_velocity(topo: Layout, velocity: dict[tuple[str, int], float]) -> np.ndarray:
     """Velocity of every node: stations move with their point, others in proportion."""
     nodes = np.array(sorted(topo.station_owner))
     v_station = np.array([velocity[topo.station_owner[j]] for j in nodes])
@@ -273,8 +314,8 @@ def sensitivities(
     x = modes[0].x
     w = np.column_stack([md.w_modal for md in modes])
     theta = np.column_stack([md.theta_modal for md in modes])
-    topo = _topology(member, x)
-    model = _model(member, topo.element_segment)
+    topo = layout(member, x)
+    model = coefficients(member, topo.element_segment)
     spring_e = np.array([model.spring_at[i] - x[j] for i, j in enumerate(topo.spring_nodes)])
     mass_e = np.array([model.mass_at[i] - x[j] for i, j in enumerate(topo.mass_nodes)])
     U, T = _forms(x, model, w, theta, (topo.spring_nodes, spring_e), (topo.mass_nodes, mass_e))
@@ -298,8 +339,8 @@ def sensitivities(
 class _Nominal:
     """The nominal solution as the derivatives need it."""
 
-    topo: _Topology
-    model: _Model
+    topo: Layout
+    model: Coefficients
     w: np.ndarray  # (nodes, modes), mass-normalized
     theta: np.ndarray
     lam: np.ndarray  # U / T of each mode [rad^2/s^2]
@@ -328,7 +369,7 @@ def _derivative(design: Design, tol: Tolerance, nom: _Nominal) -> np.ndarray:
         span = step
         up, down = (up, base) if up is not None else (base, down)
     seg = topo.element_segment
-    hi, lo = _model(up, seg), _model(down, seg)
+    hi, lo = coefficients(up, seg), coefficients(down, seg)
     if set(hi.points) != set(model.points) or set(lo.points) != set(model.points):
         raise InputError(tol.key, tol.written, "a variation that keeps the member's layout")
 
@@ -339,7 +380,7 @@ def _derivative(design: Design, tol: Tolerance, nom: _Nominal) -> np.ndarray:
     v_nodes = _node_velocity(topo, velocity)
     eps = _COMPLEX_STEP * scale
     cx = lambda a, b, c: a + 1j * eps * rate(b, c)  # noqa: E731 - a + i eps da/dp
-    moved = _Model(
+    moved = Coefficients(
         EI=cx(model.EI, hi.EI, lo.EI),
         m=cx(model.m, hi.m, lo.m),
         P=complex(cx(model.P, hi.P, lo.P)),

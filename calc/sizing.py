@@ -58,6 +58,7 @@ __all__ = [
     "parse_harmonics",
     "SizingRequest",
     "read_request",
+    "set_value",
     "read_value",
     "run_request",
 ]
@@ -108,7 +109,7 @@ class Variation:
         member = self.sheet.member
         for var, v in ((self, value), *others):
             try:
-                member = var._set(member, v)
+                member = set_value(var.sheet, member, var.key, v, var.text(v))
             except InputError as exc:
                 raise InputError(
                     "--between",
@@ -116,89 +117,6 @@ class Variation:
                     f"values of {var.key} the worksheet accepts ({exc.key}: {exc.expected})",
                 ) from None
         return member
-
-    def _set(self, member: Member, value: float) -> Member:
-        """``member`` with this quantity set to ``value`` [SI]."""
-        entry = schema.entry(self.key)
-        entry.check(value, self.key, self.text(value))
-        parts = key_path(self.key)
-        head, name = parts[0], parts[-1]
-        if head in ("mass", "spring"):  # model fields are named as the worksheet's keys
-            i = int(parts[1])
-            rows = member.masses if head == "mass" else member.springs
-            new = replace(rows[i], **{str(name): value})
-            check = "mass" if head == "mass" else "stiffness"  # the key its message names
-            written = self.text(value) if name == check else self._written(head, i, check)
-            if head == "mass":
-                point_mass(new.at, new.mass, new.rotary_inertia, f"mass[{i}]", written)
-            else:
-                spring(new.at, new.stiffness, new.rotational_stiffness, f"spring[{i}]", written)
-            rows = (*rows[:i], new, *rows[i + 1 :])
-            return replace(member, **{"masses" if head == "mass" else "springs": rows})
-        if head == "supports":
-            i = int(parts[2])
-            inner = member.inner_supports
-            moved = replace(inner[i], at=value)
-            return replace(member, inner_supports=(*inner[:i], moved, *inner[i + 1 :]))
-        if parts == ["member", "axial_force"]:
-            return replace(member, axial_force=value)
-        return self._set_segments(member, parts, value)
-
-    def _written(self, table: str, index: int, name: str) -> object:
-        """What the worksheet wrote for ``table[index].name`` (for messages)."""
-        try:
-            return find_value(self.sheet.data, f"{table}[{index}].{name}")
-        except InputError:
-            return None
-
-    def _set_segments(self, member: Member, parts: list[str | int], value: float) -> Member:
-        """A quantity of ``[member]`` (for every segment that inherits it) or of one
-        ``[[member.segment]]``."""
-        table = self.sheet.data["member"]
-        rows = table.get("segment")
-        stepped = rows is not None
-        if stepped and not isinstance(rows, list):
-            rows = [rows]
-        if parts[1] == "segment":
-            which = [int(parts[2])]
-            rest = parts[3:]
-        else:
-            rest = parts[1:]
-            owner = str(rest[0])
-            which = [i for i in range(len(member.segments))
-                     if not stepped or owner not in rows[i]]  # fmt: skip
-        name = str(rest[-1])
-        if name == "length" and len(rest) == 1:
-            if stepped and "length" in table:  # the loader's check of member.length
-                given = sum(s.length for s in member.segments)
-                raise InputError(
-                    "member.length",
-                    self.text(value) if parts[1] != "segment" else table["length"],
-                    f"the sum of the segment lengths ({given:.6g} m), or no member.length at all",
-                )
-            old_length = member.length
-            segments = list(member.segments)
-            for i in which:
-                segments[i] = replace(segments[i], length=value)
-            return _follow_the_end(member, tuple(segments), old_length)
-        segments = list(member.segments)
-        for i in which:
-            seg = segments[i]
-            segments[i] = self._set_in_segment(seg, rest, value, i if stepped else None)
-        return replace(member, segments=tuple(segments))
-
-    def _set_in_segment(
-        self, seg: Segment, rest: list[str | int], value: float, index: int | None
-    ) -> Segment:
-        name = str(rest[-1])
-        if rest[0] == "added_mass":
-            return replace(seg, added_mass=value)
-        if rest[0] == "material":
-            return replace(seg, material=replace(seg.material, **{name: value}))
-        # a section dimension: rebuilt, so its geometry is checked as the loader checks it
-        where = self.key.rsplit(".", 1)[0]
-        dims = {**seg.section.dimensions, name: value}
-        return replace(seg, section=build_section(seg.section.shape, dims, where))
 
     def rewrite(self, text: str, value: float) -> str:
         """Worksheet text with the quantity set to ``value`` [SI] in the worksheet's unit,
@@ -236,6 +154,117 @@ class Variation:
                     match = _NUMBER.match(text)
                     unit = (text[match.end() :] if match else "m").strip() or "m"
                     item["at"] = f"{convert_from_si(new, unit):.10g} {unit}"
+
+
+def set_value(
+    sheet: Worksheet, member: Member, key: str, value: float, written: object = None
+) -> Member:
+    """``member`` (a member of ``sheet``) with the quantity at ``key`` set to ``value`` [SI].
+
+    The one way to vary a worksheet quantity on the model: :func:`dataclasses.replace`, the
+    value checked against the schema's limits, a section rebuilt (its geometry checked),
+    masses and springs at the right end carried along by a change of length, the member
+    validated again, exactly as the loader checks the same value written.
+
+    Parameters
+    ----------
+    sheet : Worksheet
+        The worksheet ``member`` came from (which segments inherit ``[member]`` keys).
+    member : Member
+    key : str
+        A key path the schema marks variable (``member.section.depth``, ``mass[0].at``).
+    value : float
+        The new value [SI unit of the key's dimension].
+    written : object, optional
+        The value as shown in messages (default: the SI number and unit).
+
+    Raises
+    ------
+    InputError
+        Keyed by the entry that refuses the value (``key`` itself, ``member.length`` for
+        stepped members that also give it, ``mass[0].mass`` for a point mass of nothing...).
+    """
+    entry = schema.find(key)
+    if entry is None or entry.kind != schema.QUANTITY or not entry.variable:
+        raise InputError(key, value, "a quantity of the worksheet, such as member.length")
+    assert entry.dimension is not None
+    shown = written if written is not None else f"{value:g} {entry.dimension.si_unit}"
+    entry.check(value, key, str(shown))
+    parts = key_path(key)
+    head, name = parts[0], parts[-1]
+    if head in ("mass", "spring"):  # model fields are named as the worksheet's keys
+        i = int(parts[1])
+        rows = member.masses if head == "mass" else member.springs
+        new = replace(rows[i], **{str(name): value})
+        check = "mass" if head == "mass" else "stiffness"  # the key its message names
+        said = shown if name == check else _written(sheet, f"{head}[{i}].{check}")
+        if head == "mass":
+            point_mass(new.at, new.mass, new.rotary_inertia, f"mass[{i}]", said)
+        else:
+            spring(new.at, new.stiffness, new.rotational_stiffness, f"spring[{i}]", said)
+        rows = (*rows[:i], new, *rows[i + 1 :])
+        return replace(member, **{"masses" if head == "mass" else "springs": rows})
+    if head == "supports":
+        i = int(parts[2])
+        inner = member.inner_supports
+        moved = replace(inner[i], at=value)
+        return replace(member, inner_supports=(*inner[:i], moved, *inner[i + 1 :]))
+    if parts == ["member", "axial_force"]:
+        return replace(member, axial_force=value)
+    return _set_segments(sheet, member, key, parts, value, shown)
+
+
+def _written(sheet: Worksheet, key: str) -> object:
+    """What the worksheet wrote at ``key`` (for messages)."""
+    try:
+        return find_value(sheet.data, key)
+    except InputError:
+        return None
+
+
+def _set_segments(
+    sheet: Worksheet, member: Member, key: str, parts: list[str | int], value: float,
+    shown: object,
+) -> Member:  # fmt: skip
+    """A quantity of ``[member]`` (for every segment that inherits it) or of one
+    ``[[member.segment]]``."""
+    table = sheet.data["member"]
+    rows = table.get("segment")
+    stepped = rows is not None
+    if stepped and not isinstance(rows, list):
+        rows = [rows]
+    if parts[1] == "segment":
+        which = [int(parts[2])]
+        rest = parts[3:]
+    else:
+        rest = parts[1:]
+        owner = str(rest[0])
+        which = [i for i in range(len(member.segments))
+                 if not stepped or owner not in rows[i]]  # fmt: skip
+    name = str(rest[-1])
+    segments = list(member.segments)
+    if name == "length" and len(rest) == 1:
+        if stepped and "length" in table:  # the loader's check of member.length
+            given = sum(s.length for s in member.segments)
+            raise InputError(
+                "member.length",
+                shown if parts[1] != "segment" else table["length"],
+                f"the sum of the segment lengths ({given:.6g} m), or no member.length at all",
+            )
+        for i in which:
+            segments[i] = replace(segments[i], length=value)
+        return _follow_the_end(member, tuple(segments), member.length)
+    for i in which:
+        seg = segments[i]
+        if rest[0] == "added_mass":
+            segments[i] = replace(seg, added_mass=value)
+        elif rest[0] == "material":
+            segments[i] = replace(seg, material=replace(seg.material, **{name: value}))
+        else:  # a section dimension: rebuilt, so its geometry is checked as the loader does
+            dims = {**seg.section.dimensions, name: value}
+            where = key.rsplit(".", 1)[0]
+            segments[i] = replace(seg, section=build_section(seg.section.shape, dims, where))
+    return replace(member, segments=tuple(segments))
 
 
 def _follow_the_end(member: Member, segments: tuple[Segment, ...], old_length: float) -> Member:

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import math
 import re
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field, replace
 
 from beamtone.calc.compliance import Compliance, compliance_key, compliant_member
@@ -24,7 +24,15 @@ from beamtone.calc.errors import InputError
 from beamtone.calc.model import InnerSupport, Member, PointMass, Segment, Spring
 from beamtone.calc.sections import build_section
 
-__all__ = ["Design", "Tolerance", "vary", "nominal_value", "COMPLIANCE", "VALUE"]
+__all__ = [
+    "Design",
+    "Tolerance",
+    "vary",
+    "vary_within",
+    "nominal_value",
+    "COMPLIANCE",
+    "VALUE",
+]
 
 VALUE = "value"
 """A tolerance on the quantity itself."""
@@ -143,6 +151,29 @@ def vary(design: Design, values: Mapping[str, float]) -> Design:
     for key, value in values.items():
         design = _locate(design, key)[1](value)
     return design
+
+
+def vary_within(design: Design, tolerances: Sequence[Tolerance], point: Sequence[float]) -> Member:
+    """The member the solver sees at one point of the tolerance box (each in its measure).
+
+    Raises
+    ------
+    InputError
+        Keyed by the input the model refuses, with the point named in the hint.
+    """
+    values = {t.key: t.key_value(float(v)) for t, v in zip(tolerances, point, strict=True)}
+    try:
+        return vary(design, values).solved_member()
+    except InputError as exc:
+        where = ", ".join(
+            f"{t.key} = {float(v):.6g}" for t, v in zip(tolerances, point, strict=True)
+        )
+        raise InputError(
+            exc.key,
+            exc.value,
+            exc.expected,
+            f"reached inside the tolerances at {where}; narrow the tolerances",
+        ) from None
 
 
 def _locate(design: Design, key: str):  # noqa: ANN202 - (value, setter)

@@ -235,3 +235,20 @@ def test_sizing_request_in_si() -> None:
     )  # fmt: skip
     assert (request.low, request.high, request.excitation_hz) == (0.5, 1.0, 20.0)
     assert request.harmonics == (1, 2) and request.margin == pytest.approx(0.15)
+
+
+def test_set_value_is_the_one_way_to_vary_the_model() -> None:
+    sheet = loads(CANTILEVER)
+    member = sizing.set_value(sheet, sheet.member, "member.material.density", 2700.0)
+    assert member.segments[0].material.density == 2700.0
+    assert (
+        member.segments[0].material.youngs_modulus
+        == sheet.member.segments[0].material.youngs_modulus
+    )
+    for key in ("estimate.reference", "supports.left", "member.section.shape"):
+        with pytest.raises(InputError) as info:
+            sizing.set_value(sheet, sheet.member, key, 1.0)
+        assert info.value.key == key
+    with pytest.raises(InputError) as info:
+        sizing.set_value(sheet, sheet.member, "member.section.wall", -0.001)
+    assert info.value.key == "member.section.wall"
