@@ -18,7 +18,6 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 from beamtone.calc.caution import CAUTION
-from beamtone.calc.errors import InputError
 
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.analysis import Analysis
@@ -453,63 +452,26 @@ def _purpose(analysis: Analysis) -> tuple[Block, ...]:
 # inputs
 
 
-def _leaves(data: Any, prefix: str = "") -> list[tuple[str, Any]]:
-    out: list[tuple[str, Any]] = []
-    for name, value in data.items():
-        if not prefix and name == "record":
-            continue
-        key = f"{prefix}.{name}" if prefix else name
-        if isinstance(value, dict):
-            out += _leaves(value, key)
-        elif isinstance(value, list) and value and all(isinstance(v, dict) for v in value):
-            for i, item in enumerate(value):
-                out += _leaves(item, f"{key}[{i}]")
-        elif isinstance(value, list):
-            out += [(f"{key}[{i}]", item) for i, item in enumerate(value)]
-        else:
-            out.append((key, value))
-    return out
-
-
-def _entered(value: Any) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, str):
-        return value
-    return str(value)
-
-
-def _si(analysis: Analysis, key: str, value: Any) -> str:
-    from beamtone.calc import materials, sizing
-
-    if key == "estimate.reference" and analysis.sheet.estimate.reference is not None:
-        return f"{number(analysis.sheet.estimate.reference)} m"
-    if not isinstance(value, str):
-        return "-"
-    if key.endswith(".material") or key == "material":
-        found = materials.lookup(value)
-        if found is not None:
-            return (
-                f"library: E = {number(found.youngs_modulus)} Pa, "
-                f"\u03c1 = {number(found.density)} kg/m^3"
-            )
-        return "-"
-    try:
-        var = sizing.variation(analysis.sheet, key)
-    except InputError:
-        return "-"
-    return f"{number(var.value)} {var.dimension.si_unit}"
-
-
 def inputs_rows(analysis: Analysis) -> tuple[tuple[str, str, str], ...]:
     """The rows of the inputs table: (key path, value as entered, value in SI).
 
-    Every entry of the worksheet except its stored ``[record]``.
+    Every entry of the worksheet except its stored ``[record]``, from the schema
+    (:func:`calc.schema.input_rows`); a library material shows the values it stands for.
     """
-    return tuple(
-        (key, _entered(value), _si(analysis, key, value))
-        for key, value in _leaves(analysis.sheet.data)
-    )
+    from beamtone.calc import materials, schema
+
+    def si(row: schema.InputRow) -> str:
+        if row.si is not None:
+            return f"{number(row.si)} {row.unit}"
+        found = materials.lookup(row.written) if row.key.endswith(".material") else None
+        if found is None:
+            return "-"
+        return (
+            f"library: E = {number(found.youngs_modulus)} Pa, "
+            f"\u03c1 = {number(found.density)} kg/m^3"
+        )
+
+    return tuple((r.key, r.written, si(r)) for r in schema.input_rows(analysis.sheet.data))
 
 
 def _inputs(analysis: Analysis) -> tuple[Block, ...]:

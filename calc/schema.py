@@ -131,7 +131,8 @@ class Entry:
         return self.pattern.rsplit(".", 1)[-1].removesuffix("[]")
 
     def parse(self, text: object, key: str) -> float:
-        """A quantity as written to SI [``dimension.si_unit``], with this entry's limits.
+        """A quantity as written to SI [``dimension.si_unit``], with this entry's limits (a
+        frequency in cycles per second, ``"1480 rpm"`` -> 24.67 Hz: units.parse_frequency).
 
         Raises
         ------
@@ -139,6 +140,10 @@ class Entry:
             Keyed ``key``, for text this entry does not accept.
         """
         assert self.dimension is not None, self.pattern
+        from beamtone.calc.units import FREQUENCY, parse_frequency
+
+        if self.dimension == FREQUENCY:  # cycles per second: rpm and rad/s divided by 2 pi
+            return parse_frequency(text, key)
         return parse_quantity(
             text,
             self.dimension,

@@ -252,3 +252,12 @@ def test_set_value_is_the_one_way_to_vary_the_model() -> None:
     with pytest.raises(InputError) as info:
         sizing.set_value(sheet, sheet.member, "member.section.wall", -0.001)
     assert info.value.key == "member.section.wall"
+
+
+def test_a_frequency_entry_reads_cycles_per_second() -> None:
+    """1480 rpm is 1480/60 Hz, not 1480 * 2 pi / 60 (pint reads rpm as an angular velocity)."""
+    from beamtone.calc.units import FREQUENCY
+
+    e = schema.Entry("speed", schema.QUANTITY, "speed", "a running speed", FREQUENCY)
+    assert e.parse("1480 rpm", "speed") == pytest.approx(1480 / 60, rel=1e-12)
+    assert e.parse("120 Hz", "speed") == 120.0
