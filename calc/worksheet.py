@@ -19,15 +19,13 @@ from beamtone.calc import materials, schema
 from beamtone.calc.errors import InputError
 from beamtone.calc.materials import Material
 from beamtone.calc.model import (
-    END_KINDS,
-    INNER_KINDS,
     InnerSupport,
     Member,
     PointMass,
     Segment,
     Spring,
 )
-from beamtone.calc.sections import SHAPES, Section, build_section
+from beamtone.calc.sections import Section, build_section
 
 __all__ = [
     "FORMAT", "MAX_BYTES", "MAX_MODES", "MAX_RITZ", "EstimateSettings", "Worksheet", "load",
@@ -200,6 +198,21 @@ def _keys(table: dict[str, Any], key: str, allowed: tuple[str, ...] | None = Non
             raise InputError(path, name, expected, hint or "unknown key")
 
 
+def _choice(table: dict[str, Any], name: str, key: str, hints: dict[str, str] | None = None) -> str:
+    """The required choice ``name`` of ``table`` (at ``key``), one of its schema entry's
+    choices; a wrong word gets a did-you-mean (or the hint ``hints`` gives for it)."""
+    path = f"{key}.{name}"
+    choices = schema.entry(path).choices
+    expected = "one of " + ", ".join(choices)
+    value = _required(table, name, key, expected)
+    if not isinstance(value, str) or value not in choices:
+        hint = _hint(value, choices) if isinstance(value, str) else None
+        if isinstance(value, str) and hints and value in hints:
+            hint = hints[value]
+        raise InputError(path, value, expected, hint)
+    return value
+
+
 def _quantity(table: dict[str, Any], name: str, key: str, *, required: bool = True) -> float:
     """The quantity ``name`` of ``table`` (at ``key``) in SI, parsed with its schema entry's
     dimension and limits; a missing required one is named with the entry's ``missing``."""
@@ -360,14 +373,10 @@ def _material(value: object, key: str) -> Material:
 
 def _section(value: object, key: str) -> Section:
     table = _table(value, key, 'a section, e.g. { shape = "round", diameter = "30 mm" }')
-    shape = table.get("shape")
-    if shape is None and {"area", "second_moment"} & set(table):
+    if "shape" not in table and {"area", "second_moment"} & set(table):
         shape = "properties"
-    if shape is None:
-        raise InputError(f"{key}.shape", None, "one of " + ", ".join(SHAPES), "it is missing")
-    if not isinstance(shape, str) or shape not in SHAPES:
-        hint = _hint(shape, list(SHAPES)) if isinstance(shape, str) else None
-        raise InputError(f"{key}.shape", shape, "one of " + ", ".join(SHAPES), hint)
+    else:
+        shape = _choice(table, "shape", key)
     required, optional = schema.SECTION_SHAPES[shape]
     _keys(table, key, schema.section_keys(shape))
     dims: dict[str, float] = {}
@@ -385,22 +394,14 @@ def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]
     ends = []
     for side in ("left", "right"):
         key = f"supports.{side}"
-        kind = _required(table, side, "supports", "one of " + ", ".join(END_KINDS))
-        if not isinstance(kind, str) or kind not in END_KINDS:
-            hint = _hint(kind, END_KINDS) if isinstance(kind, str) else None
-            if isinstance(kind, str) and kind in ("spring", "elastic"):
-                hint = "write an elastic end as free plus a [[spring]] at that end"
-            raise InputError(key, kind, "one of " + ", ".join(END_KINDS), hint)
-        ends.append(kind)
+        elastic = "write an elastic end as free plus a [[spring]] at that end"
+        ends.append(_choice(table, side, "supports", {"spring": elastic, "elastic": elastic}))
     inner = []
     for i, item in enumerate(_tables(table.get("inner", []), "supports.inner", "{ at, kind }")):
         key = f"supports.inner[{i}]"
         _keys(item, key)
         at = _quantity(item, "at", key)
-        kind = _required(item, "kind", key, "one of " + ", ".join(INNER_KINDS))
-        if not isinstance(kind, str) or kind not in INNER_KINDS:
-            hint = _hint(kind, INNER_KINDS) if isinstance(kind, str) else None
-            raise InputError(f"{key}.kind", kind, "one of " + ", ".join(INNER_KINDS), hint)
+        kind = _choice(item, "kind", key)
         inner.append(InnerSupport(at, kind))
     return ends[0], ends[1], tuple(inner)
 
