@@ -1,11 +1,14 @@
 """Small JSON caches in the user's cache folder, for results a library works out slowly.
 
-Two things are kept: what sympy finds about a shape formula (:mod:`calc.symbolic`) and what
-pint makes of a unit expression (:mod:`calc.units`).  Each cache is one JSON file holding a
-format number, the version of the library whose results it keeps, and a table of entries;
-a file that is missing, unreadable, damaged or written for another version reads as empty.
-Writes replace the file atomically, and any failure to write only loses the cache.  Nothing
-read back is ever executed: each user validates every entry before trusting it.
+One thing is kept: what sympy finds about a shape formula (:mod:`calc.symbolic`).  Each
+cache is one JSON file holding a format number, a version naming both beamtone's and the
+library's versions (:func:`version_key`), and a table of entries; a file that is missing,
+unreadable, damaged, not a regular file, larger than :data:`MAX_BYTES` or written for
+another version reads as empty.  Writes replace the file atomically, and any failure to
+write only loses the cache.  Nothing read back is ever executed, and the user of a cache
+checks every entry that could change a number against a cheap independent computation
+before trusting it.  Inside :func:`bypassed` (``beamtone verify``) no cache is read or
+written.
 
 The folder is ``$BEAMTONE_CACHE`` where that is set, else ``$XDG_CACHE_HOME/beamtone``
 (``~/.cache/beamtone`` by default).
@@ -13,17 +16,40 @@ The folder is ``$BEAMTONE_CACHE`` where that is set, else ``$XDG_CACHE_HOME/beam
 
 from __future__ import annotations
 
+import contextlib
 import json
 import os
 import tempfile
+import threading
+from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
 
-__all__ = ["folder", "read", "store", "library_version"]
+__all__ = ["folder", "read", "store", "library_version", "version_key", "bypassed", "enabled"]
 
-_FORMAT = 1
+_FORMAT = 2
 MAX_ENTRIES = 400
 """Entries kept per cache file; the oldest go first."""
+MAX_BYTES = 4_000_000
+"""Largest cache file read [bytes]."""
+
+_bypass = threading.local()
+
+
+@contextlib.contextmanager
+def bypassed() -> Iterator[None]:
+    """Within this block (in this thread) no cache is read or written."""
+    before = getattr(_bypass, "depth", 0)
+    _bypass.depth = before + 1
+    try:
+        yield
+    finally:
+        _bypass.depth = before
+
+
+def enabled() -> bool:
+    """Whether caches may be used here (not inside :func:`bypassed`)."""
+    return getattr(_bypass, "depth", 0) == 0
 
 
 def folder() -> Path | None:
@@ -46,14 +72,23 @@ def library_version(name: str) -> str:
         return "unknown"
 
 
+def version_key(library: str) -> str:
+    """The version a cache of ``library``'s results is written for: beamtone's and its own."""
+    return f"beamtone {library_version('beamtone')}; {library} {library_version(library)}"
+
+
 def read(name: str, version: str) -> dict[str, Any]:
     """The entries of cache ``name`` written for ``version`` (empty if there are none)."""
+    from beamtone.calc.errors import InputError
+    from beamtone.calc.files import read_limited
+
     where = folder()
-    if where is None:
+    if where is None or not enabled():
         return {}
     try:
-        data = json.loads((where / f"{name}.json").read_text(encoding="utf-8"))
-    except (OSError, ValueError, UnicodeDecodeError, RecursionError):
+        raw = read_limited(where / f"{name}.json", MAX_BYTES, "a cache")
+        data = json.loads(raw.decode("utf-8"))
+    except (InputError, OSError, ValueError, UnicodeDecodeError, RecursionError):
         return {}
     if (
         not isinstance(data, dict)
@@ -68,7 +103,7 @@ def read(name: str, version: str) -> dict[str, Any]:
 def store(name: str, version: str, key: str, entry: Any, limit: int | None = None) -> None:
     """Add (or renew) one entry of cache ``name``."""
     where = folder()
-    if where is None:
+    if where is None or not enabled():
         return
     path = where / f"{name}.json"
     entries = dict(read(name, version))

@@ -495,6 +495,8 @@ def rayleigh_shape(member: Member, text: str, key: str = "estimate.shape") -> Ra
     expression = named_shape(member, name) if name in SHAPE_NAMES else name
     parsed, facts = _shape(expression, key)
     notes = admissibility(member, parsed, facts, key, text)
+    if facts.note is not None:  # sympy's budget ran out: say how the quotient was found
+        notes = (*notes, facts.note)
     quad = _quadrature(member)
     trial = _expression_trial(parsed, facts, member.length, key)
     K, M, rigid = _without_rigid(member, [trial], quad)

@@ -204,3 +204,124 @@ def test_abs_that_sympy_drops_has_its_slope_at_zero() -> None:
     assert with_abs.omega == pytest.approx(plain.omega, rel=1e-13)
     w, d1, d2 = derivatives(parse_formula("abs(-x)"), np.array([0.0, 0.5]), 1.0)
     assert list(d1) == [1.0, 1.0] and list(d2) == [0.0, 0.0]
+
+
+# --- the built-in shapes' shipped facts, checked against sympy -------------------------------
+
+
+def _shipped() -> dict[str, dict]:
+    from importlib import resources
+
+    text = resources.files("beamtone.calc").joinpath("shape_facts.json").read_text("utf-8")
+    return json.loads(text)["entries"]
+
+
+def test_shipped_facts_cover_every_builtin_shape() -> None:
+    texts = set()
+    for pair in rayleigh.NAMED_SHAPES.values():
+        for template in pair:
+            texts |= {template.replace("X", "(x/L)"), template.replace("X", "(1 - x/L)")}
+    assert set(_shipped()) == texts
+
+
+@pytest.mark.parametrize("text", sorted(_shipped()))
+def test_shipped_facts_agree_with_sympy(text: str) -> None:
+    """Each shipped fact against sympy (a general-purpose reference library), independently:
+    the printed form, the exact end values, and the integrals by mpmath quadrature."""
+    import mpmath
+
+    entry = _shipped()[text]
+    x, L = symbols()
+    expr = parse_shape(text)
+    assert sp.simplify(sp.sympify(entry["expression"], locals={"L": L, "x": x}) - expr) == 0
+    derivs = [expr, sp.diff(expr, x), sp.diff(expr, x, 2), sp.diff(expr, x, 3)]
+    for key, state in entry["ends"].items():
+        order, end = key.split("@")
+        value = derivs[int(order)].subs(x, 0 if end == "0" else L)
+        if state == "zero":
+            assert sp.simplify(value) == 0, key
+        elif state == "nonzero":
+            assert sp.simplify(value) != 0, key
+    facts = symbolic._from_json(entry)
+    assert facts is not None and facts.note is None and entry["integrals"] is not None
+    length = 1.3
+    mine = symbolic.integral_values(facts, length)
+    mpmath.mp.dps = 30
+    for k, value in zip((2, 1, 0), mine, strict=True):
+        f = sp.lambdify(x, (derivs[k] ** 2).subs(L, length), "mpmath")
+        assert value == pytest.approx(float(mpmath.quad(f, [0, length])), rel=1e-12)
+    c2 = sp.sympify(entry["c_squared"])
+    assert float(c2) == pytest.approx(length**4 * mine[0] / mine[2], rel=1e-12)
+    assert entry["c_squared_value"] == pytest.approx(float(c2), rel=1e-15)
+
+
+def test_builtin_shapes_need_no_sympy(tmp_path: Path) -> None:
+    from tests.hardening.bounded import python
+
+    code = (
+        "import sys; from beamtone.calc import symbolic\n"
+        f"for t in {sorted(_shipped())!r}: symbolic.shape_facts(t)\n"
+        "print('sympy' in sys.modules)"
+    )
+    done = python(code, env={"BEAMTONE_CACHE": str(tmp_path)}, timeout=60)
+    assert done.stdout.strip() == "False", done.stderr
+
+
+# --- facts read back are checked, not trusted ------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    "change",
+    [
+        lambda e: e["integrals"][0].__setitem__(1, ["num", 3, 5]),  # pi^4/(2 L^3) -> 3/5
+        lambda e: e.__setitem__("c_squared_value", 100.0),
+        lambda e: e.__setitem__("c_squared", "100"),
+        lambda e: e["integral_texts"].__setitem__(0, "pi**4/(3*L**3)"),
+        lambda e: e.__setitem__("expression", "sin(2*pi*x/L)"),
+        lambda e: e["ends"].__setitem__("0@L", "nonzero"),
+        lambda e: e["ends"].__setitem__("2@0", "nonzero"),
+    ],
+)
+def test_a_changed_number_in_the_cache_changes_nothing(change: object, fresh_cache: Path) -> None:
+    """Issue 21: a changed integral coefficient raised the Rayleigh estimate, formula unchanged."""
+    member = _members()[0]
+    text = "sin(pi*x/L)"
+    expected = rayleigh.rayleigh_shape(member, text)
+    data = json.loads(fresh_cache.read_text(encoding="utf-8"))
+    entry = data["entries"][text]
+    good = json.loads(json.dumps(entry))
+    change(entry)  # type: ignore[operator]
+    fresh_cache.write_text(json.dumps(data), encoding="utf-8")
+    symbolic._facts.cache_clear()
+    assert rayleigh.rayleigh_shape(member, text) == expected
+    assert json.loads(fresh_cache.read_text(encoding="utf-8"))["entries"][text] == good
+
+
+def test_cache_keys_name_beamtone_and_sympy(fresh_cache: Path) -> None:
+    from importlib.metadata import version
+
+    symbolic.shape_facts("x*(L - x)")
+    written = json.loads(fresh_cache.read_text(encoding="utf-8"))["version"]
+    assert f"beamtone {version('beamtone')}" in written and f"sympy {sp.__version__}" in written
+
+
+def test_nothing_is_read_or_written_when_bypassed(
+    fresh_cache: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    from beamtone.calc import diskcache
+
+    symbolic.shape_facts("x*(L - x)")
+    before = fresh_cache.read_bytes()
+    symbolic._facts.cache_clear()
+
+    def refuse(*args: object) -> None:
+        raise AssertionError("a cache was read")
+
+    refuse.cache_clear = lambda: None  # type: ignore[attr-defined]
+    monkeypatch.setattr(diskcache, "json", None)  # any read or write would fail loudly
+    monkeypatch.setattr(symbolic, "_remembered", refuse)
+    with diskcache.bypassed():
+        assert diskcache.read("shapes", diskcache.version_key("sympy")) == {}
+        facts = symbolic.shape_facts("x*(L - x)")
+        assert facts.c_squared == "120"
+    assert fresh_cache.read_bytes() == before
