@@ -18,7 +18,11 @@ properties (a central difference of the property formulas, exact for the linear 
 lengths and positions move the mesh nodes (each node moves with the stations around it),
 and the element matrices' dependence on the node positions is differentiated by a
 complex step (W. Squire and G. Trapp, SIAM Review 40(1), 1998), which has no
-subtractive cancellation.  The eigen solution is not repeated.
+subtractive cancellation.  An attachment that moves off a node placed by something else
+(a mass at the end, at a support) sees the deflection w + e theta and the slope
+theta + e kappa there, kappa the mean of the curvatures on either side (0 beyond an end):
+the rate at which a rotary inertia or a rotational spring sliding along the member
+meets the moment's jump at it.  The eigen solution is not repeated.
 
 A support stiffness that ranges to rigid is varied as its compliance c = 1/k from 0; at
 c = 0 the derivative is -r^2, where r is the support's reaction to the mass-normalized
@@ -212,20 +216,44 @@ def _forms(
     theta: np.ndarray,
     spring_node: tuple[np.ndarray, np.ndarray],
     mass_node: tuple[np.ndarray, np.ndarray],
+    kappa: np.ndarray | None = None,
 ) -> tuple[np.ndarray, np.ndarray]:
-    """Whole-member phi^T K phi and phi^T M phi (elements, springs and masses)."""
+    """Whole-member phi^T K phi and phi^T M phi (elements, springs and masses).
+
+    An attachment at an offset e from its node sees w + e theta and, given the nodal
+    curvatures ``kappa``, the slope theta + e kappa (to first order in e).
+    """
     U, T = element_forms(x, model.EI, model.m, model.P, w, theta)
-    j, e = spring_node
-    if len(j):
+    for (j, e), (a, b), is_mass in (
+        (spring_node, (model.spring_k, model.spring_kr), False),
+        (mass_node, (model.mass_m, model.mass_j), True),
+    ):
+        if not len(j):
+            continue
         at = w[j] + e[:, None] * theta[j]
-        U = U + (model.spring_k[:, None] * at * at + model.spring_kr[:, None] * theta[j] ** 2).sum(
-            0
-        )
-    j, e = mass_node
-    if len(j):
-        at = w[j] + e[:, None] * theta[j]
-        T = T + (model.mass_m[:, None] * at * at + model.mass_j[:, None] * theta[j] ** 2).sum(0)
+        slope = theta[j] if kappa is None else theta[j] + e[:, None] * kappa[j]
+        term = (a[:, None] * at * at + b[:, None] * slope * slope).sum(0)
+        if is_mass:
+            T = T + term
+        else:
+            U = U + term
     return U, T
+
+
+def _node_curvature(x: np.ndarray, w: np.ndarray, theta: np.ndarray) -> np.ndarray:
+    """Mean of the curvatures on either side of each node [1/m * mode units].
+
+    Beyond an end the curvature is taken as 0: the limit of a vanishing piece between an
+    attachment moved off the end and the end itself.
+    """
+    h = np.diff(x)[:, None]
+    d = (w[1:] - w[:-1]) / h
+    a = theta[:-1] - d
+    b = theta[1:] - d
+    kappa = np.zeros_like(w)
+    kappa[1:] += 0.5 * (2.0 * a + 4.0 * b) / h  # element's right-end curvature
+    kappa[:-1] += 0.5 * (-4.0 * a - 2.0 * b) / h  # element's left-end curvature
+    return kappa
 
 
 # --- sensitivities ---------------------------------------------------------------------------
@@ -402,7 +430,10 @@ def _derivative(design: Design, tol: Tolerance, nom: _Nominal) -> np.ndarray:
         [model.mass_at[i] - topo.x[j] + 1j * eps * (velocity[("m", i)] - v_nodes[j])
          for i, j in enumerate(topo.mass_nodes)], dtype=complex,
     )  # fmt: skip
-    U, Tm = _forms(x, moved, w, theta, (topo.spring_nodes, spring_e), (topo.mass_nodes, mass_e))
+    kappa = _node_curvature(topo.x, w, theta)
+    U, Tm = _forms(
+        x, moved, w, theta, (topo.spring_nodes, spring_e), (topo.mass_nodes, mass_e), kappa
+    )
     return (U.imag - lam * Tm.imag) / eps / T
 
 

@@ -91,19 +91,21 @@ def test_fox_kapoor_against_differences_of_full_solves(sheet: str, keys: list[st
 
 
 def test_an_attachment_moving_along_the_member() -> None:
-    # d lambda/da = -lambda M 2 w w'(a) for a point mass (Fox and Kapoor with the mass moving);
-    # against one-sided differences of full solves with small steps (the mass stays within
-    # the solver's attachment tolerance of the end node).
+    # d lambda/da = -lambda (2 M w w' + 2 J w' w'') for a point mass with rotary inertia
+    # moving along the member (Fox and Kapoor with the mass moving); at the free end the
+    # curvature is the mean of the member's side and the vanishing overhang's (zero).
+    # Against one-sided second-order differences of full solves (steps 3e-4 and 1e-3 m
+    # agree to 3e-6: the difference's own error).
     loaded = worksheet.load(_ROOT / "worksheets" / "sensor-mast.toml")
     design = Design(loaded.member)
     result = fe.solve(design.solved_member(), 2)
     s = sensitivities(design, result, [Tolerance("mass[0].at", 1.2, 1.1, 1.2)])
     lam = np.array([m.omega**2 for m in result.modes])
-    h = 1e-5
+    h = 3e-4
     a = _full_lambdas(vary(design, {"mass[0].at": 1.2 - h}), 2)
     b = _full_lambdas(vary(design, {"mass[0].at": 1.2 - 2 * h}), 2)
     fd = (3 * lam - 4 * a + b) / (2 * h)
-    assert np.allclose(s.eigenvalue_derivatives[:, 0], fd, rtol=1e-5)
+    assert np.allclose(s.eigenvalue_derivatives[:, 0], fd, rtol=2e-5)
 
 
 def test_compliance_at_rigid_is_minus_the_reaction_squared() -> None:
