@@ -29,7 +29,7 @@ _ROOT = __import__("pathlib").Path(__file__).resolve().parents[2]
 
 def _sheet(name: str) -> tuple[Design, fe.FEResult, int]:
     sheet = worksheet.load(_ROOT / "worksheets" / name)
-    design = Design(sheet.member)
+    design = Design.of(sheet)
     return design, fe.solve(design.solved_member(), sheet.modes), sheet.modes
 
 

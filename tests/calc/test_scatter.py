@@ -23,7 +23,7 @@ _ROOT = __import__("pathlib").Path(__file__).resolve().parents[2]
 
 def _design(name: str) -> tuple[Design, int]:
     sheet = worksheet.load(_ROOT / "worksheets" / name)
-    return Design(sheet.member), min(sheet.modes, 3)
+    return Design.of(sheet), min(sheet.modes, 3)
 
 
 def _rel(design: Design, key: str, r: float) -> Tolerance:

@@ -20,9 +20,6 @@ import numpy as np
 import pytest
 
 from beamtone.calc import fe, worksheet
-from beamtone.calc.materials import LIBRARY
-from beamtone.calc.model import Member, PointMass, Segment, Spring
-from beamtone.calc.sections import build_section
 from beamtone.calc.sensitivity import element_forms, sensitivities
 from beamtone.calc.tolerances import COMPLIANCE, Design, Tolerance, nominal_value, vary
 
@@ -35,16 +32,27 @@ def _tol(design: Design, key: str, rel: float = 0.01) -> Tolerance:
     return Tolerance(key, v, v - hw, v + hw)
 
 
-def _rectangle_cantilever(left: str = "clamped", right: str = "free") -> Member:
-    sec = build_section("rectangle", {"width": 0.05, "depth": 0.01})
-    return Member((Segment(1.0, LIBRARY["steel"], sec),), left, right)
+def _rectangle_cantilever(left: str = "clamped", right: str = "free") -> Design:
+    return Design.of(
+        worksheet.loads(
+            f"""format = 1
+[member]
+length = "1 m"
+material = "steel"
+section = {{ shape = "rectangle", width = "50 mm", depth = "10 mm" }}
+[supports]
+left = "{left}"
+right = "{right}"
+"""
+        )
+    )
 
 
 @pytest.mark.parametrize(("left", "right"), [("clamped", "free"), ("pinned", "pinned"),
                                              ("free", "free"), ("clamped", "guided")])  # fmt: skip
 def test_exact_elasticities_of_a_uniform_member(left: str, right: str) -> None:
     # Dimensional analysis (Euler-Bernoulli): f ~ E^0.5 rho^-0.5 L^-2 depth^1, exactly.
-    design = Design(_rectangle_cantilever(left, right))
+    design = _rectangle_cantilever(left, right)
     result = fe.solve(design.solved_member(), 4)
     keys = ["member.material.youngs_modulus", "member.material.density", "member.length",
             "member.section.depth", "member.section.width"]  # fmt: skip
@@ -74,7 +82,7 @@ def test_fox_kapoor_against_differences_of_full_solves(sheet: str, keys: list[st
     # Fox and Kapoor (1968) against central differences of full solves (step 1e-4 relative;
     # the difference's own error is about 1e-8 relative, the FE accuracy 1e-6).
     loaded = worksheet.load(_ROOT / "worksheets" / sheet)
-    design = Design(loaded.member)
+    design = Design.of(loaded)
     modes = min(loaded.modes, 3)
     result = fe.solve(design.solved_member(), modes)
     tols = [_tol(design, k) for k in keys]
@@ -97,7 +105,7 @@ def test_an_attachment_moving_along_the_member() -> None:
     # Against one-sided second-order differences of full solves (steps 3e-4 and 1e-3 m
     # agree to 3e-6: the difference's own error).
     loaded = worksheet.load(_ROOT / "worksheets" / "sensor-mast.toml")
-    design = Design(loaded.member)
+    design = Design.of(loaded)
     result = fe.solve(design.solved_member(), 2)
     s = sensitivities(design, result, [Tolerance("mass[0].at", 1.2, 1.1, 1.2)])
     lam = np.array([m.omega**2 for m in result.modes])
@@ -110,7 +118,7 @@ def test_an_attachment_moving_along_the_member() -> None:
 
 def test_compliance_at_rigid_is_minus_the_reaction_squared() -> None:
     # lambda(k) = lambda_rigid - r^2/k + O(1/k^2): (lambda(k) - lambda_rigid) k -> -r^2.
-    design = Design(_rectangle_cantilever())
+    design = _rectangle_cantilever()
     result = fe.solve(design.solved_member(), 3)
     for key in ("supports.left.rotational_stiffness", "supports.left.stiffness"):
         s = sensitivities(design, result, [Tolerance(key, 0.0, 0.0, 1e-6, COMPLIANCE)])
@@ -126,13 +134,29 @@ def test_compliance_at_rigid_is_minus_the_reaction_squared() -> None:
 def test_springs_masses_and_axial_force_are_exact() -> None:
     # K and M are linear in these: the derivative is the mode's own energy term exactly,
     # e.g. d lambda / dk = w(a)^2 and d lambda / dM = -lambda w(a)^2 (Fox and Kapoor).
-    sec = build_section("round", {"diameter": 0.03})
-    member = Member(
-        (Segment(1.5, LIBRARY["steel"], sec),), "pinned", "free",
-        masses=(PointMass(1.0, 2.0, 0.001),), springs=(Spring(1.5, 2e5, 300.0),),
-        axial_force=5e3,
-    )  # fmt: skip
-    design = Design(member)
+    design = Design.of(
+        worksheet.loads(
+            """format = 1
+[member]
+length = "1.5 m"
+material = "steel"
+section = { shape = "round", diameter = "30 mm" }
+axial_force = "5 kN"
+[supports]
+left = "pinned"
+right = "free"
+[[mass]]
+at = "1 m"
+mass = "2 kg"
+rotary_inertia = "0.001 kg*m^2"
+[[spring]]
+at = "1.5 m"
+stiffness = "200 kN/m"
+rotational_stiffness = "300 N*m/rad"
+"""
+        )
+    )
+    member = design.member
     result = fe.solve(member, 3)
     keys = ["spring[0].stiffness", "mass[0].mass", "member.axial_force"]
     s = sensitivities(design, result, [_tol(design, k) for k in keys])
@@ -147,7 +171,7 @@ def test_springs_masses_and_axial_force_are_exact() -> None:
 
 def test_element_forms_reproduce_the_eigenvalues() -> None:
     # The forms are phi^T K phi and phi^T M phi: for mass-normalized modes T = 1, U = lambda.
-    member = _rectangle_cantilever("pinned", "pinned")
+    member = _rectangle_cantilever("pinned", "pinned").member
     result = fe.solve(member, 3)
     m = result.modes
     seg = member.segments[0]
