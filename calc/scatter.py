@@ -33,6 +33,7 @@ import numpy as np
 
 from beamtone.calc import fe
 from beamtone.calc.band import latin_hypercube
+from beamtone.calc.engines import ENGINES, map_chunks, split
 from beamtone.calc.errors import InputError
 from beamtone.calc.excitation import Line
 from beamtone.calc.fe.elements import scaled_element_matrices
@@ -53,7 +54,6 @@ __all__ = [
     "histogram",
 ]
 
-ENGINES = ("auto", "local", "processes", "dask")
 METHODS = ("latin-hypercube", "monte-carlo")
 PERCENTILES = (1.0, 5.0, 50.0, 95.0, 99.0)
 STUDY_ACCURACY = 1e-4
@@ -326,14 +326,6 @@ def _block(A: np.ndarray, j: int, a: np.ndarray, e: np.ndarray, b: np.ndarray) -
     A[:, t, t] += a * e * e + b
 
 
-# --- engines ---------------------------------------------------------------------------------
-
-
-def _chunks(points: np.ndarray, count: int) -> list[np.ndarray]:
-    size = max(1, math.ceil(len(points) / count))
-    return [points[i : i + size] for i in range(0, len(points), size)]
-
-
 def _run(
     template: _Template,
     points: np.ndarray,
@@ -342,78 +334,11 @@ def _run(
     address: str | None,
     progress: Callable[[int, int], None] | None,
 ) -> tuple[np.ndarray, int, str]:
-    total = len(points)
-    if engine == "local":
-        out, alone = [], 0
-        for chunk in _chunks(points, max(1, total // _BATCH)):
-            f, a = _solve_chunk(template, chunk)
-            out.append(f)
-            alone += a
-            if progress:
-                progress(sum(len(o) for o in out), total)
-        return np.concatenate(out), alone, "this process"
-    chunks = _chunks(points, 4 * workers)
-    if engine == "processes":
-        import concurrent.futures
-        import multiprocessing
-
-        context = multiprocessing.get_context("spawn")
-        with concurrent.futures.ProcessPoolExecutor(workers, mp_context=context) as pool:
-            futures = [pool.submit(_solve_chunk, template, c) for c in chunks]
-            results = _collect(futures, chunks, total, progress, concurrent.futures.as_completed)
-        return *results, f"{workers} local processes"
-    return _run_dask(template, chunks, workers, address, total, progress)
-
-
-def _collect(futures, chunks, total, progress, as_completed):  # noqa: ANN001, ANN202
-    done = 0
-    index = {f: i for i, f in enumerate(futures)}
-    results: list[tuple[np.ndarray, int] | None] = [None] * len(futures)
-    for fut in as_completed(futures):
-        i = index[fut]
-        results[i] = fut.result()
-        done += len(chunks[i])
-        if progress:
-            progress(done, total)
-    freqs = np.concatenate([r[0] for r in results if r is not None])
-    return freqs, sum(r[1] for r in results if r is not None)
-
-
-def _run_dask(
-    template: _Template,
-    chunks: list[np.ndarray],
-    workers: int,
-    address: str | None,
-    total: int,
-    progress: Callable[[int, int], None] | None,
-) -> tuple[np.ndarray, int, str]:
-    try:
-        from dask.distributed import Client, LocalCluster, as_completed
-    except ImportError:
-        raise InputError(
-            "--engine",
-            "dask",
-            "the optional extra for clusters: pip install 'beamtone[cluster]'",
-        ) from None
-    cluster = None
-    if address:
-        client = Client(address, timeout="20s")
-        where = f"dask cluster at {address}"
-    else:
-        cluster = LocalCluster(
-            n_workers=workers, threads_per_worker=1, processes=True, dashboard_address=None
-        )
-        client = Client(cluster)
-        where = f"local dask cluster of {workers} workers"
-    try:
-        shared = client.scatter(template, broadcast=True)
-        futures = [client.submit(_solve_chunk, shared, c, pure=False) for c in chunks]
-        freqs, alone = _collect(futures, chunks, total, progress, as_completed)
-    finally:
-        client.close()
-        if cluster is not None:
-            cluster.close()
-    return freqs, alone, where
+    count = max(1, len(points) // _BATCH) if engine == "local" else 4 * workers
+    results, where = map_chunks(
+        _solve_chunk, template, split(points, count), engine, workers, address, progress
+    )
+    return np.concatenate([r[0] for r in results]), sum(r[1] for r in results), where
 
 
 # --- the study -------------------------------------------------------------------------------
