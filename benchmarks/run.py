@@ -210,6 +210,30 @@ def bench_warm_ratio(repeat: int) -> list[tuple[str, float, float | None, str]]:
     ]  # fmt: skip
 
 
+def bench_directions(repeat: int) -> list[tuple[str, float, float | None, str]]:
+    """Every direction (both bending planes, torsion, axial) against the depth plane alone.
+
+    The same worksheet analysed in full (``analyse``) with and without the width plane,
+    torsion and axial motion, timed in turn; the goal is at most twice the single-plane
+    analysis.  The worst worksheet is an i-beam (its torsion has warping stiffness, a second
+    bending solve beside the width plane's).
+    """
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.worksheet import load, loads
+
+    sheets = [("11 attachments", loads(ten_attachment_text()))]
+    sheets += [(p.name, load(p)) for p in sorted((ROOT / "worksheets").glob("*.toml"))]
+    rows = []
+    for name, sheet in sheets:
+        one, every = interleaved_medians(
+            [lambda s=sheet: analyse(s, every_direction=False), lambda s=sheet: analyse(s)],
+            max(4 * repeat, 10),
+        )
+        rows.append((f"warm solve, every direction / depth plane alone: {name}", every / one,
+                     2.0, "ratio"))  # fmt: skip
+    return rows
+
+
 def bench_growth(sizes: list[int]) -> list[tuple[str, float, float | None, str]]:
     """fe.solve time against the number of attachments, with the fitted growth exponent."""
     import numpy as np
@@ -382,6 +406,7 @@ def main() -> int:
     rows = [(*r, "s") for r in bench_solves(repeat)]
     rows += bench_cold(1 if args.quick else 5)
     rows += bench_warm_ratio(repeat)
+    rows += bench_directions(repeat)
     rows += bench_growth([10, 30, 100] if args.quick else [10, 30, 100, 300, 1000, 3000, 5000])
     rows += [(*r, "s") for r in bench_sizing(repeat, 100 if args.quick else 2000)]
     rows += [(*r, "s") for r in bench_app(3 if args.quick else 15)]

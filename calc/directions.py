@@ -25,7 +25,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, replace
 
-from beamtone.calc import fe, handbook
+from beamtone.calc import fe, handbook, rayleigh
 from beamtone.calc.closedforms import ClosedForm, fork_warping_closed_form, rod_closed_form
 from beamtone.calc.errors import InputError
 from beamtone.calc.fe.rod import RodProblem, RodResult, solve_rod
@@ -37,6 +37,7 @@ from beamtone.calc.sections import Section
 __all__ = [
     "DIRECTIONS",
     "COUPLING_NOTE",
+    "LABELS",
     "DirectionMode",
     "Direction",
     "Directions",
@@ -115,6 +116,10 @@ class Direction:
     same_as : str
         The direction whose modes this one repeats (a round or square section's two bending
         planes coincide), else "".
+    estimate, lower_bound, bracket : rayleigh results or None
+        For the width plane: Rayleigh's upper bound from the static deflection shape,
+        Dunkerley's lower bound and the bracket of the FE fundamental (the depth plane's are
+        the analysis's own).
     """
 
     name: str
@@ -128,6 +133,9 @@ class Direction:
     notes: tuple[str, ...] = ()
     warnings: tuple[str, ...] = ()
     same_as: str = ""
+    estimate: rayleigh.RayleighEstimate | None = None
+    lower_bound: rayleigh.DunkerleyBound | None = None
+    bracket: rayleigh.Bracket | None = None
 
     @property
     def computed(self) -> bool:
@@ -174,10 +182,28 @@ class Directions:
         return tuple(sorted(modes, key=lambda m: (m.frequency_hz, order[m.direction], m.number)))
 
     @property
+    def warnings(self) -> tuple[str, ...]:
+        """Warnings of the width plane, torsion and axial solves, each naming its direction
+        (the depth plane's are the analysis's own)."""
+        out: list[str] = []
+        for d in self.directions[1:]:
+            if d.same_as:
+                continue
+            if d.bracket is not None and not d.bracket.inside:
+                out.append(f"{_LABELS[d.name]}: {d.bracket.message}")
+            out += [f"{_LABELS[d.name]}: {w}" for w in d.warnings]
+        return tuple(out)
+
+    @property
     def governing(self) -> DirectionMode | None:
         """The lowest mode of all directions (None where nothing was computed)."""
         modes = self.all_modes
         return modes[0] if modes else None
+
+
+_LABELS = {"depth": "depth plane", "width": "width plane", "torsion": "torsion", "axial": "axial"}
+LABELS = _LABELS
+"""How output names each direction."""
 
 
 # --- the width plane -----------------------------------------------------------------------------
@@ -403,7 +429,13 @@ def _support_words(member: Member, direction: str) -> tuple[str, ...]:
     return tuple(words)
 
 
-def _width(member: Member, count: int, depth: fe.FEResult, elements: int | None) -> Direction:
+def _width(
+    member: Member,
+    count: int,
+    depth: fe.FEResult,
+    depth_handbook: handbook.HandbookCheck | None,
+    elements: int | None,
+) -> Direction:
     supports = _support_words(member, "width")
     turned = width_member(member)
     if isinstance(turned, str):
@@ -414,7 +446,7 @@ def _width(member: Member, count: int, depth: fe.FEResult, elements: int | None)
             _direction_modes("width", depth),
             depth.rigid_body_modes,
             solution=depth,
-            handbook=handbook.check(turned, count),
+            handbook=depth_handbook,
             supports=supports,
             notes=(
                 "the section, supports and attachments are the same in both planes: the "
@@ -423,6 +455,7 @@ def _width(member: Member, count: int, depth: fe.FEResult, elements: int | None)
             ),  # fmt: skip
             warnings=depth.warnings,
             same_as="depth",
+            **_bounds(turned, depth),
         )
     result = fe.solve(turned, count, elements=elements)
     return Direction(
@@ -433,7 +466,19 @@ def _width(member: Member, count: int, depth: fe.FEResult, elements: int | None)
         handbook=handbook.check(turned, count),
         supports=supports,
         warnings=result.warnings,
+        **_bounds(turned, result),
     )
+
+
+def _bounds(turned: Member, result: fe.FEResult) -> dict[str, object]:
+    """Rayleigh (static deflection shape), Dunkerley and the bracket of a bending plane."""
+    estimate = rayleigh.rayleigh_static(turned)
+    lower = rayleigh.dunkerley(turned)
+    return {
+        "estimate": estimate,
+        "lower_bound": lower,
+        "bracket": rayleigh.bracket(lower, result, estimate),
+    }
 
 
 def _torsion(member: Member, count: int) -> Direction:
@@ -448,8 +493,8 @@ def _torsion(member: Member, count: int) -> Direction:
     if bare:
         which = ", ".join(f"mass[{i}]" for i in bare)
         notes.append(
-            f"{which} without polar_inertia add nothing in torsion (the true torsional "
-            "frequencies are lower where they have one)"
+            f"no polar_inertia given for {which}: taken as none in torsion (where there is "
+            "one, the true torsional frequencies are lower)"
         )
     if member.axial_force != 0.0:
         notes.append("the axial force's effect on torsion (Wagner term) is not modelled")
@@ -529,6 +574,12 @@ def _model_notes(member: Member) -> tuple[str, ...]:
             "attached bodies are taken as centred on the member's axis; one mounted on a "
             "flange or a bracket couples bending and torsion"
         )
+    if "i-beam" in shapes and member.masses:
+        notes.append(
+            "point masses on an open section usually sit on a flange, off the shear centre: "
+            "width-plane bending and torsion then couple, which moves their frequencies "
+            "apart, so the lowest coupled one can be lower than both shown here"
+        )
     if "i-beam" in shapes and member.axial_force < 0.0:
         notes.append("compression in an open section: flexural-torsional effects are not modelled")
     return tuple(notes)
@@ -539,6 +590,7 @@ def solve_directions(
     modes: int = 5,
     *,
     depth: fe.FEResult | None = None,
+    depth_handbook: handbook.HandbookCheck | None | str = "",
     elements: int | None = None,
 ) -> Directions:
     """Solve every direction of a member.
@@ -550,6 +602,8 @@ def solve_directions(
         Flexible modes wanted in each direction.
     depth : fe.FEResult, optional
         The depth-plane solution where already computed (it is reused, not repeated).
+    depth_handbook : handbook.HandbookCheck or None, optional
+        The depth plane's handbook check where already made (None: not a tabulated case).
     elements : int, optional
         Force the bending meshes (see :func:`calc.fe.solve`).
 
@@ -566,17 +620,19 @@ def solve_directions(
         raise InputError("check.modes", modes, "a whole number of modes, 1 or more")
     if depth is None:
         depth = fe.solve(member, modes, elements=elements)
+    if isinstance(depth_handbook, str):
+        depth_handbook = handbook.check(_plain(member), modes)
     results = (
         Direction(
             "depth",
             _direction_modes("depth", depth),
             depth.rigid_body_modes,
             solution=depth,
-            handbook=handbook.check(_plain(member), modes),
+            handbook=depth_handbook,
             supports=_support_words(member, "depth"),
             warnings=depth.warnings,
         ),
-        _width(member, modes, depth, elements),
+        _width(member, modes, depth, depth_handbook, elements),
         _torsion(member, modes),
         _axial(member, modes),
     )

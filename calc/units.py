@@ -40,6 +40,7 @@ __all__ = [
     "ROTATIONAL_STIFFNESS",
     "ROTARY_INERTIA",
     "FREQUENCY",
+    "WARPING_CONSTANT",
     "registry",
     "parse_quantity",
     "parse_unit",
@@ -97,6 +98,8 @@ ROTARY_INERTIA = Dimension("a rotary inertia (mass times length squared)",
                            "[mass] * [length] ** 2", "kg*m^2", '"0.004 kg*m^2"',
                            (1e-24, 1e12))  # fmt: skip
 FREQUENCY = Dimension("a frequency", "1 / [time]", "Hz", '"60 Hz"', (1e-9, 1e12))
+WARPING_CONSTANT = Dimension("a warping constant", "[length] ** 6", "m^6",
+                             '"1.3e10 mm^6" or "120 in^6"', (1e-54, 1e12))  # fmt: skip
 
 # A number, then a unit expression made of unit names, powers, products and quotients.
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?"

@@ -1,0 +1,194 @@
+"""Every direction in the command line's text and JSON: the governing mode first, then a table
+per direction (width plane, torsion, axial), what each support holds there, the cross-checks
+and what the model leaves out."""
+
+from __future__ import annotations
+
+import textwrap
+from typing import TYPE_CHECKING, Any
+
+from beamtone.calc.directions import LABELS
+
+if TYPE_CHECKING:  # pragma: no cover
+    from beamtone.calc.directions import Direction, DirectionMode, Directions
+
+__all__ = [
+    "governing_lines",
+    "depth_heading",
+    "direction_lines",
+    "assumption_lines",
+    "directions_json",
+    "all_modes_json",
+]
+
+_UNITS = {"depth": "kg", "width": "kg", "torsion": "kg*m^2", "axial": "kg"}
+_WHAT = {
+    "depth": "bending in the depth plane (as drawn)",
+    "width": "bending in the width plane (about the other principal axis)",
+    "torsion": "twist about the member's axis",
+    "axial": "stretching along the member's axis",
+}
+
+
+def _fmt(value: float, digits: int = 6) -> str:
+    from beamtone.render.text import _fmt as fmt  # one number format for all solve output
+
+    return fmt(value, digits)
+
+
+def _mode_name(mode: DirectionMode) -> str:
+    return f"{LABELS[mode.direction]} mode {mode.number}"
+
+
+def governing_lines(directions: Directions) -> list[str]:
+    """The governing mode: the lowest natural frequency of every direction computed."""
+    gov = directions.governing
+    if gov is None:
+        return ["  governing no mode was computed in any direction"]
+    line = (
+        f"  governing {_fmt(gov.frequency_hz)} Hz, {_mode_name(gov)}: the lowest natural "
+        "frequency of all directions"
+    )
+    out = [line]
+    same = [d for d in directions.directions if d.same_as and gov.direction in (d.name, d.same_as)]
+    if same:
+        out.append("            (the depth and width planes coincide: two modes at this frequency)")
+    missing = [f"{LABELS[d.name]}" for d in directions.directions if not d.computed]
+    if missing:
+        out.append(f"            not computed: {', '.join(missing)} (see below); it may be lower")
+    return out
+
+
+def depth_heading(directions: Directions) -> str:
+    """The heading line of the depth plane's table."""
+    return f"  depth plane  {_WHAT['depth']}; {', '.join(directions['depth'].supports)}"
+
+
+def _table(direction: Direction) -> list[str]:
+    """The direction's modes, each row led by the direction's name (the depth plane's table
+    is the one whose rows start with the mode number)."""
+    ref = direction.reference_hz
+    effective = "eff. inertia" if direction.name == "torsion" else "eff. mass"
+    header = ["direction", "mode", "frequency [Hz]", "omega [rad/s]", "est. error", effective]
+    header.append("cumul.")
+    if ref is not None:
+        header += ["reference [Hz]", "FE vs ref"]
+    rows = [header]
+    cumulative = 0.0
+    for i, m in enumerate(direction.modes):
+        cumulative += m.effective_fraction
+        row = [
+            direction.name,
+            str(m.number),
+            _fmt(m.frequency_hz),
+            _fmt(m.omega),
+            f"{m.estimated_error:.1e}",
+            f"{100 * m.effective_fraction:.1f} %",
+            f"{100 * cumulative:.1f} %",
+        ]
+        if ref is not None:
+            row += [_fmt(ref[i]), f"{100 * (m.frequency_hz - ref[i]) / ref[i]:+.2e} %"]
+        rows.append(row)
+    widths = [max(len(r[c]) for r in rows) for c in range(len(header))]
+    return [
+        "  "
+        + "   ".join([r[0].ljust(widths[0])] + [r[c].rjust(widths[c]) for c in range(1, len(r))])
+        for r in rows
+    ]
+
+
+def direction_lines(directions: Directions) -> list[str]:
+    """The width plane's, torsion's and axial motion's sections."""
+    lines: list[str] = []
+    for d in directions.directions[1:]:
+        lines.append(f"  {LABELS[d.name]}  {_WHAT[d.name]}; {', '.join(d.supports)}")
+        if not d.computed:
+            lines.append(f"            not computed: {d.reason}")
+            lines.append("")
+            continue
+        if d.rigid_body_modes:
+            lines.append(f"            {d.rigid_body_modes} rigid-body mode (not listed)")
+        if d.same_as:
+            lines.append(f"            same as the {LABELS[d.same_as]}: two physical modes each")
+        lines += _table(d)
+        ref = d.handbook or d.closed_form
+        if ref is not None:
+            lines += _wrapped("reference", f"{ref.case}: {ref.source}")
+        if d.estimate is not None and d.lower_bound is not None and d.bracket is not None:
+            low = d.lower_bound.frequency_hz
+            lines.append(
+                f"            Rayleigh {_fmt(d.estimate.frequency_hz)} Hz (upper bound, static "
+                "deflection shape); "
+                + (f"Dunkerley {_fmt(low)} Hz (lower bound)" if low is not None else
+                   f"no Dunkerley bound: {d.lower_bound.reason}")
+            )  # fmt: skip
+            lines.append(f"            bracket {d.bracket.message}")
+        for note in d.notes:
+            lines += _wrapped("note", note)
+        lines.append("")
+    return lines
+
+
+def _wrapped(label: str, text: str) -> list[str]:
+    first = f"            {label}: "
+    return textwrap.wrap(text, 92, initial_indent=first, subsequent_indent=" " * len(first))
+
+
+def assumption_lines(directions: Directions) -> list[str]:
+    """What the direction model assumes and leaves out."""
+    lines = ["  model"]
+    for note in directions.notes:
+        lines += textwrap.wrap(note, 92, initial_indent="  - ", subsequent_indent="    ")
+    return lines
+
+
+def _mode_json(m: DirectionMode) -> dict[str, Any]:
+    return {
+        "direction": m.direction,
+        "number": m.number,
+        "frequency_hz": m.frequency_hz,
+        "omega_rad_s": m.omega,
+        "estimated_error": m.estimated_error,
+    }
+
+
+def all_modes_json(directions: Directions) -> list[dict[str, Any]]:
+    """``all_modes``: every computed mode of every direction, lowest frequency first."""
+    return [_mode_json(m) for m in directions.all_modes]
+
+
+def directions_json(directions: Directions) -> dict[str, Any]:
+    """``directions``: per direction its modes and handbook (or closed-form) values, or why it
+    was not computed; what each support holds there; its notes."""
+    out: dict[str, Any] = {}
+    for d in directions.directions:
+        entry: dict[str, Any] = {
+            "computed": d.computed,
+            "reason": d.reason or None,
+            "supports": list(d.supports),
+            "rigid_body_modes": d.rigid_body_modes,
+            "modes": [
+                {
+                    **_mode_json(m),
+                    "effective": m.effective,
+                    "effective_unit": _UNITS[d.name],
+                    "effective_fraction": m.effective_fraction,
+                }
+                for m in d.modes
+            ],
+            "handbook": None,
+            "same_as": d.same_as or None,
+            "notes": list(d.notes),
+        }
+        ref = d.handbook or d.closed_form
+        if ref is not None:
+            entry["handbook"] = {
+                "case": ref.case,
+                "frequencies_hz": list(ref.frequencies_hz),
+                "source": ref.source,
+            }
+        if d.estimate is not None and d.lower_bound is not None:
+            entry["estimate_hz"] = d.estimate.frequency_hz
+            entry["lower_bound_hz"] = d.lower_bound.frequency_hz
+        out[d.name] = entry
+    return out
