@@ -360,13 +360,26 @@ def master_curve(
     chosen = _find_group(groups, group)
     if points < 2:
         raise InputError("--points", points, "at least 2 points")
+    for flag, value in (("--from", start), ("--to", stop)):
+        if not math.isfinite(value):
+            raise InputError(flag, value, f"a finite value of {chosen.expression}")
     base = nondimensional(member)
-    values = [start + (stop - start) * i / (points - 1) for i in range(points)]
-    rows = []
-    for v in values:
-        varied = _set_variable(base, chosen.variable, v)
-        result = fe.solve(varied, modes)
-        rows.append(tuple(m.omega for m in result.modes))
+    # the ends exactly as written (no rounding in between), evenly spaced values inside
+    inner = [start + (stop - start) * i / (points - 1) for i in range(1, points - 1)]
+    values = [start, *inner, stop]
+    rows: list[tuple[float, ...]] = [()] * points
+    for i in (0, points - 1, *range(1, points - 1)):  # the ends first: they name the option
+        v = values[i]
+        flag = "--from" if i == 0 else "--to" if i == points - 1 else "--from/--to"
+        try:
+            varied = _set_variable(base, chosen.variable, v)
+            result = fe.solve(varied, modes)
+        except InputError as exc:
+            raise InputError(
+                flag, v, f"a value of {chosen.expression} for which the member can be solved",
+                exc.message,
+            ) from None  # fmt: skip
+        rows[i] = tuple(m.omega for m in result.modes)
     return MasterCurve(chosen.expression, tuple(values), tuple(rows))
 
 

@@ -64,6 +64,10 @@ __all__ = [
 ]
 
 _SCAN = 17
+MAX_HARMONICS = 16
+"""Most excitation orders in one sizing run (100 orders took 50 s)."""
+MAX_GRID = 40_000
+"""Most points of a two-way sweep's table (200 x 200; 300 x 300 took 7 s of processor time)."""
 _REFINE = 2  # rounds of extra scan points around interior extrema
 _DIRECT_SWEEP = 64  # sweeps of more points interpolate between verified solves
 _NODES = 9  # Chebyshev nodes per sweep interval
@@ -807,6 +811,9 @@ def sweep2(
         raise InputError("--vary2", key2, "a second quantity, not the first one again")
     if n1 < 2 or n2 < 2:
         raise InputError("--points", min(n1, n2), "at least 2 points along each quantity")
+    if n1 * n2 > MAX_GRID:  # a 100,000 x 2,000 table asked for 7.5 GiB
+        raise InputError("--points2", f"{n1} x {n2}", f"a table of at most {MAX_GRID:,} "
+                         "points in all (e.g. 200 x 200), so that it runs in seconds")  # fmt: skip
     var1, var2 = variation(sheet, key1), variation(sheet, key2)
     low1, high1 = _check_range(var1, low1, high1)
     low2, high2 = _check_range(var2, low2, high2)
@@ -917,6 +924,9 @@ def parse_harmonics(text: str) -> tuple[int, ...]:
         ) from None
     if not orders or any(not 1 <= h <= 100 for h in orders):
         raise InputError("--harmonics", text, "orders from 1 to 100, e.g. 1,2")
+    if len(set(orders)) > MAX_HARMONICS:  # each order's band is checked at every trial solve
+        raise InputError("--harmonics", text, f"at most {MAX_HARMONICS} orders, so that "
+                         "sizing runs in seconds", f"{len(set(orders))} were given")  # fmt: skip
     return tuple(sorted(set(orders)))
 
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 import argparse
 import math
 import os
+import re
 import sys
 
 # The matrices here are small and banded: threaded BLAS only adds overhead (measured in
@@ -34,8 +35,9 @@ class _Parser(argparse.ArgumentParser):
     """argparse with beamtone's exit status and message style for bad arguments."""
 
     def error(self, message: str) -> None:  # type: ignore[override]
-        self.print_usage(sys.stderr)
-        sys.stderr.write(f"beamtone: error: {message}\n")
+        # one line naming the option, not the whole usage: "argument --modes: ..." -> "--modes: ..."
+        message = re.sub(r"^argument ([^:]+): ", r"\1: ", " ".join(message.split()))
+        sys.stderr.write(f"beamtone: error: {message} (see {self.prog} --help)\n")
         raise SystemExit(EXIT_INPUT)
 
 
@@ -69,7 +71,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     solve.add_argument(
         "--elements",
-        type=_positive_int(200_000, "elements"),
+        type=_positive_int(20_000, "elements"),
         help="force a mesh of about N elements instead of the automatic one",
     )
     solve.add_argument("--json", action="store_true", help="print one JSON object")
@@ -105,7 +107,7 @@ def build_parser() -> argparse.ArgumentParser:
     report.add_argument("--harmonics", metavar="1,2", help="excitation orders (default 1)")
     report.add_argument("--margin", metavar="PCT", help="band half-width (default 20%%)")
     report.add_argument("--modes", type=_positive_int(50, "modes"), help="default: worksheet's")
-    report.add_argument("--elements", type=_positive_int(200_000, "elements"), metavar="N")
+    report.add_argument("--elements", type=_positive_int(20_000, "elements"), metavar="N")
 
     groups = commands.add_parser(
         "groups",
@@ -153,7 +155,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     sweep.add_argument("file", metavar="FILE")
     _range_arguments(sweep)
-    sweep.add_argument("--points", type=_positive_int(100_000, "points"), default=21)
+    sweep.add_argument("--points", type=_positive_int(20_000, "points"), default=21)
     sweep.add_argument("--vary2", metavar="KEY", help="a second quantity, for a two-way table")
     sweep.add_argument("--between2", nargs=2, metavar=("LOW", "HIGH"), help="its range")
     sweep.add_argument("--points2", type=_positive_int(2_000, "points"), default=21)
@@ -275,6 +277,13 @@ def main(argv: Sequence[str] | None = None) -> int:
         return _app(None)
     if len(arguments) == 1 and arguments[0] not in _COMMANDS and not arguments[0].startswith("-"):
         return _app(arguments[0])
+    from beamtone.cli.terminal import clean_output
+
+    with clean_output():  # no control character from a file reaches the terminal
+        return _commands(arguments)
+
+
+def _commands(arguments: list[str]) -> int:
     parser = build_parser()
     args = parser.parse_args(arguments)
     if args.version:

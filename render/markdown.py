@@ -17,8 +17,9 @@ from beamtone.calc.report import (
 __all__ = ["markdown", "escape"]
 
 # Escape only what would change the rendering: backslashes, code and emphasis markers, table
-# pipes, the start of an HTML tag, a heading mark at the start, an underscore at a word edge.
-_MD_SPECIAL = re.compile(r"([\\`*|])|<(?=[A-Za-z/!?])|(?<!\w)_|_(?!\w)|^#")
+# pipes, link and image brackets, the start of an HTML tag, a heading mark at the start, an
+# underscore at a word edge.
+_MD_SPECIAL = re.compile(r"([\\`*|\[\]])|!(?=\[)|<(?=[A-Za-z/!?])|(?<!\w)_|_(?!\w)|^#")
 
 
 def escape(text: str) -> str:

@@ -99,7 +99,7 @@ def solve(
         coarse = solve_mesh(member, fine_mesh, modes, rigid, shift, solver)
         reported = coarse
         check = solve_mesh(member, fine_mesh.refined(), modes, rigid, shift, solver)
-        _need_modes(len(reported.lam), modes)
+        _need_modes(len(reported.lam), modes, int(elements))
         disc = _SAFETY * 16.0 / 15.0 * np.abs(reported.omega - check.omega) / check.omega
         lower = check
     else:
@@ -151,7 +151,14 @@ def solve(
     return build_result(member, reported, rigid, modes, error, roundoff_dominated, warnings)
 
 
-def _need_modes(available: int, modes: int) -> None:
+def _need_modes(available: int, modes: int, elements: int | None = None) -> None:
+    if available < modes and elements is not None:  # the forced mesh is too coarse
+        raise InputError(
+            "--elements",
+            elements,
+            f"a mesh fine enough for {modes} modes (this one gives {available}); "
+            "give more elements or ask for fewer modes",
+        )
     if available < modes:
         raise InputError(
             "check.modes",
