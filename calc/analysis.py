@@ -10,8 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from beamtone.calc import fe, handbook, rayleigh, similitude
-from beamtone.calc.directions import Directions, solve_directions
+from beamtone.calc import excitation, fe, handbook, rayleigh, response, similitude
 from beamtone.calc.worksheet import Worksheet
 
 __all__ = ["Analysis", "analyse"]
@@ -33,9 +32,11 @@ class Analysis:
     equivalent : rayleigh.EquivalentSystem
     groups : similitude.MemberGroups
         The member's dimensionless groups, with the frequency groups of the FE modes.
-    directions : directions.Directions or None
-        Every direction (both bending planes, torsion, axial) with ``modes`` modes each; the
-        depth plane's is ``modes`` itself.
+    margins : excitation.MarginTable or None
+        Every excitation line against every computed mode, with the verdict (None without
+        ``[[excitation]]`` tables).
+    response : response.ForcedResponse or None
+        The forced response, where ``response.damping_ratio`` and excitations are given.
     """
 
     sheet: Worksheet
@@ -47,7 +48,8 @@ class Analysis:
     bracket: rayleigh.Bracket
     equivalent: rayleigh.EquivalentSystem
     groups: similitude.MemberGroups
-    directions: Directions | None = None
+    margins: excitation.MarginTable | None = None
+    response: response.ForcedResponse | None = None
 
     @property
     def warnings(self) -> tuple[str, ...]:
@@ -61,18 +63,10 @@ class Analysis:
             )
         if not self.bracket.inside:
             out.insert(0, self.bracket.message)
-        if self.directions is not None:
-            out += self.directions.warnings
         return tuple(out)
 
 
-def analyse(
-    sheet: Worksheet,
-    modes: int | None = None,
-    elements: int | None = None,
-    *,
-    every_direction: bool = True,
-) -> Analysis:
+def analyse(sheet: Worksheet, modes: int | None = None, elements: int | None = None) -> Analysis:
     """Solve a worksheet by every method.
 
     Parameters
@@ -82,10 +76,6 @@ def analyse(
         Overrides the worksheet's ``check.modes``.
     elements : int, optional
         Forces the finite-element mesh (see :func:`calc.fe.solve`).
-    every_direction : bool
-        Solve the width plane, torsion and axial motion too (``directions``); False gives
-        the depth plane alone (excitation margins then name what they do not cover).
-
 
     Returns
     -------
@@ -99,12 +89,6 @@ def analyse(
     member = sheet.member
     count = modes or sheet.modes
     result = fe.solve(member, count, elements=elements)
-    check = handbook.check(member, count)
-    directions = (
-        solve_directions(member, count, depth=result, depth_handbook=check, elements=elements)
-        if every_direction
-        else None
-    )
     settings = sheet.estimate
     if settings.shape == "static":
         estimate = rayleigh.rayleigh_static(member)
@@ -118,12 +102,15 @@ def analyse(
     return Analysis(
         sheet=sheet,
         modes=result,
-        handbook=check,
+        handbook=handbook.check(member, count),
         estimate=estimate,
         ritz=ritz,
         lower_bound=lower,
         bracket=rayleigh.bracket(lower, result, estimate),
         equivalent=rayleigh.equivalent_system(member, result, settings.reference),
         groups=similitude.member_groups(member, [m.omega for m in result.modes]),
-        directions=directions,
+        margins=excitation.check_member(sheet.excitations, result),
+        response=None
+        if sheet.damping_ratio is None or not sheet.excitations
+        else response.forced_response(member, result, sheet.excitations, sheet.damping_ratio),
     )

@@ -19,11 +19,13 @@ The module is unit-agnostic: values are in the user's unit for the key, and the 
 from __future__ import annotations
 
 import math
+import re
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 from beamtone.calc.errors import InputError
 from beamtone.calc.excitation import MarginTable
+from beamtone.calc.units import Dimension, convert_from_si, parse_quantity
 
 __all__ = [
     "Candidate",
@@ -31,6 +33,8 @@ __all__ = [
     "default_step",
     "grid_text",
     "practical_values",
+    "read_sizes",
+    "read_step",
 ]
 
 _PER_EDGE = 3  # grid points tried inward of every interval edge
@@ -60,6 +64,78 @@ def grid_text(value: float, step: float) -> str:
     while decimals < 12 and abs(step * 10**decimals - round(step * 10**decimals)) > 1e-6:
         decimals += 1
     return f"{value:.{decimals}f}"
+
+
+_NUMBER = re.compile(r"^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?\s*$")
+_MAX_SIZES_FILE = 65_536  # bytes
+
+
+def _in_unit(text: str, dimension: Dimension, unit: str, key: str) -> float:
+    """``"number unit"`` (or a bare number, already in ``unit``) as a value in ``unit``."""
+    if _NUMBER.match(text):
+        value = float(text)
+    else:
+        si = parse_quantity(text, dimension, key, allow_zero=True, allow_negative=True,
+                            minimum=False)  # fmt: skip
+        value = convert_from_si(si, unit)
+    if not math.isfinite(value):
+        raise InputError(key, text, f"a finite value, e.g. {dimension.example}")
+    return value
+
+
+def read_step(text: str, dimension: Dimension, unit: str, key: str = "--step") -> float:
+    """A rounding step as written (``"1 mm"``, or ``"1"`` in ``unit``), in ``unit``.
+
+    Raises
+    ------
+    InputError
+        Keyed ``key``, for anything but a positive quantity of ``dimension``.
+    """
+    step = _in_unit(text, dimension, unit, key)
+    if not step > 0.0:
+        raise InputError(key, text, f"a step above zero, e.g. {dimension.example}")
+    return step
+
+
+def read_sizes(
+    text: str, dimension: Dimension, unit: str, key: str = "--sizes"
+) -> tuple[float, ...]:
+    """Available sizes as written, in ``unit``, sorted.
+
+    ``text`` is a list separated by commas (``"150 mm, 160 mm, 180 mm"``; a unit after the
+    last value only applies to all: ``"150, 160, 180 mm"``; bare numbers alone are in
+    ``unit``), or ``@FILE``: a small text file with the same, one or more per line, ``#``
+    starting a comment.
+
+    Raises
+    ------
+    InputError
+        Keyed ``key``: an empty list, a value of the wrong dimension, an unreadable file.
+    """
+    if text.startswith("@"):
+        from beamtone.calc.files import read_limited
+
+        raw = read_limited(text[1:], _MAX_SIZES_FILE, "a list of sizes")
+        try:
+            body = raw.decode("utf-8")
+        except UnicodeDecodeError:
+            raise InputError(key, text, "a text file of sizes (UTF-8)") from None
+        body = "\n".join(line.split("#", 1)[0] for line in body.splitlines())
+    else:
+        body = text
+    items = [p.strip() for p in re.split(r"[,\n]", body) if p.strip()]
+    expected = 'sizes separated by commas, e.g. "150 mm, 160 mm" or "150, 160 mm"'
+    if not items or len(items) > _MAX_SIZES:
+        raise InputError(key, text, f"1 to {_MAX_SIZES} {expected}")
+    bare = [bool(_NUMBER.match(i)) for i in items]
+    if all(bare[:-1]) and not bare[-1] and len(items) > 1:
+        tail = _QUANTITY_UNIT.match(items[-1])
+        assert tail is not None
+        items = [f"{i} {tail.group(1)}" for i in items[:-1]] + [items[-1]]
+    return tuple(sorted({_in_unit(i, dimension, unit, key) for i in items}))
+
+
+_QUANTITY_UNIT = re.compile(r"^\s*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?\s*(.*?)\s*$")
 
 
 @dataclass(frozen=True)
@@ -162,8 +238,8 @@ def practical_values(
     low, high : float
         The search range, in the user's unit.
     step : float, optional
-        Rounding step in the user's unit; by default :func:`default_step` of the interval
-        edges.  Not with ``sizes``.
+        Rounding step in the user's unit; by default :func:`default_step` of the largest
+        interval edge (three significant figures there).  Not with ``sizes``.
     sizes : sequence of float, optional
         Available sizes in the user's unit; every one in range is solved.
     unit : str
@@ -188,7 +264,7 @@ def practical_values(
         if step is not None and not (math.isfinite(step) and step > 0.0):
             raise InputError("--step", step, "a step above zero in the unit of the key")
         edges = [abs(e) for ab in intervals for e in ab if e != 0.0]
-        used = step if step is not None else default_step(min(edges) if edges else high)
+        used = step if step is not None else default_step(max(edges) if edges else high)
         points = _step_points(intervals, low, high, used)
         texts = [grid_text(p, used) for p in points]
         points = [float(t) for t in texts]
@@ -240,5 +316,5 @@ def _message(
                 f"({stiff.mass:.4g} kg)"
             )
         elif stiff is None:
-            parts.append("no value in range puts every mode above every band")
+            parts.append("no clear value in range puts every mode above every band")
     return "; ".join(parts)

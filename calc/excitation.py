@@ -26,6 +26,7 @@ the current edition before relying on it.
 from __future__ import annotations
 
 import math
+import re
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
@@ -42,10 +43,14 @@ __all__ = [
     "MarginTable",
     "ModeRef",
     "Verdict",
+    "check_member",
     "criterion",
     "lines",
     "margin_table",
     "mode_refs",
+    "read_fraction",
+    "read_frequencies",
+    "read_orders",
 ]
 
 DIRECTIONS = ("depth", "width", "torsion", "axial")
@@ -180,6 +185,60 @@ def criterion(name: str, key: str = "criterion") -> Criterion:
         hint = f'did you mean "{close[0]}"?' if close else None
         raise InputError(key, name, "one of " + ", ".join(CRITERIA), hint)
     return found
+
+
+_PERCENT = re.compile(r"^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,3})?)\s*%\s*$")
+
+
+def read_fraction(value: object, key: str, what: str) -> float:
+    """A percentage as written (``"20 %"``) or a plain fraction (0.2), as a fraction [-].
+
+    Raises
+    ------
+    InputError
+        Keyed ``key``, for anything else, or a value outside 0 to 1000 %.
+    """
+    expected = f'{what} as a percentage such as "20 %", or a fraction such as 0.2'
+    if isinstance(value, bool) or not isinstance(value, int | float | str):
+        raise InputError(key, value, expected)
+    if isinstance(value, str):
+        match = _PERCENT.match(value)
+        if match is None:
+            raise InputError(key, value, expected)
+        fraction = float(match.group(1)) / 100.0
+    else:
+        fraction = float(value)
+    if not (math.isfinite(fraction) and 0.0 <= fraction <= 10.0):
+        raise InputError(key, value, f"{what} from 0 % to 1000 %")
+    return fraction
+
+
+def read_frequencies(value: object, key: str) -> tuple[float, float]:
+    """A frequency or speed (``"1480 rpm"``), or a range of two, as (low, high) [Hz]."""
+    from beamtone.calc.units import parse_frequency
+
+    if isinstance(value, list):
+        if len(value) != 2:
+            raise InputError(key, value, 'one value, or a range of two: ["900 rpm", "1800 rpm"]')
+        low = parse_frequency(value[0], f"{key}[0]")
+        high = parse_frequency(value[1], f"{key}[1]")
+        if not high > low:
+            raise InputError(key, value, "a range from the lower value to the higher one")
+        return low, high
+    f = parse_frequency(value, key)
+    return f, f
+
+
+def read_orders(value: object, key: str) -> tuple[float, ...]:
+    """Orders as written: one number or a list (harmonics ``[1, 2]``, a blade count ``[5]``)."""
+    items = value if isinstance(value, list) else [value]
+    expected = "orders above 0 and at most 1000: a number or a list such as [1, 2]"
+    if not items or len(items) > 100:
+        raise InputError(key, value, expected)
+    for i, h in enumerate(items):
+        if isinstance(h, bool) or not isinstance(h, int | float) or not 0.0 < h <= 1000.0:
+            raise InputError(f"{key}[{i}]" if isinstance(value, list) else key, h, expected)
+    return tuple(sorted({float(h) for h in items}))
 
 
 @dataclass(frozen=True)
@@ -321,6 +380,43 @@ def mode_refs(result: object, direction: str = "depth") -> tuple[ModeRef, ...]:
     return tuple(
         ModeRef(direction, m.number, m.frequency_hz, float(m.estimated_error)) for m in modes
     )
+
+
+def check_member(
+    excitations: Sequence[Excitation], result: object, directions: object | None = None
+) -> MarginTable | None:
+    """The margin table of a solved member, every computed direction included.
+
+    Parameters
+    ----------
+    excitations : sequence of Excitation
+    result : fe.FEResult
+        The depth-plane solve.
+    directions : directions.Directions, optional
+        Every direction, where solved; without it only the depth plane is checked and the
+        verdict names the directions it does not cover.
+
+    Returns
+    -------
+    MarginTable or None
+        None where there are no excitations.
+    """
+    if not excitations:
+        return None
+    if directions is None:
+        modes = mode_refs(result, "depth")
+        unchecked = ["the width plane, torsion and axial modes were not computed"]
+    else:
+        every = directions.all_modes  # type: ignore[attr-defined]
+        modes = tuple(
+            ModeRef(m.direction, m.number, m.frequency_hz, float(m.estimated_error)) for m in every
+        )
+        unchecked = [
+            f"{d.name} modes not computed ({d.reason})"
+            for d in directions.directions  # type: ignore[attr-defined]
+            if not d.computed
+        ]
+    return margin_table(excitations, modes, unchecked)
 
 
 @dataclass(frozen=True)

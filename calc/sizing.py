@@ -20,7 +20,14 @@ from typing import Any
 import numpy as np
 
 from beamtone.calc import fe, schema, similitude
+from beamtone.calc.design_values import (
+    PracticalChoice,
+    practical_values,
+    read_sizes,
+    read_step,
+)
 from beamtone.calc.errors import InputError
+from beamtone.calc.excitation import Excitation, MarginTable, lines, margin_table, mode_refs
 from beamtone.calc.model import Member, Segment
 from beamtone.calc.sections import build_section
 from beamtone.calc.units import (
@@ -392,6 +399,11 @@ class SizingResult:
     intervals : tuple of (str, str)
         For an excitation check: the ranges of the variable where every mode clears every
         band, in the worksheet's unit.
+    table : excitation.MarginTable or None
+        For an excitation check: the margin table at the recommended (rounded) value.
+    practical : design_values.PracticalChoice or None
+        For an excitation check: the rounded values tried, solved again, the recommended
+        one and the stiff alternative (see :mod:`calc.design_values`).
     """
 
     variable: str
@@ -403,6 +415,8 @@ class SizingResult:
     message: str
     margins: MarginCheck | None = None
     intervals: tuple[tuple[str, str], ...] = ()
+    table: MarginTable | None = None
+    practical: PracticalChoice | None = None
 
 
 @dataclass(frozen=True)
@@ -610,28 +624,64 @@ def size_for_excitation(
     key: str,
     low: float,
     high: float,
-    excitation_hz: float,
+    excitation_hz: float | None = None,
     harmonics: tuple[int, ...] = (1,),
     margin: float = 0.2,
     modes: int | None = None,
+    *,
+    excitations: tuple[Excitation, ...] | None = None,
+    step: float | None = None,
+    sizes: tuple[float, ...] | None = None,
 ) -> SizingResult:
-    """Values of ``key`` that keep every computed mode outside every excitation band.
+    """Values of ``key`` that keep every computed mode outside every excitation band, and a
+    practical (rounded) value that keeps its margin.
+
+    Parameters
+    ----------
+    sheet : Worksheet
+    key : str
+    low, high : float
+        The range [SI unit of the key].
+    excitation_hz, harmonics, margin
+        One excitation as the command line gives it [Hz, orders, fraction]; or
+    excitations : tuple of Excitation, optional
+        The excitations (the worksheet's): used instead of the three above.
+    modes : int, optional
+    step : float, optional
+        Rounding step in the worksheet's unit of the key (default: three significant
+        figures, :func:`calc.design_values.default_step`).
+    sizes : tuple of float, optional
+        Available sizes in the worksheet's unit of the key, instead of a step.
 
     Returns
     -------
     SizingResult
         ``solutions`` are the edges of the acceptable intervals found in the range (where a
-        mode meets a band edge), plus the range ends where acceptable; the recommended one
-        is the acceptable value with the least member mass, with its margin table.
+        mode meets a band edge), plus the range ends where acceptable; then the rounded
+        value recommended, solved again (never one on a band edge).  Only the depth-plane
+        bending modes are checked here, and the message says so.
     """
-    if not 0.0 < margin < 1.0:
-        raise InputError("--margin", margin, "a margin between 0 % and 100 %")
+    if excitations is None:
+        if excitation_hz is None:
+            raise InputError("--excitation", None, "an excitation, or [[excitation]] tables")
+        if not 0.0 < margin < 1.0:
+            raise InputError("--margin", margin, "a margin between 0 % and 100 %")
+        excitations = (
+            Excitation("excitation", excitation_hz, excitation_hz,
+                       tuple(float(h) for h in harmonics), margin, margin, as_speed=True),
+        )  # fmt: skip
+    if not excitations:
+        raise InputError("--excitation", None, "an excitation, or [[excitation]] tables")
     var = variation(sheet, key)
     low, high = _check_range(var, low, high)
     count = modes or sheet.modes
     ev = _Evaluator(var, count)
-    check = margins((), excitation_hz, harmonics, margin)
-    edges = sorted({e for line in check.lines for e in (line.low_hz, line.high_hz)})
+    bands = tuple(
+        ExcitationLine(int(line.order or 0), line.low_hz, line.band_low_hz, line.band_high_hz)
+        for e in excitations
+        for line in lines(e)
+    )
+    edges = sorted({e for b in bands for e in (b.low_hz, b.high_hz) if e > 0.0})
     grid, table = _scan(ev, low, high)
     candidates: set[float] = set()
     for m in range(count):
@@ -646,33 +696,54 @@ def size_for_excitation(
     solutions = []
     for v in points:
         freqs, mass = ev(v)
-        if _clear(freqs, check.lines, tolerance=1e-9):
+        if _clear(freqs, bands, tolerance=1e-9):
             side = "range end" if v in (low, high) else "band edge"
             solutions.append(Solution(var.text(v), v, float(freqs[0]), mass, side))
-    intervals: list[tuple[str, str]] = []
+    spans_si: list[tuple[float, float]] = []
     for a, b in zip(points[:-1], points[1:], strict=True):
-        if _clear(ev(0.5 * (a + b))[0], check.lines, tolerance=0.0):
-            if intervals and intervals[-1][1] == var.text(a):
-                intervals[-1] = (intervals[-1][0], var.text(b))
+        if _clear(ev(0.5 * (a + b))[0], bands, tolerance=0.0):
+            if spans_si and spans_si[-1][1] == a:
+                spans_si[-1] = (spans_si[-1][0], b)
             else:
-                intervals.append((var.text(a), var.text(b)))
+                spans_si.append((a, b))
+    intervals = tuple((var.text(a), var.text(b)) for a, b in spans_si)
     if not solutions:
         message = (
             f"no value of {key} in range keeps every mode outside the excitation bands; "
             "widen the range or change the member"
         )
         return SizingResult(key, var.unit, None, 1, (), None, message)
-    best = min(range(len(solutions)), key=lambda i: solutions[i].member_mass_kg)
-    chosen = solutions[best]
-    table_best = margins(ev(chosen.value_si)[0], excitation_hz, harmonics, margin)
+    per_unit = convert_from_si(1.0, var.unit)  # the worksheet's unit per SI unit
+
+    def evaluate(value: float) -> tuple[MarginTable, float]:
+        member = var.member(value / per_unit)
+        solved = fe.solve(member, count)
+        return margin_table(excitations, mode_refs(solved)), member.member_mass
+
+    practical = practical_values(
+        evaluate, [(a * per_unit, b * per_unit) for a, b in spans_si], low * per_unit,
+        high * per_unit, step=step, sizes=sizes, unit=var.unit,
+    )  # fmt: skip
     spans = ", ".join(f"{a} to {b}" for a, b in intervals) or "isolated values only"
-    message = (
-        f"every mode clears the bands for {key} in: {spans}; least member mass at "
-        f"{chosen.value} ({chosen.member_mass_kg:.4g} kg)"
-    )
+    message = f"every mode clears the bands for {key} in: {spans}; {practical.message}"
+    message += "; only the depth-plane bending modes were checked"
+    chosen = practical.recommended
+    if chosen is None:
+        return SizingResult(
+            key, var.unit, None, 1, tuple(solutions), None, message, None, intervals,
+            None, practical,
+        )  # fmt: skip
+    v = chosen.value / per_unit
+    freqs, mass = ev(v)
+    solutions.append(Solution(var.text(v), v, float(freqs[0]), mass, "rounded"))
+    check = MarginCheck(
+        bands, tuple(float(f) for f in freqs),
+        tuple(tuple(bool(b.low_hz < f < b.high_hz) for b in bands) for f in freqs),
+    )  # fmt: skip
     return SizingResult(
-        key, var.unit, None, 1, tuple(solutions), best, message, table_best, tuple(intervals)
-    )
+        key, var.unit, None, 1, tuple(solutions), len(solutions) - 1, message, check,
+        intervals, chosen.table, practical,
+    )  # fmt: skip
 
 
 def _clear(freqs: np.ndarray, lines: tuple[ExcitationLine, ...], tolerance: float) -> bool:
@@ -957,6 +1028,12 @@ class SizingRequest:
     harmonics : tuple of int
     margin : float
         Band half-width as a fraction.
+    excitations : tuple of Excitation or None
+        The worksheet's excitations, where neither a target nor an excitation was given.
+    step : float or None
+        Rounding step of an excitation sizing, in the worksheet's unit of the key.
+    sizes : tuple of float or None
+        Available sizes, in the worksheet's unit of the key.
     """
 
     variation: Variation
@@ -967,6 +1044,9 @@ class SizingRequest:
     mode: int = 1
     harmonics: tuple[int, ...] = (1,)
     margin: float = 0.2
+    excitations: tuple[Excitation, ...] | None = None
+    step: float | None = None
+    sizes: tuple[float, ...] | None = None
 
 
 def read_value(var: Variation, text: str, name: str) -> float:
@@ -988,6 +1068,8 @@ def read_request(
     harmonics: str = "1",
     margin: str = "20%",
     names: dict[str, str] | None = None,
+    step: str | None = None,
+    sizes: str | None = None,
 ) -> SizingRequest:
     """Check a sizing request as the user wrote it (the command line's options, the app's
     fields) and return it in SI.
@@ -1000,13 +1082,17 @@ def read_request(
     low, high : str
         The range as ``"number unit"`` text, in the key's dimension.
     target, excitation : str or None
-        Exactly one: a frequency target, or a running excitation (``"60 Hz"``, ``"1480 rpm"``).
+        At most one: a frequency target, or a running excitation (``"60 Hz"``,
+        ``"1480 rpm"``); with neither, the worksheet's ``[[excitation]]`` tables.
     mode : int or str
         Mode number for a target, 1 to ``MAX_MODES``.
     harmonics, margin : str
         Excitation orders (``"1,2"``) and band half-width (``"20%"``), for an excitation.
     names : dict of str to str, optional
         What each input is called in messages (default: the command line's options).
+    step, sizes : str or None
+        For an excitation: a rounding step (``"1 mm"``) or available sizes (``"150, 160 mm"``
+        or ``"@FILE"``), at most one (see :mod:`calc.design_values`).
 
     Raises
     ------
@@ -1016,8 +1102,23 @@ def read_request(
     name = {**_CLI_NAMES, **(names or {})}
     var = variation(sheet, key)
     bounds = [read_value(var, text, name[which]) for which, text in (("low", low), ("high", high))]
-    if (target is None) == (excitation is None):
+    if target is not None and excitation is not None:
         raise InputError(name["target"], target, "either a frequency target or an excitation")
+    if target is None and excitation is None and not sheet.excitations:
+        raise InputError(
+            name["target"], target,
+            "a frequency target, an excitation, or [[excitation]] tables in the worksheet",
+        )  # fmt: skip
+    if target is not None and (step is not None or sizes is not None):
+        raise InputError(name.get("step", "--step"), step or sizes, "an excitation to round for")
+    if step is not None and sizes is not None:
+        raise InputError(name.get("step", "--step"), step, "a step or a list of sizes, not both")
+    rounding = {
+        "step": None if step is None else read_step(step, var.dimension, var.unit,
+                                                    name.get("step", "--step")),
+        "sizes": None if sizes is None else read_sizes(sizes, var.dimension, var.unit,
+                                                       name.get("sizes", "--sizes")),
+    }  # fmt: skip
     if target is not None:
         target_hz = parse_frequency(target, name["target"])
         if isinstance(mode, str):
@@ -1028,14 +1129,19 @@ def read_request(
         if not 1 <= mode <= MAX_MODES:
             raise InputError(name["mode"], mode, f"a mode number from 1 to {MAX_MODES}")
         return SizingRequest(var, bounds[0], bounds[1], target_hz, None, mode)
-    assert excitation is not None
+    if excitation is None:
+        return SizingRequest(
+            var, bounds[0], bounds[1], None, None, excitations=sheet.excitations, **rounding
+        )
     excitation_hz = parse_frequency(excitation, name["excitation"])
     try:
         orders = parse_harmonics(harmonics)
         fraction = parse_margin(margin)
     except InputError as exc:
         raise InputError(name[exc.key.lstrip("-")], exc.value, exc.expected, exc.hint) from None
-    return SizingRequest(var, bounds[0], bounds[1], None, excitation_hz, 1, orders, fraction)
+    return SizingRequest(
+        var, bounds[0], bounds[1], None, excitation_hz, 1, orders, fraction, **rounding
+    )
 
 
 def run_request(request: SizingRequest) -> SizingResult:
@@ -1045,8 +1151,8 @@ def run_request(request: SizingRequest) -> SizingResult:
         return size_for_target(
             var.sheet, var.key, request.low, request.high, request.target_hz, request.mode
         )
-    assert request.excitation_hz is not None
     return size_for_excitation(
         var.sheet, var.key, request.low, request.high, request.excitation_hz,
-        request.harmonics, request.margin,
+        request.harmonics, request.margin, excitations=request.excitations,
+        step=request.step, sizes=request.sizes,
     )  # fmt: skip

@@ -17,6 +17,14 @@ from typing import Any
 
 from beamtone.calc import materials, schema
 from beamtone.calc.errors import InputError
+from beamtone.calc.excitation import (
+    CRITERIA,
+    Excitation,
+    criterion,
+    read_fraction,
+    read_frequencies,
+    read_orders,
+)
 from beamtone.calc.materials import Material
 from beamtone.calc.model import (
     InnerSupport,
@@ -25,7 +33,6 @@ from beamtone.calc.model import (
     Segment,
     Spring,
 )
-from beamtone.calc.restraints import OVERRIDES
 from beamtone.calc.sections import Section, build_section
 
 __all__ = [
@@ -85,6 +92,10 @@ class Worksheet:
         Where it came from (a path, or ``"<text>"``).
     data : dict
         The worksheet as plain Python data, as written.
+    excitations : tuple of Excitation
+        The ``[[excitation]]`` tables, in SI (see :mod:`calc.excitation`).
+    damping_ratio : float or None
+        ``response.damping_ratio`` where given [-].
     """
 
     title: str
@@ -94,6 +105,8 @@ class Worksheet:
     estimate: EstimateSettings = field(default_factory=EstimateSettings)
     source: str = "<text>"
     data: dict[str, Any] = field(default_factory=dict, repr=False, compare=False)
+    excitations: tuple[Excitation, ...] = ()
+    damping_ratio: float | None = None
 
 
 def load(path: str | Path) -> Worksheet:
@@ -275,10 +288,10 @@ def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Workshe
     estimate = _estimate(data.get("estimate", {}))
     # The stored results of beamtone solve --record; calc.record reads and checks them.
     _table(data.get("record", {}), "record", "the record beamtone solve --record writes")
-    member = Member(segments, left, right, masses, springs, inner, axial,
-                    _overrides(supports, "supports", "left_"),
-                    _overrides(supports, "supports", "right_"))  # fmt: skip
-    return Worksheet(title, notes, member, modes, estimate, source, data)
+    member = Member(segments, left, right, masses, springs, inner, axial)
+    excitations = _excitations(data.get("excitation", []), member.length)
+    damping = _response(data.get("response", {}))
+    return Worksheet(title, notes, member, modes, estimate, source, data, excitations, damping)
 
 
 def _format(data: dict[str, Any]) -> None:
@@ -371,10 +384,7 @@ def _material(value: object, key: str) -> Material:
     ):
         raise InputError(f"{key}.poisson_ratio", nu, f"a number between {low:g} and {high:g}")
     name = _string(table.get("name", "inline"), f"{key}.name", "a text name")
-    G = None
-    if "shear_modulus" in table:
-        G = _quantity(table, "shear_modulus", key, required=False)
-    return Material(name, E, rho, None if nu is None else float(nu), shear_modulus=G)
+    return Material(name, E, rho, None if nu is None else float(nu))
 
 
 def _section(value: object, key: str) -> Section:
@@ -408,19 +418,8 @@ def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]
         _keys(item, key)
         at = _quantity(item, "at", key)
         kind = _choice(item, "kind", key)
-        inner.append(InnerSupport(at, kind, _overrides(item, key, "")))
+        inner.append(InnerSupport(at, kind))
     return ends[0], ends[1], tuple(inner)
-
-
-def _overrides(table: dict[str, Any], key: str, prefix: str) -> tuple[tuple[str, str], ...]:
-    """The directions a support sets for itself (``left_torsion = "free"``, or ``torsion`` in
-    an inner support), each one of its schema entry's choices."""
-    out = []
-    for direction in OVERRIDES:
-        name = f"{prefix}{direction}"
-        if name in table:
-            out.append((direction, _choice(table, name, key)))
-    return tuple(out)
 
 
 def _mass(table: dict[str, Any], key: str) -> PointMass:
@@ -430,28 +429,15 @@ def _mass(table: dict[str, Any], key: str) -> PointMass:
     inertia = 0.0
     if "rotary_inertia" in table:
         inertia = _quantity(table, "rotary_inertia", key, required=False)
-    more = {n: _quantity(table, n, key, required=False) for n in _MASS_MORE if n in table}
-    return point_mass(at, mass, inertia, key, table["mass"], **more)
+    return point_mass(at, mass, inertia, key, table["mass"])
 
 
-_MASS_MORE = ("rotary_inertia_width", "polar_inertia")
-_SPRING_MORE = (
-    "stiffness_width",
-    "rotational_stiffness_width",
-    "torsional_stiffness",
-    "axial_stiffness",
-)
-
-
-def point_mass(
-    at: float, mass: float, inertia: float, key: str, written: object, **more: float
-) -> PointMass:
+def point_mass(at: float, mass: float, inertia: float, key: str, written: object) -> PointMass:
     """A point mass [m, kg, kg*m^2] that carries something: InputError keyed ``key.mass``
-    (showing ``written``) where the mass and every inertia are zero.  ``more`` are the
-    width-plane and polar inertias [kg*m^2] (``rotary_inertia_width``, ``polar_inertia``)."""
-    if mass == 0.0 and inertia == 0.0 and not any(more.values()):
+    (showing ``written``) where both the mass and the rotary inertia are zero."""
+    if mass == 0.0 and inertia == 0.0:
         raise InputError(f"{key}.mass", written, "a positive mass or rotary inertia")
-    return PointMass(at, mass, inertia, **more)
+    return PointMass(at, mass, inertia)
 
 
 def _spring(table: dict[str, Any], key: str) -> Spring:
@@ -462,22 +448,87 @@ def _spring(table: dict[str, Any], key: str) -> Spring:
         k = _quantity(table, "stiffness", key, required=False)
     if "rotational_stiffness" in table:
         kr = _quantity(table, "rotational_stiffness", key, required=False)
-    more = {n: _quantity(table, n, key, required=False) for n in _SPRING_MORE if n in table}
-    return spring(at, k, kr, key, table.get("stiffness"), **more)
+    return spring(at, k, kr, key, table.get("stiffness"))
 
 
-def spring(at: float, k: float, kr: float, key: str, written: object, **more: float) -> Spring:
+def spring(at: float, k: float, kr: float, key: str, written: object) -> Spring:
     """A spring [m, N/m, N*m/rad] that holds something: InputError keyed ``key.stiffness``
-    (showing ``written``) where every stiffness is zero.  ``more`` are the width-plane,
-    torsional and axial stiffnesses (``stiffness_width``, ``rotational_stiffness_width``,
-    ``torsional_stiffness`` [N*m/rad], ``axial_stiffness`` [N/m])."""
-    if k == 0.0 and kr == 0.0 and not any(more.values()):
+    (showing ``written``) where both stiffnesses are zero."""
+    if k == 0.0 and kr == 0.0:
         raise InputError(
             f"{key}.stiffness",
             written,
-            "a positive stiffness, rotational, torsional or axial stiffness",
+            "a positive stiffness or rotational_stiffness",
         )
-    return Spring(at, k, kr, **more)
+    return Spring(at, k, kr)
+
+
+def _excitations(value: object, length: float) -> tuple[Excitation, ...]:
+    """The ``[[excitation]]`` tables: each through its schema entries (units and limits)."""
+    tables = _tables(value, "excitation", "[[excitation]] entries with a speed or frequency")
+    out: list[Excitation] = []
+    for i, table in enumerate(tables):
+        key = f"excitation[{i}]"
+        _keys(table, key)
+        name = _string(table.get("name", key), f"{key}.name", "a text name")
+        if any(e.name == name for e in out):
+            raise InputError(f"{key}.name", name, "a name no other excitation has")
+        given = [k for k in ("speed", "frequency") if k in table]
+        if len(given) != 1:
+            what = schema.entry("excitation[].speed").missing
+            raise InputError(key, ", ".join(given) or None, f"either {what}, not both")
+        low, high = read_frequencies(table[given[0]], f"{key}.{given[0]}")
+        orders = read_orders(table.get("orders", 1), f"{key}.orders")
+        if "margin" in table and "criterion" in table:
+            raise InputError(
+                f"{key}.criterion", table["criterion"], "a margin or a criterion, not both"
+            )
+        below = above = 0.0
+        minimum = named = None
+        if "criterion" in table:
+            c = criterion(
+                _string(table["criterion"], f"{key}.criterion", "a criterion name"),
+                f"{key}.criterion",
+            )
+            below, above, minimum, named = c.below, c.above, c.minimum_hz, c.name
+        elif "margin" in table:
+            below = above = read_fraction(table["margin"], f"{key}.margin", "a margin")
+            if below > 1.0:
+                raise InputError(f"{key}.margin", table["margin"], "a margin from 0 % to 100 %")
+        else:
+            raise InputError(
+                f"{key}.margin", None,
+                'a margin such as "20 %", or a criterion (one of ' + ", ".join(CRITERIA) + ")",
+                "the margin is yours to set; the applicable code governs",
+            )  # fmt: skip
+        force = force_at = None
+        if "force" in table or "force_at" in table:
+            force = _quantity(table, "force", key)
+            force_at = _quantity(table, "force_at", key)
+            if not -1e-9 * length <= force_at <= length * (1 + 1e-9):
+                raise InputError(
+                    f"{key}.force_at", table["force_at"],
+                    f"a position on the member, from 0 m to {length:.6g} m",
+                )  # fmt: skip
+        out.append(
+            Excitation(name, low, high, orders, below, above, minimum, named,
+                       given[0] == "speed", force, force_at)
+        )  # fmt: skip
+    return tuple(out)
+
+
+def _response(value: object) -> float | None:
+    table = _table(value, "response", 'response settings such as damping_ratio = "2 %"')
+    _keys(table, "response")
+    if "damping_ratio" not in table:
+        return None
+    zeta = read_fraction(table["damping_ratio"], "response.damping_ratio", "a damping ratio")
+    if not 0.0 < zeta < 1.0:
+        raise InputError(
+            "response.damping_ratio", table["damping_ratio"],
+            'a damping ratio above 0 and below 100 %, e.g. "2 %"',
+        )  # fmt: skip
+    return zeta
 
 
 def _check(value: object) -> int:

@@ -24,6 +24,7 @@ __all__ = ["main", "run"]
 EXIT_OK = 0
 EXIT_FAILED = 1
 EXIT_INPUT = 2
+EXIT_NOT_CLEAR = 3  # solve --fail-unless-clear: the member is not shown clear
 
 _DESCRIPTION = (
     "Natural frequencies of beam-like members, early in design: a finite-element "
@@ -78,6 +79,10 @@ def build_parser() -> argparse.ArgumentParser:
     solve.add_argument(
         "--record", action="store_true",
         help="store the results in the worksheet's [record] table (comments kept)",
+    )  # fmt: skip
+    solve.add_argument(
+        "--fail-unless-clear", action="store_true",
+        help="exit with status 3 unless the verdict on the worksheet's excitations is clear",
     )  # fmt: skip
 
     verify = commands.add_parser(
@@ -134,17 +139,23 @@ def build_parser() -> argparse.ArgumentParser:
         description=(
             "Vary one worksheet quantity (any key path, e.g. member.section.depth, mass[0].mass, "
             "supports.inner[0].at) over a range and find where the chosen mode meets --target, "
-            "or where every mode stays outside the bands around an --excitation."
+            "or where every mode stays outside the bands around an --excitation (or the "
+            "worksheet's [[excitation]] tables, where neither is given); an excitation sizing "
+            "recommends a rounded value that keeps its margin."
         ),
     )
     size.add_argument("file", metavar="FILE")
     _range_arguments(size)
-    goal = size.add_mutually_exclusive_group(required=True)
+    goal = size.add_mutually_exclusive_group()
     goal.add_argument("--target", metavar="FREQ", help='target frequency, e.g. "60 Hz"')
     goal.add_argument("--excitation", metavar="FREQ", help='running speed, e.g. "1480 rpm"')
     size.add_argument("--harmonics", default="1", metavar="1,2", help="excitation orders")
     size.add_argument("--margin", default="20%", metavar="PCT", help="band half-width (20%%)")
     size.add_argument("--mode", type=_positive_int(50, "mode"), default=1, help="default 1")
+    size.add_argument("--step", metavar="STEP", help='round to this step, e.g. "1 mm"')
+    size.add_argument(
+        "--sizes", metavar="LIST", help='available sizes, e.g. "150, 160, 180 mm", or @FILE'
+    )
     size.add_argument("--apply", action="store_true", help="write the recommended value")
     size.add_argument("--json", action="store_true", help="print one JSON object")
 
@@ -206,6 +217,10 @@ def _solve(args: argparse.Namespace) -> int:
         sys.stdout.write(solve_text(analysis))
     if note:
         (sys.stderr if args.json else sys.stdout).write(f"{note}\n")
+    if args.fail_unless_clear and (analysis.margins is None or not analysis.margins.verdict.clear):
+        if analysis.margins is None:
+            sys.stderr.write("--fail-unless-clear: the worksheet has no [[excitation]] tables\n")
+        return EXIT_NOT_CLEAR
     return EXIT_OK
 
 

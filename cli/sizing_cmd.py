@@ -10,6 +10,7 @@ from typing import Any
 
 from beamtone.calc.errors import InputError
 from beamtone.cli.output import CAUTION, write_json
+from beamtone.render.margins import margin_lines, practical_json
 
 __all__ = ["size", "sweep"]
 
@@ -37,7 +38,8 @@ def size(args: argparse.Namespace) -> int:
     sheet = load(path)
     request = sizing.read_request(
         sheet, args.vary, *args.between, target=args.target, excitation=args.excitation,
-        mode=args.mode, harmonics=args.harmonics, margin=args.margin,
+        mode=args.mode, harmonics=args.harmonics, margin=args.margin, step=args.step,
+        sizes=args.sizes,
     )  # fmt: skip
     var = request.variation
     result = sizing.run_request(request)
@@ -70,8 +72,10 @@ def size(args: argparse.Namespace) -> int:
         }
         if result.margins is not None:
             obj["margins"] = _margins_json(result.margins)
+        if result.practical is not None:
             obj["intervals"] = [list(i) for i in result.intervals]
             obj["note"] = MARGIN_NOTE
+            obj.update(practical_json(result))
         write_json(obj)
         return 0
     lines = [f"beamtone size: {sheet.title}", "", f"  {result.message}", ""]
@@ -88,14 +92,16 @@ def size(args: argparse.Namespace) -> int:
                 f"  {mark}{s.value:>30}   {s.frequency_hz:12.6g}   {s.member_mass_kg:9.4g} kg   "
                 f"{side}"
             )
-    if result.margins is not None:
+    if result.table is not None:
+        lines += ["", *margin_lines(result.table)]
+    elif result.margins is not None:
         lines += ["", *_margin_lines(result.margins), "", f"  {MARGIN_NOTE}"]
     if args.apply:
         lines.append("")
         lines.append(
             f"  applied: {args.vary} = {applied!r} written to {path}"
             if applied
-            else "  nothing applied: no acceptable value in range"
+            else "  nothing applied: no practical value in range keeps every mode clear"
         )
     lines += ["", CAUTION]
     sys.stdout.write("\n".join(lines) + "\n")

@@ -8,15 +8,14 @@ import textwrap
 from typing import TYPE_CHECKING, Any
 
 from beamtone.calc.caution import CAUTION
-from beamtone.render.directions import (
-    all_modes_json,
-    assumption_lines,
-    depth_heading,
-    direction_lines,
-    directions_json,
-    governing_lines,
-)
 from beamtone.render.groups import member_groups_json
+from beamtone.render.margins import (
+    margin_lines,
+    margins_json,
+    response_json,
+    response_lines,
+    verdict_json,
+)
 
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.analysis import Analysis
@@ -47,9 +46,6 @@ def solve_text(analysis: Analysis) -> str:
     sheet, result, check = analysis.sheet, analysis.modes, analysis.handbook
     member = sheet.member
     lines = [f"beamtone solve: {sheet.title}" if sheet.title else "beamtone solve", ""]
-    directions = analysis.directions
-    if directions is not None:
-        lines += governing_lines(directions)
     n_seg = len(member.segments)
     attached = sum(p.mass for p in member.masses)
     mass_note = f", {_fmt(attached, 4)} kg attached" if member.masses else ""
@@ -76,8 +72,6 @@ def solve_text(analysis: Analysis) -> str:
         + (" (not listed; modes start at the first flexible one)" if rigid else "")
     )
     lines.append("")
-    if directions is not None:
-        lines.append(depth_heading(directions))
 
     header = ["mode", "f [Hz]", "omega [rad/s]", "est. error", "eff. mass", "cumul."]
     if check is not None:
@@ -112,10 +106,12 @@ def solve_text(analysis: Analysis) -> str:
     lines.append("            modes normalized to unit modal mass; effective mass in the plane")
     lines.append("")
     lines += _estimate_lines(analysis)
-    if directions is not None:
+    if analysis.margins is not None:
         lines.append("")
-        lines += direction_lines(directions)
-        lines += assumption_lines(directions)
+        lines += margin_lines(analysis.margins, analysis.sheet.excitations)
+    if analysis.response is not None:
+        lines.append("")
+        lines += response_lines(analysis.response)
     if analysis.warnings:
         lines.append("")
         lines.append("  warnings")
@@ -234,21 +230,18 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
             "roundoff_dominated": result.roundoff_dominated,
         },
         "caution": CAUTION,
-        **_directions_json(analysis),
+        **_excitation_json(analysis),
     }
 
 
-def _directions_json(analysis: Analysis) -> dict[str, Any]:
-    """``all_modes``, ``directions`` and ``governing`` (every direction of the member)."""
-    directions = analysis.directions
-    if directions is None:
-        return {}
-    gov = directions.governing
-    return {
-        "all_modes": all_modes_json(directions),
-        "directions": directions_json(directions),
-        "governing": None
-        if gov is None
-        else {"direction": gov.direction, "number": gov.number, "frequency_hz": gov.frequency_hz},
-        "assumptions": list(directions.notes),
-    }
+def _excitation_json(analysis: Analysis) -> dict[str, Any]:
+    """``margins`` and ``verdict`` where the worksheet has excitations; ``response`` where it
+    also gives a damping ratio."""
+    out: dict[str, Any] = {}
+    if analysis.margins is not None:
+        out["margins"] = margins_json(analysis.margins)
+        out["verdict"] = verdict_json(analysis.margins)
+        out["verdict_not_covered"] = list(analysis.margins.verdict.unchecked)
+    if analysis.response is not None:
+        out["response"] = response_json(analysis.response)
+    return out
