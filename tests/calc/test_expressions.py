@@ -331,11 +331,32 @@ def test_import_does_not_load_sympy() -> None:
 
 
 def test_limits_are_public() -> None:
+    """The bounds the refusals state, each enforced exactly at its value."""
     assert expressions.MAX_LENGTH == 200
     assert expressions.MAX_DEPTH == 12
     assert expressions.MAX_NODES == 150
     assert expressions.MAX_EXPONENT == 12
     assert set(expressions.__all__) >= {"parse_shape", "evaluate", "symbols"}
+
+    def refused(text: str, fragment: str) -> None:
+        with pytest.raises(InputError) as caught:
+            parse_shape(text)
+        assert fragment in (caught.value.hint or ""), caught.value.hint
+
+    def with_nodes(n: int) -> str:  # n numbers, names and operations: x + x + ... (- x)
+        return ("-x" if n % 2 == 0 else "x") + "+x" * ((n - 1) // 2)
+
+    # the same published numbers, now as behaviour: accepted at the bound, refused one past it
+    longest = "x/L" + " " * (200 - 3)
+    parse_shape(longest)
+    refused(longest + " ", "at most 200 are allowed")
+    parse_shape("(" * 12 + "x/L" + ")" * 12)
+    refused("(" * 13 + "x/L" + ")" * 13, "more than 12 levels")
+    parse_shape(with_nodes(150))
+    refused(with_nodes(151), "more than 150 numbers")
+    parse_shape("(x/L)**12")
+    parse_shape("(x/L)**-12")
+    refused("(x/L)**13", "exceeds 12")
 
 
 # -- random text ----------------------------------------------------------------------------

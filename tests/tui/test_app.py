@@ -2,23 +2,22 @@
 
 from __future__ import annotations
 
-import asyncio
-import functools
 import math
-from collections.abc import Callable, Coroutine
 from pathlib import Path
-from typing import Any
 
 import pytest
 from textual.widgets import Button, Input, Select
 
+from beamtone.calc.sizing import quantity_keys
 from beamtone.calc.worksheet import load
 from beamtone.tui.app import BeamtoneApp
 from beamtone.tui.dialogs.choices import PathDialog, TemplateDialog, UnsavedDialog
 from beamtone.tui.document import TEMPLATES, Document
 from beamtone.tui.screens.sizing import SizingScreen
+from beamtone.tui.screens.workbench import Workbench
 from beamtone.tui.widgets.quantity import QuantityField
 from beamtone.tui.widgets.results import ResultsView
+from tests.tui.driving import click, field_of, on_top, settled, sync, type_into, work_done
 
 ROOT = Path(__file__).resolve().parents[2]
 LAMBDA1 = 1.87510407  # clamped-free (R. D. Blevins 1979, Table 8-1)
@@ -38,16 +37,6 @@ right = "free"
 """
 
 
-def sync(test: Callable[..., Coroutine[Any, Any, None]]) -> Callable[..., None]:
-    """Run an async test on its own event loop (no pytest plugin needed)."""
-
-    @functools.wraps(test)
-    def wrapper(*args: Any, **kwargs: Any) -> None:
-        asyncio.run(test(*args, **kwargs))
-
-    return wrapper
-
-
 @pytest.fixture
 def bar(tmp_path: Path) -> Path:
     path = tmp_path / "bar.toml"
@@ -61,34 +50,15 @@ def bar_fundamental(length: float) -> float:
     return LAMBDA1**2 / (2 * math.pi * length**2) * math.sqrt(EI / m)
 
 
-async def settled(pilot, app: BeamtoneApp, since: int | None = None) -> ResultsView:  # noqa: ANN001
-    """Wait until a solve after ``since`` finished solves (or the first) has been shown."""
-    for _ in range(400):
-        await pilot.pause(0.05)
-        bench = app.workbench
-        done = bench.finished > (since if since is not None else 0)
-        if done and not bench.pending:
-            return bench.query_one(ResultsView)
-    raise AssertionError("the app did not settle")
-
-
-def finished(app: BeamtoneApp) -> int:
-    return app.workbench.finished
-
-
 async def press(pilot, app: BeamtoneApp, selector: str) -> None:  # noqa: ANN001
-    """Press a button of the current screen (scrolled into view first, then clicked)."""
-    button = app.screen.query_one(selector, Button)
-    button.scroll_visible(animate=False)
-    await pilot.pause(0.05)
-    button.press()
-    await pilot.pause(0.2)
+    """Click a button of the current screen (scrolled into view first)."""
+    await click(pilot, app.screen.query_one(selector, Button))
 
 
-async def type_into(pilot, app: BeamtoneApp, dom_id: str, text: str) -> None:  # noqa: ANN001
-    field = app.workbench.query_one(f"#{dom_id}", Input)
-    field.value = text
-    await pilot.pause()
+async def edit(pilot, app: BeamtoneApp, key: str, text: str) -> ResultsView:  # noqa: ANN001
+    """Type ``text`` into the field of ``key``; wait for the results of the edited worksheet."""
+    await type_into(pilot, field_of(app, key), text)
+    return await settled(pilot, app, until=lambda: app.document.get(key) == text)
 
 
 @sync
@@ -107,9 +77,7 @@ async def test_changing_the_length_changes_the_frequency(bar: Path) -> None:
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 40)) as pilot:
         await settled(pilot, app)
-        n = finished(app)
-        await type_into(pilot, app, "f-member-length", "500 mm")
-        view = await settled(pilot, app, n)
+        view = await edit(pilot, app, "member.length", "500 mm")
         assert view.state == "current"
         f = view.analysis.modes.modes[0].frequency_hz
         assert f == pytest.approx(bar_fundamental(0.5), rel=1e-6)
@@ -123,20 +91,17 @@ async def test_bad_unit_shows_inline_error_and_marks_results_stale(bar: Path) ->
     async with app.run_test(size=(100, 40)) as pilot:
         good = await settled(pilot, app)
         before = good.analysis
-        n = finished(app)
-        await type_into(pilot, app, "f-member-length", "1 kg")
-        field = app.workbench.query_one("#f-member-length", Input).parent.parent
+        await type_into(pilot, field_of(app, "member.length"), "1 kg")
+        field = field_of(app, "member.length").parent.parent
         assert isinstance(field, QuantityField)
         assert field.has_class("-invalid")
         assert "a length" in str(field.query_one(".problem").render())
-        view = await settled(pilot, app, n)
+        view = await settled(pilot, app, until=lambda: app.document.get("member.length") == "1 kg")
         assert view.state == "stale"
         assert view.analysis is before  # the last good results stay, marked
         assert "OUT OF DATE" in str(view._banner())  # noqa: SLF001
         assert app.document.get("member.length") == "1 kg"  # nothing typed is lost
-        n = finished(app)
-        await type_into(pilot, app, "f-member-length", "1 m")
-        view = await settled(pilot, app, n)
+        view = await edit(pilot, app, "member.length", "1 m")
         assert view.state == "current"
 
 
@@ -146,14 +111,14 @@ async def test_add_and_remove_a_mass(bar: Path) -> None:
     async with app.run_test(size=(100, 60)) as pilot:
         bare = (await settled(pilot, app)).analysis.modes.modes[0].frequency_hz
         await press(pilot, app, "#add-mass")
-        await pilot.pause(0.2)
+        view = await settled(pilot, app, until=lambda: len(app.document.rows("mass")) == 1)
         assert len(app.document.rows("mass")) == 1
-        loaded = (await settled(pilot, app)).analysis.modes.modes[0].frequency_hz
+        loaded = view.analysis.modes.modes[0].frequency_hz
         assert loaded < bare
         await press(pilot, app, "#remove-mass-0")
-        await pilot.pause(0.2)
+        view = await settled(pilot, app, until=lambda: app.document.rows("mass") == [])
         assert app.document.rows("mass") == []
-        again = (await settled(pilot, app)).analysis.modes.modes[0].frequency_hz
+        again = view.analysis.modes.modes[0].frequency_hz
         assert again == pytest.approx(bare, rel=1e-12)
 
 
@@ -163,22 +128,24 @@ async def test_size_a_dimension_and_apply_it(bar: Path) -> None:
     async with app.run_test(size=(100, 40)) as pilot:
         await settled(pilot, app)
         await pilot.press("f5")
-        await pilot.pause(0.2)
-        screen = app.screen
+        screen = await on_top(pilot, app, SizingScreen)
         assert isinstance(screen, SizingScreen)
-        screen.query_one("#vary", Select).value = "member.section.depth"
-        screen.query_one("#low", Input).value = "4 mm"
-        screen.query_one("#high", Input).value = "30 mm"
-        screen.query_one("#frequency", Input).value = "20 Hz"
+        vary = screen.query_one("#vary", Select)
+        # the quantity to vary, picked from the drop-down list by keys (below its blank row)
+        rows = quantity_keys(app.document.plain())
+        assert vary.has_focus
+        await pilot.press("enter", *["down"] * (1 + rows.index("member.section.depth")), "enter")
+        await pilot.pause()  # flush
+        assert vary.value == "member.section.depth"
+        await type_into(pilot, screen.query_one("#low", Input), "4 mm")
+        await type_into(pilot, screen.query_one("#high", Input), "30 mm")
+        await type_into(pilot, screen.query_one("#frequency", Input), "20 Hz")
         await press(pilot, app, "#solve")
-        for _ in range(100):
-            await pilot.pause(0.05)
-            if screen.result is not None:
-                break
+        await work_done(pilot, app)
         assert screen.result is not None and screen.result.recommended == 0
-        n = finished(app)
         await press(pilot, app, "#apply")
-        view = await settled(pilot, app, n)
+        await on_top(pilot, app, Workbench)
+        view = await settled(pilot, app, until=lambda: app.document.modified)
         assert app.screen is app.workbench
         assert view.analysis.modes.modes[0].frequency_hz == pytest.approx(20.0, rel=1e-5)
         assert app.document.modified
@@ -189,13 +156,11 @@ async def test_save_reopen_and_compare(bar: Path, tmp_path: Path) -> None:
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 60)) as pilot:
         await settled(pilot, app)
-        n = finished(app)
-        await type_into(pilot, app, "f-member-length", "750 mm")
+        await edit(pilot, app, "member.length", "750 mm")
         await press(pilot, app, "#add-spring")
-        await pilot.pause(0.2)
-        await settled(pilot, app, n)
+        await settled(pilot, app, until=lambda: len(app.document.rows("spring")) == 1)
         await pilot.press("ctrl+s")
-        await pilot.pause(0.2)
+        await pilot.pause()  # flush
         assert not app.document.modified and "*" not in app.title
         edited = app.document.plain()
     text = bar.read_text()
@@ -219,13 +184,14 @@ async def test_quit_with_unsaved_changes_asks(bar: Path) -> None:
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 40)) as pilot:
         await settled(pilot, app)
-        await type_into(pilot, app, "f-member-length", "2 m")
+        await edit(pilot, app, "member.length", "2 m")
         await pilot.press("ctrl+q")
-        await pilot.pause(0.2)
+        await on_top(pilot, app, UnsavedDialog)
         assert isinstance(app.screen, UnsavedDialog)
         await press(pilot, app, "#cancel")
-        await pilot.pause(0.1)
+        await on_top(pilot, app, Workbench)
         assert app.is_running and app.screen is app.workbench
+        assert app.return_code is None  # no exit was asked for
     assert bar.read_text() == BAR  # nothing was written
 
 
@@ -235,46 +201,84 @@ async def test_quit_unmodified_quits_at_once(bar: Path) -> None:
     async with app.run_test(size=(100, 40)) as pilot:
         await settled(pilot, app)
         await pilot.press("ctrl+q")
-        await pilot.pause(0.2)
+        assert app.return_code == 0  # the exit was asked for at once, no question between
+        await pilot.pause()  # flush
         assert not app.is_running
 
 
 @sync
-async def test_damaged_file_keeps_the_current_worksheet(bar: Path, tmp_path: Path) -> None:
+async def test_damaged_file_keeps_the_current_worksheet(
+    bar: Path, tmp_path: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
     damaged = tmp_path / "damaged.toml"
     damaged.write_bytes(b"format = 1\n[member\nlength = ")
+    monkeypatch.chdir(tmp_path)  # the file name is typed relative to the working folder
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 40)) as pilot:
         await settled(pilot, app)
         await pilot.press("ctrl+o")
-        await pilot.pause(0.2)
+        dialog = await on_top(pilot, app, PathDialog)
         assert isinstance(app.screen, PathDialog)
-        app.screen.query_one("#path", Input).value = str(damaged)
+        await type_into(pilot, dialog.query_one("#path", Input), damaged.name)
         await press(pilot, app, "#ok")
-        await pilot.pause(0.3)
+        await on_top(pilot, app, Workbench)
+        await pilot.pause()  # flush: the refused file's notice
         assert app.document.path == bar
         assert app.screen is app.workbench
         assert app.is_running
+        assert any("not opened" in n.message for n in app._notifications)  # noqa: SLF001
 
 
 @sync
 async def test_new_from_template_without_a_file() -> None:
     app = BeamtoneApp()
     async with app.run_test(size=(100, 40)) as pilot:
-        await pilot.pause(0.3)
+        await on_top(pilot, app, TemplateDialog)
         assert isinstance(app.screen, TemplateDialog)
-        app.screen.dismiss(TEMPLATES[3])  # the stepped shaft
-        view = await settled(pilot, app)
+        await pilot.press("home", "down", "down", "down", "enter")  # the stepped shaft
+        await on_top(pilot, app, Workbench)
+        view = await settled(pilot, app, until=lambda: app.document.title == "Stepped shaft")
         assert view.state == "current"
         assert app.document.path is None
         assert len(view.analysis.sheet.member.segments) == 3
 
 
-def test_every_template_solves() -> None:
-    for template in TEMPLATES:
-        doc = Document.from_template(template)
-        sheet = doc.worksheet()
-        assert sheet.member.length > 0
+@sync
+async def test_every_template_solves() -> None:
+    """Each template, picked in the app, solves there to the numbers the library gives.
+
+    The app's results are compared with an independent load of the template's text through
+    ``calc.analysis.analyse`` (the command line's path); where a template is a handbook case
+    the app's frequencies agree with the handbook's (Blevins 1979, Table 8-1, through
+    calc.handbook); and the fundamental lies inside the Dunkerley / Rayleigh bracket.
+    """
+    from beamtone.calc.analysis import analyse
+
+    app = BeamtoneApp()
+    async with app.run_test(size=(100, 40)) as pilot:
+        await on_top(pilot, app, TemplateDialog)
+        await pilot.press("escape")  # keep the first template for now
+        for i, template in enumerate(TEMPLATES):
+            await on_top(pilot, app, Workbench)
+            await pilot.press("ctrl+n")
+            await on_top(pilot, app, TemplateDialog)
+            await pilot.press("home", *["down"] * i, "enter")
+            await on_top(pilot, app, Workbench)
+            expected = Document.from_template(template)
+            assert expected.worksheet().member.length > 0
+            view = await settled(
+                pilot, app, until=lambda e=expected: app.document.plain() == e.plain()
+            )
+            assert view.state == "current", (template.name, view.problem)
+            shown = view.analysis
+            f = shown.modes.frequencies_hz
+            assert len(f) >= 3 and all(math.isfinite(x) and x > 0 for x in f), template.name
+            reference = analyse(expected.worksheet())
+            assert f == pytest.approx(reference.modes.frequencies_hz, rel=1e-12), template.name
+            if shown.handbook is not None:
+                exact = shown.handbook.frequencies_hz
+                assert f[: len(exact)] == pytest.approx(exact, rel=1e-6), template.name
+            assert shown.bracket.inside, (template.name, shown.bracket.message)
 
 
 @sync
@@ -285,25 +289,25 @@ async def test_unsaved_edits_survive_a_crash_and_are_offered_back(bar: Path) -> 
     app = BeamtoneApp(bar)
     async with app.run_test(size=(100, 40)) as pilot:
         await settled(pilot, app)
-        n = finished(app)
-        await type_into(pilot, app, "f-member-length", "650 mm")
-        await settled(pilot, app, n)
+        await edit(pilot, app, "member.length", "650 mm")
         kept = app.document.autosave_path
         assert kept.exists()
         # the session now "crashes": it ends without saving or being asked
     assert bar.read_text() == BAR
     second = BeamtoneApp(bar)
     async with second.run_test(size=(100, 40)) as pilot:
-        await pilot.pause(0.5)
+        await on_top(pilot, second, RecoverDialog)
         assert isinstance(second.screen, RecoverDialog)
         await press(pilot, second, "#recover")
-        view = await settled(pilot, second, 0)
+        view = await settled(
+            pilot, second, until=lambda: second.document.get("member.length") == "650 mm"
+        )
         assert second.document.get("member.length") == "650 mm"
         assert second.document.modified
         assert view.analysis.modes.modes[0].frequency_hz == pytest.approx(
             bar_fundamental(0.65), rel=1e-6
         )
         await pilot.press("ctrl+s")
-        await pilot.pause(0.3)
+        await pilot.pause()  # flush
         assert not kept.exists()  # saved: the kept edits are gone
     assert load(bar).member.length == pytest.approx(0.65)

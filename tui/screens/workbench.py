@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import asyncio
+
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -41,9 +43,14 @@ class Workbench(Screen[None]):
         # pending: a solve is scheduled or running for the latest inputs
         self._timer: Timer | None = None
         self._version = 0
+        self._solving: dict | None = None
         self.solves = 0  # solves shown
         self.finished = 0  # solves finished, shown or failed
         self.pending = False
+        # what the shown results (or the shown error) were solved from, and an event set each
+        # time a solve of the latest inputs finishes: scripts and tests wait on these
+        self.solved: dict | None = None
+        self.solve_finished = asyncio.Event()
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -81,7 +88,8 @@ class Workbench(Screen[None]):
 
     def _solve(self) -> None:
         self.document.autosave()  # after the typing pause: unsaved edits survive a crash
-        self._run(self.document.plain(), self._version)
+        self._solving = self.document.plain()
+        self._run(self._solving, self._version)
 
     @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
     def _run(self, data: dict, version: int) -> None:
@@ -110,6 +118,8 @@ class Workbench(Screen[None]):
         self.pending = False
         self.solves += 1
         self.finished += 1
+        self.solved = self._solving
+        self.solve_finished.set()
         results = self.query_one(ResultsView)
         results.show(analysis)  # type: ignore[arg-type]
         self.query_one(ModePlot).show(_plot_data(analysis))
@@ -120,6 +130,8 @@ class Workbench(Screen[None]):
             return
         self.pending = False
         self.finished += 1
+        self.solved = self._solving
+        self.solve_finished.set()
         results = self.query_one(ResultsView)
         results.mark("stale" if results.analysis is not None else "failed", exc.message)
         self.query_one(WorksheetForm).show_error(exc)

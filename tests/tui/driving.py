@@ -1,0 +1,124 @@
+"""Driving the app headless as a user would, and waiting for what it does, not for time.
+
+Fields are clicked and typed into key by key; buttons are clicked. A test waits for the thing
+it needs: the workbench's results for exactly what the document now holds (the workbench sets
+an event each time a solve of its latest inputs finishes), a screen on top of the stack (the
+app's screen-change signal), the app's workers. ``pilot.pause()`` without a delay is used only
+to flush the message queues. ``TIMEOUT`` turns a hang into a failure; it never paces a test.
+"""
+
+from __future__ import annotations
+
+import asyncio
+import functools
+from collections.abc import Callable, Coroutine
+from typing import Any, TypeVar
+
+from textual.pilot import Pilot
+from textual.screen import Screen
+from textual.widget import Widget
+from textual.widgets import Input
+
+from beamtone.tui.app import BeamtoneApp
+from beamtone.tui.widgets.results import ResultsView
+
+__all__ = ["TIMEOUT", "click", "field_of", "on_top", "settled", "sync", "type_into", "work_done"]
+
+TIMEOUT = 120.0  # seconds before a wait counts as a hang (a loaded 2-core machine is slow)
+
+S = TypeVar("S", bound=Screen)
+
+
+def sync(test: Callable[..., Coroutine[Any, Any, None]]) -> Callable[..., None]:
+    """Run an async test on its own event loop (no pytest plugin needed)."""
+
+    @functools.wraps(test)
+    def wrapper(*args: Any, **kwargs: Any) -> None:
+        asyncio.run(test(*args, **kwargs))
+
+    return wrapper
+
+
+async def settled(
+    pilot: Pilot, app: BeamtoneApp, until: Callable[[], bool] = lambda: True
+) -> ResultsView:
+    """Wait until the workbench shows what it solved from exactly the document's contents.
+
+    ``until`` is a further condition (say, that typed text has reached the document); it is
+    checked again after each finished solve, because every change of the document ends in a
+    solve. Raises AssertionError after ``TIMEOUT`` seconds (the app did not settle).
+    """
+    bench = app.workbench
+
+    async def current() -> None:
+        while True:
+            await pilot.pause()  # flush: edits in flight reach the document and the workbench
+            if until() and not bench.pending and bench.solved == app.document.plain():
+                return
+            bench.solve_finished.clear()
+            await bench.solve_finished.wait()
+
+    try:
+        await asyncio.wait_for(current(), TIMEOUT)
+    except TimeoutError:
+        raise AssertionError(
+            f"the app did not settle: pending={bench.pending}, solved the document's current "
+            f"contents: {bench.solved == app.document.plain()}, condition met: {until()}"
+        ) from None
+    return bench.query_one(ResultsView)
+
+
+async def on_top(pilot: Pilot, app: BeamtoneApp, kind: type[S]) -> S:
+    """Wait until a screen of ``kind`` is the app's current screen; return it."""
+    if not isinstance(app.screen, kind):
+        arrived = asyncio.Event()
+
+        def changed(screen: Screen) -> None:
+            if isinstance(screen, kind):
+                arrived.set()
+
+        app.screen_change_signal.subscribe(app, changed, immediate=True)
+        try:
+            if not isinstance(app.screen, kind):
+                await asyncio.wait_for(arrived.wait(), TIMEOUT)
+        except TimeoutError:
+            raise AssertionError(
+                f"{kind.__name__} never came up; {app.screen!r} is on top"
+            ) from None
+        finally:
+            app.screen_change_signal.unsubscribe(app)
+    await pilot.pause()  # flush: the screen's widgets are mounted
+    screen = app.screen
+    assert isinstance(screen, kind)
+    return screen
+
+
+async def click(pilot: Pilot, widget: Widget) -> None:
+    """Scroll ``widget`` into view and click it with the mouse."""
+    widget.scroll_visible(animate=False)
+    await pilot.pause()  # flush: the scroll lands before the click
+    assert await pilot.click(widget), f"{widget!r} was not under the pointer"
+
+
+async def type_into(pilot: Pilot, field: Input, text: str) -> None:
+    """Click ``field``, clear it and type ``text`` key by key."""
+    await click(pilot, field)
+    assert field.has_focus, f"{field!r} did not take the focus"
+    await pilot.press("end", "ctrl+u", *text)
+    await pilot.pause()  # flush
+    assert field.value == text, (field.value, text)
+
+
+def field_of(app: BeamtoneApp, key: str) -> Input:
+    """The workbench's input for a worksheet key path (``member.length``)."""
+    for widget in app.workbench.query(".quantity, .text"):
+        if getattr(widget, "key", None) == key:
+            return widget.query_one(Input)
+    raise LookupError(f"no field for {key}")
+
+
+async def work_done(pilot: Pilot, app: BeamtoneApp) -> None:
+    """Let a click's messages arrive, then wait for every worker it started to finish."""
+    await pilot.pause()  # flush: the handler has started its worker
+    await asyncio.wait_for(app.workers.wait_for_complete(), TIMEOUT)
+    await pilot.pause()  # flush: what the worker handed back to the app is shown
