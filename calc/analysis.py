@@ -11,6 +11,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from beamtone.calc import excitation, fe, handbook, rayleigh, response, similitude
+from beamtone.calc.directions import Directions, solve_directions
 from beamtone.calc.worksheet import Worksheet
 
 __all__ = ["Analysis", "analyse"]
@@ -37,6 +38,9 @@ class Analysis:
         ``[[excitation]]`` tables).
     response : response.ForcedResponse or None
         The forced response, where ``response.damping_ratio`` and excitations are given.
+    directions : directions.Directions or None
+        Every direction (both bending planes, torsion, axial) with ``modes`` modes each; the
+        depth plane's is ``modes`` itself.
     """
 
     sheet: Worksheet
@@ -50,6 +54,7 @@ class Analysis:
     groups: similitude.MemberGroups
     margins: excitation.MarginTable | None = None
     response: response.ForcedResponse | None = None
+    directions: Directions | None = None
 
     @property
     def warnings(self) -> tuple[str, ...]:
@@ -63,10 +68,18 @@ class Analysis:
             )
         if not self.bracket.inside:
             out.insert(0, self.bracket.message)
+        if self.directions is not None:
+            out += self.directions.warnings
         return tuple(out)
 
 
-def analyse(sheet: Worksheet, modes: int | None = None, elements: int | None = None) -> Analysis:
+def analyse(
+    sheet: Worksheet,
+    modes: int | None = None,
+    elements: int | None = None,
+    *,
+    every_direction: bool = True,
+) -> Analysis:
     """Solve a worksheet by every method.
 
     Parameters
@@ -76,6 +89,9 @@ def analyse(sheet: Worksheet, modes: int | None = None, elements: int | None = N
         Overrides the worksheet's ``check.modes``.
     elements : int, optional
         Forces the finite-element mesh (see :func:`calc.fe.solve`).
+    every_direction : bool
+        Solve the width plane, torsion and axial motion too (``directions``); False gives
+        the depth plane alone (excitation margins then name what they do not cover).
 
     Returns
     -------
@@ -89,6 +105,12 @@ def analyse(sheet: Worksheet, modes: int | None = None, elements: int | None = N
     member = sheet.member
     count = modes or sheet.modes
     result = fe.solve(member, count, elements=elements)
+    check = handbook.check(member, count)
+    directions = (
+        solve_directions(member, count, depth=result, depth_handbook=check, elements=elements)
+        if every_direction
+        else None
+    )
     settings = sheet.estimate
     if settings.shape == "static":
         estimate = rayleigh.rayleigh_static(member)
@@ -102,14 +124,15 @@ def analyse(sheet: Worksheet, modes: int | None = None, elements: int | None = N
     return Analysis(
         sheet=sheet,
         modes=result,
-        handbook=handbook.check(member, count),
+        handbook=check,
         estimate=estimate,
         ritz=ritz,
         lower_bound=lower,
         bracket=rayleigh.bracket(lower, result, estimate),
         equivalent=rayleigh.equivalent_system(member, result, settings.reference),
         groups=similitude.member_groups(member, [m.omega for m in result.modes]),
-        margins=excitation.check_member(sheet.excitations, result),
+        margins=excitation.check_member(sheet.excitations, result, directions),
+        directions=directions,
         response=None
         if sheet.damping_ratio is None or not sheet.excitations
         else response.forced_response(member, result, sheet.excitations, sheet.damping_ratio),

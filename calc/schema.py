@@ -44,6 +44,7 @@ from beamtone.calc.units import (
     ROTATIONAL_STIFFNESS,
     SECOND_MOMENT,
     STIFFNESS,
+    WARPING_CONSTANT,
     Dimension,
     parse_quantity,
 )
@@ -194,14 +195,24 @@ SECTION_SHAPES: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "round-tube": (("outside_diameter", "wall"), ()),
     "box": (("width", "depth", "wall"), ()),
     "i-beam": (("width", "depth", "flange", "web"), ()),
-    "properties": (("area", "second_moment"), ("depth",)),
+    "properties": (
+        ("area", "second_moment"),
+        (
+            "depth",
+            "width",
+            "second_moment_width",
+            "torsion_constant",
+            "warping_constant",
+            "polar_moment",
+        ),
+    ),  # fmt: skip
 }
 """Each section shape's (required, optional) dimension keys; :mod:`calc.sections` builds them."""
 
 # name -> (dimension, label, help)
 _SECTION_FIELDS: dict[str, tuple[Dimension, str, str]] = {
-    "width": (LENGTH, "width", "overall width, across the plane of vibration"),
-    "depth": (LENGTH, "depth", "overall depth, in the plane of vibration"),
+    "width": (LENGTH, "width", "overall width, in the width plane (across the depth)"),
+    "depth": (LENGTH, "depth", "overall depth, in the depth plane (the first bending plane)"),
     "diameter": (LENGTH, "diameter", "diameter of the solid round bar"),
     "outside_diameter": (LENGTH, "outside dia.", "outside diameter of the tube"),
     "wall": (LENGTH, "wall", "wall thickness"),
@@ -213,7 +224,15 @@ _SECTION_FIELDS: dict[str, tuple[Dimension, str, str]] = {
         "second moment",
         "second moment of area I about the bending axis",
     ),  # fmt: skip
-}
+    "second_moment_width": (SECOND_MOMENT, "2nd moment, width",
+                            "second moment of area for bending in the width plane"),
+    "torsion_constant": (SECOND_MOMENT, "torsion constant",
+                         "Saint-Venant torsion constant J (not the polar moment)"),
+    "warping_constant": (WARPING_CONSTANT, "warping constant",
+                         "warping constant Cw of an open section (0 for solid and closed ones)"),
+    "polar_moment": (SECOND_MOMENT, "polar moment",
+                     "polar second moment Ip about the centroid (rho Ip: torsional inertia)"),
+}  # fmt: skip
 
 
 def section_keys(shape: str) -> tuple[str, ...]:
@@ -238,6 +257,8 @@ def _material(prefix: str) -> list[Entry]:
               required=True, missing="a density", variable=True),
         Entry(f"{prefix}.poisson_ratio", NUMBER, "Poisson's ratio", "Poisson's ratio nu",
               bounds=(-1.0, 0.5)),
+        Entry(f"{prefix}.shear_modulus", QUANTITY, "shear modulus",
+              "shear modulus G for torsion (else E/(2(1 + nu)))", PRESSURE, variable=True),
         Entry(f"{prefix}.name", TEXT, "name", "a name for the material", default="inline"),
     ]  # fmt: skip
 
@@ -248,6 +269,7 @@ def _section(prefix: str) -> list[Entry]:
     optional = {n for _, opt in SECTION_SHAPES.values() for n in opt}
     for name, (dim, label, text) in _SECTION_FIELDS.items():
         out.append(Entry(f"{prefix}.{name}", QUANTITY, label, text, dim,
+                         allow_zero=name == "warping_constant",
                          required=name not in optional, variable=True))  # fmt: skip
     return out
 
@@ -306,6 +328,54 @@ def _excitation_entries() -> list[Entry]:
         Entry("response.damping_ratio", TEXT, "damping ratio",
               'assumed modal damping ratio of every mode, e.g. "2 %" (uncertain)'),
     ]  # fmt: skip
+
+
+def _direction_entries() -> list[Entry]:
+    """Per-direction support overrides, springs and inertias (see :mod:`calc.restraints`)."""
+    from beamtone.calc.restraints import DIRECTION_KINDS
+
+    bending, inner = (
+        DIRECTION_KINDS["width"],
+        tuple(k for k in DIRECTION_KINDS["width"] if k != "free"),
+    )
+    torsion, axial = DIRECTION_KINDS["torsion"], DIRECTION_KINDS["axial"]
+    rows: list[Entry] = []
+    for where, prefix, width_kinds in (
+        ("left end", "supports.left_", bending),
+        ("right end", "supports.right_", bending),
+        ("inner support", "supports.inner[].", inner),
+    ):
+        rows += [
+            Entry(f"{prefix}width", CHOICE, "width plane",
+                  f"what the {where} holds in the width plane (default: its kind)",
+                  choices=width_kinds),
+            Entry(f"{prefix}torsion", CHOICE, "torsion",
+                  f"what the {where} holds in torsion: clamped (twist and warping), fork "
+                  "(twist), free", choices=torsion),
+            Entry(f"{prefix}axial", CHOICE, "axial",
+                  f"whether the {where} holds the member axially", choices=axial),
+        ]  # fmt: skip
+    rows += [
+        Entry("mass[].rotary_inertia_width", QUANTITY, "rot. inertia, width",
+              "rotary inertia for bending in the width plane (default: rotary_inertia)",
+              ROTARY_INERTIA, allow_zero=True, variable=True),
+        Entry("mass[].polar_inertia", QUANTITY, "polar inertia",
+              "moment of inertia about the member's axis (torsion)", ROTARY_INERTIA,
+              allow_zero=True, default="0 kg*m^2", variable=True),
+        Entry("spring[].stiffness_width", QUANTITY, "stiffness, width",
+              "translational stiffness in the width plane (default: stiffness)", STIFFNESS,
+              allow_zero=True, variable=True),
+        Entry("spring[].rotational_stiffness_width", QUANTITY, "rot. stiffness, width",
+              "rotational stiffness in the width plane (default: rotational_stiffness)",
+              ROTATIONAL_STIFFNESS, allow_zero=True, variable=True),
+        Entry("spring[].torsional_stiffness", QUANTITY, "torsional stiffness",
+              "stiffness against twist about the member's axis", ROTATIONAL_STIFFNESS,
+              allow_zero=True, default="0 N*m/rad", variable=True),
+        Entry("spring[].axial_stiffness", QUANTITY, "axial stiffness",
+              "stiffness along the member's axis", STIFFNESS, allow_zero=True,
+              default="0 N/m", variable=True),
+    ]  # fmt: skip
+    return rows
 
 
 @cache
@@ -373,6 +443,7 @@ def _entries() -> dict[str, Entry]:
               minimum=False, position=True),
         *_excitation_entries(),
         Entry("record", TABLE, "record", "the record beamtone solve --record writes"),
+        *_direction_entries(),
     ]  # fmt: skip
     return {e.pattern: e for e in rows}
 

@@ -33,6 +33,7 @@ from beamtone.calc.model import (
     Segment,
     Spring,
 )
+from beamtone.calc.restraints import OVERRIDES
 from beamtone.calc.sections import Section, build_section
 
 __all__ = [
@@ -288,7 +289,9 @@ def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Workshe
     estimate = _estimate(data.get("estimate", {}))
     # The stored results of beamtone solve --record; calc.record reads and checks them.
     _table(data.get("record", {}), "record", "the record beamtone solve --record writes")
-    member = Member(segments, left, right, masses, springs, inner, axial)
+    member = Member(segments, left, right, masses, springs, inner, axial,
+                    _overrides(supports, "supports", "left_"),
+                    _overrides(supports, "supports", "right_"))  # fmt: skip
     excitations = _excitations(data.get("excitation", []), member.length)
     damping = _response(data.get("response", {}))
     return Worksheet(title, notes, member, modes, estimate, source, data, excitations, damping)
@@ -384,7 +387,10 @@ def _material(value: object, key: str) -> Material:
     ):
         raise InputError(f"{key}.poisson_ratio", nu, f"a number between {low:g} and {high:g}")
     name = _string(table.get("name", "inline"), f"{key}.name", "a text name")
-    return Material(name, E, rho, None if nu is None else float(nu))
+    G = None
+    if "shear_modulus" in table:
+        G = _quantity(table, "shear_modulus", key, required=False)
+    return Material(name, E, rho, None if nu is None else float(nu), shear_modulus=G)
 
 
 def _section(value: object, key: str) -> Section:
@@ -418,8 +424,19 @@ def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]
         _keys(item, key)
         at = _quantity(item, "at", key)
         kind = _choice(item, "kind", key)
-        inner.append(InnerSupport(at, kind))
+        inner.append(InnerSupport(at, kind, _overrides(item, key, "")))
     return ends[0], ends[1], tuple(inner)
+
+
+def _overrides(table: dict[str, Any], key: str, prefix: str) -> tuple[tuple[str, str], ...]:
+    """The directions a support sets for itself (``left_torsion = "free"``, or ``torsion`` in
+    an inner support), each one of its schema entry's choices."""
+    out = []
+    for direction in OVERRIDES:
+        name = f"{prefix}{direction}"
+        if name in table:
+            out.append((direction, _choice(table, name, key)))
+    return tuple(out)
 
 
 def _mass(table: dict[str, Any], key: str) -> PointMass:
@@ -429,15 +446,28 @@ def _mass(table: dict[str, Any], key: str) -> PointMass:
     inertia = 0.0
     if "rotary_inertia" in table:
         inertia = _quantity(table, "rotary_inertia", key, required=False)
-    return point_mass(at, mass, inertia, key, table["mass"])
+    more = {n: _quantity(table, n, key, required=False) for n in _MASS_MORE if n in table}
+    return point_mass(at, mass, inertia, key, table["mass"], **more)
 
 
-def point_mass(at: float, mass: float, inertia: float, key: str, written: object) -> PointMass:
+_MASS_MORE = ("rotary_inertia_width", "polar_inertia")
+_SPRING_MORE = (
+    "stiffness_width",
+    "rotational_stiffness_width",
+    "torsional_stiffness",
+    "axial_stiffness",
+)
+
+
+def point_mass(
+    at: float, mass: float, inertia: float, key: str, written: object, **more: float
+) -> PointMass:
     """A point mass [m, kg, kg*m^2] that carries something: InputError keyed ``key.mass``
-    (showing ``written``) where both the mass and the rotary inertia are zero."""
-    if mass == 0.0 and inertia == 0.0:
+    (showing ``written``) where the mass and every inertia are zero.  ``more`` are the
+    width-plane and polar inertias [kg*m^2] (``rotary_inertia_width``, ``polar_inertia``)."""
+    if mass == 0.0 and inertia == 0.0 and not any(more.values()):
         raise InputError(f"{key}.mass", written, "a positive mass or rotary inertia")
-    return PointMass(at, mass, inertia)
+    return PointMass(at, mass, inertia, **more)
 
 
 def _spring(table: dict[str, Any], key: str) -> Spring:
@@ -448,19 +478,22 @@ def _spring(table: dict[str, Any], key: str) -> Spring:
         k = _quantity(table, "stiffness", key, required=False)
     if "rotational_stiffness" in table:
         kr = _quantity(table, "rotational_stiffness", key, required=False)
-    return spring(at, k, kr, key, table.get("stiffness"))
+    more = {n: _quantity(table, n, key, required=False) for n in _SPRING_MORE if n in table}
+    return spring(at, k, kr, key, table.get("stiffness"), **more)
 
 
-def spring(at: float, k: float, kr: float, key: str, written: object) -> Spring:
+def spring(at: float, k: float, kr: float, key: str, written: object, **more: float) -> Spring:
     """A spring [m, N/m, N*m/rad] that holds something: InputError keyed ``key.stiffness``
-    (showing ``written``) where both stiffnesses are zero."""
-    if k == 0.0 and kr == 0.0:
+    (showing ``written``) where every stiffness is zero.  ``more`` are the width-plane,
+    torsional and axial stiffnesses (``stiffness_width``, ``rotational_stiffness_width``,
+    ``torsional_stiffness`` [N*m/rad], ``axial_stiffness`` [N/m])."""
+    if k == 0.0 and kr == 0.0 and not any(more.values()):
         raise InputError(
             f"{key}.stiffness",
             written,
-            "a positive stiffness or rotational_stiffness",
+            "a positive stiffness, rotational, torsional or axial stiffness",
         )
-    return Spring(at, k, kr)
+    return Spring(at, k, kr, **more)
 
 
 def _excitations(value: object, length: float) -> tuple[Excitation, ...]:

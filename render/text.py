@@ -8,6 +8,14 @@ import textwrap
 from typing import TYPE_CHECKING, Any
 
 from beamtone.calc.caution import CAUTION
+from beamtone.render.directions import (
+    all_modes_json,
+    assumption_lines,
+    depth_heading,
+    direction_lines,
+    directions_json,
+    governing_lines,
+)
 from beamtone.render.groups import member_groups_json
 from beamtone.render.margins import (
     margin_lines,
@@ -46,6 +54,9 @@ def solve_text(analysis: Analysis) -> str:
     sheet, result, check = analysis.sheet, analysis.modes, analysis.handbook
     member = sheet.member
     lines = [f"beamtone solve: {sheet.title}" if sheet.title else "beamtone solve", ""]
+    directions = analysis.directions
+    if directions is not None:
+        lines += governing_lines(directions)
     n_seg = len(member.segments)
     attached = sum(p.mass for p in member.masses)
     mass_note = f", {_fmt(attached, 4)} kg attached" if member.masses else ""
@@ -72,6 +83,8 @@ def solve_text(analysis: Analysis) -> str:
         + (" (not listed; modes start at the first flexible one)" if rigid else "")
     )
     lines.append("")
+    if directions is not None:
+        lines.append(depth_heading(directions))
 
     header = ["mode", "f [Hz]", "omega [rad/s]", "est. error", "eff. mass", "cumul."]
     if check is not None:
@@ -106,6 +119,10 @@ def solve_text(analysis: Analysis) -> str:
     lines.append("            modes normalized to unit modal mass; effective mass in the plane")
     lines.append("")
     lines += _estimate_lines(analysis)
+    if directions is not None:
+        lines.append("")
+        lines += direction_lines(directions)
+        lines += assumption_lines(directions)
     if analysis.margins is not None:
         lines.append("")
         lines += margin_lines(analysis.margins, analysis.sheet.excitations)
@@ -231,6 +248,23 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
         },
         "caution": CAUTION,
         **_excitation_json(analysis),
+        **_directions_json(analysis),
+    }
+
+
+def _directions_json(analysis: Analysis) -> dict[str, Any]:
+    """``all_modes``, ``directions`` and ``governing`` (every direction of the member)."""
+    directions = analysis.directions
+    if directions is None:
+        return {}
+    gov = directions.governing
+    return {
+        "all_modes": all_modes_json(directions),
+        "directions": directions_json(directions),
+        "governing": None
+        if gov is None
+        else {"direction": gov.direction, "number": gov.number, "frequency_hz": gov.frequency_hz},
+        "assumptions": list(directions.notes),
     }
 
 
