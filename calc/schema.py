@@ -17,8 +17,8 @@ Examples
 >>> e = schema.entry("member.segment[2].section.wall")
 >>> e.kind, e.dimension.si_unit, e.label
 ('quantity', 'm', 'wall')
->>> schema.children("supports.inner[]")
-('at', 'kind')
+>>> schema.entry("mass[0].at").position, "at" in schema.children("mass[]")
+(True, True)
 """
 
 from __future__ import annotations
