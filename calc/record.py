@@ -21,7 +21,10 @@ Tolerances of the comparison (relative unless stated):
 - the equivalent single-DOF model: 1e-3 on mass and stiffness and 1e-3 of the length on its
   point (it comes from a mode shape at one point, which converges more slowly than the
   frequency);
-- counts, flags (rigid-body modes, bracket inside, inside-band flags): exactly.
+- counts, flags (rigid-body modes, bracket inside, inside-band flags): exactly;
+- the width plane's, torsion's and axial frequencies as the natural frequencies, and the
+  governing direction exactly; a record written before they were stored is not compared on
+  them.
 """
 
 from __future__ import annotations
@@ -131,6 +134,10 @@ class StoredResults:
     margins : StoredMargins or None
         The excitation check, where one was recorded.  Sizing margins go here: the
         worksheet holds no excitation yet, so ``solve --record`` stores none.
+    governing : str or None
+        The direction of the governing mode (the lowest of every direction).
+    width_hz, torsion_hz, axial_hz : tuple of float or None
+        Natural frequencies of the width plane, torsion and axial motion [Hz], where computed.
     """
 
     rigid_body_modes: int
@@ -143,6 +150,10 @@ class StoredResults:
     ritz_hz: tuple[float, ...] | None
     equivalent: tuple[float, float, float]
     margins: StoredMargins | None = None
+    governing: str | None = None
+    width_hz: tuple[float, ...] | None = None
+    torsion_hz: tuple[float, ...] | None = None
+    axial_hz: tuple[float, ...] | None = None
 
 
 # --- the table of stored results -----------------------------------------------------------------
@@ -171,6 +182,8 @@ class _Stored:
     per_mode : one value per mode; lists of this kind are verified side by side, mode by mode,
         and must hold ``modes`` values.
     many : the per-mode values in words, plural (for the message on a short list).
+    new : added after the first records were written; a record without it is not compared
+        on it (it keeps verifying), one with it is.
     """
 
     name: str
@@ -183,6 +196,7 @@ class _Stored:
     optional: bool = False
     per_mode: bool = False
     many: str = ""
+    new: bool = False
 
     @property
     def parent(self) -> str:
@@ -204,6 +218,22 @@ def _frequency_tolerance(analysis: Analysis, i: int) -> float:
 
 def _floats(values: Any) -> tuple[float, ...]:
     return tuple(float(v) for v in values)
+
+
+def _direction_hz(analysis: Analysis, name: str) -> tuple[float, ...] | None:
+    """Frequencies of one direction [Hz]; None where it was not computed."""
+    if analysis.directions is None or not analysis.directions[name].modes:
+        return None
+    return _floats(m.frequency_hz for m in analysis.directions[name].modes)
+
+
+def _direction_tolerance(analysis: Analysis, name: str, i: int) -> float:
+    if analysis.directions is None:
+        return FREQUENCY_TOLERANCE
+    modes = analysis.directions[name].modes
+    if i >= len(modes):
+        return FREQUENCY_TOLERANCE
+    return max(FREQUENCY_TOLERANCE, 2.0 * modes[i].estimated_error)
 
 
 _RESULTS = (
@@ -254,6 +284,19 @@ _RESULTS = (
         lambda a: float(a.equivalent.stiffness_n_per_m), lambda a, i: EQUIVALENT_TOLERANCE,
     ),
     _Stored("margins", "", "", "margins", "margins", None, optional=True),
+    _Stored(
+        "governing", "governing direction", "", "text", "exact",
+        lambda a: None if a.directions is None or a.directions.governing is None
+        else a.directions.governing.direction, optional=True, new=True,
+    ),
+    *(
+        _Stored(
+            f"{name}_hz", f"{name} mode {{n}}", "Hz", "numbers", "relative",
+            lambda a, name=name: _direction_hz(a, name),
+            lambda a, i, name=name: _direction_tolerance(a, name, i), optional=True, new=True,
+        )
+        for name in ("width", "torsion", "axial")
+    ),
 )  # fmt: skip
 
 
@@ -685,7 +728,7 @@ _READ: dict[str, Callable[[Mapping[str, Any], str, str, bool, int], Any]] = {
     "count": lambda t, n, k, optional, modes: _integer(t, n, k, 0, 2),  # rigid-body modes
     "number": lambda t, n, k, optional, modes: _number(t, n, k, optional=optional),
     "numbers": lambda t, n, k, optional, modes: _numbers(t, n, k, optional=optional),
-    "text": lambda t, n, k, optional, modes: _text(t, n, k),
+    "text": lambda t, n, k, optional, modes: None if optional and n not in t else _text(t, n, k),
     "flag": lambda t, n, k, optional, modes: _flag(t, n, k),
     "margins": lambda t, n, k, optional, modes: _margins(t[n], modes) if n in t else None,
 }
@@ -931,9 +974,14 @@ def compare(record: Record, analysis: Analysis) -> tuple[Comparison, ...]:
     res = record.results
     out: list[Comparison] = []
     for group in _groups(_RESULTS):
+        if all(e.new and _stored_value(res, e) is None for e in group):
+            continue  # a record written before this result was stored
         if group[0].kind == "numbers":
             stored = [_stored_value(res, e) or () for e in group]
             now = [(e.now(analysis) if e.now else None) or () for e in group]
+            if all(e.new for e in group):  # N per direction: compared on the record's N
+                stored = [v[: record.modes] for v in stored]
+                now = [v[: record.modes] for v in now]
             for i in range(max(len(v) for v in (*stored, *now))):
                 for e, s, n in zip(group, stored, now, strict=True):
                     s_i = s[i] if i < len(s) else None

@@ -17,6 +17,7 @@ import re
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
+from beamtone.calc import directions_report
 from beamtone.calc.caution import CAUTION
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -347,7 +348,7 @@ def build(
         Section("Member: derived properties", _derived(analysis)),
         Section("Assumptions", _assumptions(analysis)),
         Section("Methods and formulas", _methods(analysis)),
-        Section("Results", _results(analysis)),
+        Section("Results", (*_results(analysis), *directions_report.blocks(analysis))),
         Section("Cross-checks", _checks(analysis, verification)),
         Section("Dimensional groups", _groups(analysis)),
         Section("Excitation margins", _margins(margins)),
@@ -570,7 +571,7 @@ def _derived(analysis: Analysis) -> tuple[Block, ...]:
 def _assumptions(analysis: Analysis) -> tuple[Block, ...]:
     member = analysis.sheet.member
     items = [
-        "Euler-Bernoulli bending in one plane: plane sections stay plane and normal to the "
+        "Euler-Bernoulli bending in each plane: plane sections stay plane and normal to the "
         "axis; shear deformation and the rotary inertia of the section are neglected.",
         "Linear: small deflections, linear-elastic, isotropic and homogeneous material with "
         "the properties listed.",
@@ -585,6 +586,7 @@ def _assumptions(analysis: Analysis) -> tuple[Block, ...]:
             "vibration (geometric stiffness)."
         )
     items.append(_DEPTH_PRACTICE + "; where a mode breaks this, the warnings say so.")
+    items += directions_report.assumptions(analysis)
     return (Bullets(tuple(items)),)
 
 
