@@ -8,9 +8,10 @@ equivalent single-degree-of-freedom model.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from beamtone.calc import excitation, fe, handbook, rayleigh, response, similitude
+from beamtone.calc.band import BandResult, tightening
 from beamtone.calc.directions import Directions, solve_directions
 from beamtone.calc.worksheet import Worksheet
 
@@ -41,6 +42,9 @@ class Analysis:
     directions : directions.Directions or None
         Every direction (both bending planes, torsion, axial) with ``modes`` modes each; the
         depth plane's is ``modes`` itself.
+    bands : band.BandResult or None
+        Each mode's band over the worksheet's tolerances, with ranked sensitivities (None
+        without tolerances); the margins' verdict holds over the bands.
     """
 
     sheet: Worksheet
@@ -55,6 +59,7 @@ class Analysis:
     margins: excitation.MarginTable | None = None
     response: response.ForcedResponse | None = None
     directions: Directions | None = None
+    bands: BandResult | None = None
 
     @property
     def warnings(self) -> tuple[str, ...]:
@@ -121,6 +126,10 @@ def analyse(
         shapes = settings.shapes if isinstance(settings.shapes, int) else list(settings.shapes)
         ritz = rayleigh.ritz(member, shapes)
     lower = rayleigh.dunkerley(member)
+    bands = _bands(sheet, result, directions)
+    margins = excitation.check_member(sheet.excitations, result, directions, bands)
+    if bands is not None and margins is not None:
+        bands = replace(bands, tighten=tightening(bands, margins))
     return Analysis(
         sheet=sheet,
         modes=result,
@@ -131,9 +140,23 @@ def analyse(
         bracket=rayleigh.bracket(lower, result, estimate),
         equivalent=rayleigh.equivalent_system(member, result, settings.reference),
         groups=similitude.member_groups(member, [m.omega for m in result.modes]),
-        margins=excitation.check_member(sheet.excitations, result, directions),
+        margins=margins,
         directions=directions,
+        bands=bands,
         response=None
         if sheet.damping_ratio is None or not sheet.excitations
         else response.forced_response(member, result, sheet.excitations, sheet.damping_ratio),
     )
+
+
+def _bands(
+    sheet: Worksheet, result: fe.FEResult, directions: Directions | None
+) -> BandResult | None:
+    """Bands over the worksheet's tolerances (calc.band), every computed direction."""
+    if not sheet.tolerances:
+        return None
+    from beamtone.calc.band import band, same_as_bands
+    from beamtone.calc.tolerances import Design
+
+    found = band(Design.of(sheet), result, sheet.tolerances, directions=directions)
+    return same_as_bands(found, directions)

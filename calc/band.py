@@ -22,11 +22,12 @@ from __future__ import annotations
 import itertools
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
 from beamtone.calc import fe
+from beamtone.calc.directions import Direction, Directions
 from beamtone.calc.fe import FEResult
 from beamtone.calc.sensitivity import Sensitivities, sensitivities
 from beamtone.calc.tolerances import Design, Tolerance, vary_within
@@ -40,6 +41,8 @@ __all__ = [
     "ModeBand",
     "BandResult",
     "band",
+    "same_as_bands",
+    "tightening",
     "corner_values",
     "latin_hypercube",
 ]
@@ -65,8 +68,9 @@ class InputEffect:
         Percent change of the frequency per percent of the input [-]; None where the
         input's nominal value is zero.
     contribution_hz : float
-        First-order change of the frequency as the input goes from its low to its high
-        value [Hz] (negative: raising the input lowers the frequency).
+        Change of the frequency as the input goes from its low to its high value [Hz]
+        (negative: raising the input lowers the frequency): first order where the band is
+        first order, else from the least-squares plane through the check solves.
     """
 
     key: str
@@ -97,6 +101,8 @@ class ModeBand:
         The band's own tolerance [Hz].
     effects : tuple of InputEffect
         Every input, largest absolute contribution first.
+    direction : str
+        ``"depth"``, ``"width"``, ``"torsion"`` or ``"axial"``.
     """
 
     number: int
@@ -108,6 +114,7 @@ class ModeBand:
     checked: tuple[float, float] | None
     tolerance_hz: float
     effects: tuple[InputEffect, ...]
+    direction: str = "depth"
 
     def as_dict(self) -> dict[str, object]:
         """The JSON shape: ``band: {low_hz, high_hz, method}``, ``sensitivities: [...]``."""
@@ -127,12 +134,16 @@ class BandResult:
     Attributes
     ----------
     modes : tuple of ModeBand
+        Depth-plane modes first, then every other computed direction's.
     tolerances : tuple of Tolerance
     sensitivities : Sensitivities
     solves : int
         Full finite-element solves made by the check (0 when not checked).
     notes : tuple of str
         What the user should know about these bands.
+    tighten : tuple of str
+        Where a band reaches an excitation band that the nominal mode clears: the tolerance
+        to tighten first (:func:`tightening`).
     """
 
     modes: tuple[ModeBand, ...]
@@ -140,6 +151,7 @@ class BandResult:
     sensitivities: Sensitivities
     solves: int
     notes: tuple[str, ...]
+    tighten: tuple[str, ...] = ()
 
 
 def corner_values(tolerances: Sequence[Tolerance]) -> np.ndarray:
@@ -168,17 +180,68 @@ def latin_hypercube(tolerances: Sequence[Tolerance], samples: int, seed: int = _
 
 
 def _solve_points(
-    design: Design, tolerances: Sequence[Tolerance], points: np.ndarray, modes: int
-) -> tuple[np.ndarray, float]:
-    """Frequencies [Hz] at each point (rows), and the largest relative error estimate."""
-    out = np.empty((len(points), modes))
+    design: Design,
+    tolerances: Sequence[Tolerance],
+    points: np.ndarray,
+    modes: int,
+    directions: tuple[str, ...],
+) -> tuple[dict[str, np.ndarray], float]:
+    """Frequencies [Hz] of each direction at each point (rows), and the largest relative
+    error estimate of those solves."""
+    out = {d: np.full((len(points), modes), np.nan) for d in directions}
     worst = 0.0
     for i, point in enumerate(points):
         member = vary_within(design, tolerances, point)
-        res = fe.solve(member, modes)
-        out[i] = res.frequencies_hz
-        worst = max(worst, max(m.estimated_error for m in res.modes))
+        if directions == ("depth",):
+            res = fe.solve(member, modes)
+            found = {"depth": [(m.frequency_hz, m.estimated_error) for m in res.modes]}
+        else:
+            from beamtone.calc.directions import solve_directions
+
+            solved = solve_directions(member, modes)
+            found = {
+                d.name: [(m.frequency_hz, m.estimated_error) for m in d.modes]
+                for d in solved.directions
+            }
+        for d in directions:
+            values = found.get(d, [])[:modes]
+            out[d][i, : len(values)] = [f for f, _ in values]
+            worst = max([worst, *(e for _, e in values)])
     return out, worst
+
+
+def _effects(
+    tolerances: Sequence[Tolerance], f0: float, contribution: np.ndarray, elasticity: np.ndarray
+) -> tuple[InputEffect, ...]:
+    effects = (
+        InputEffect(
+            key=t.key,
+            elasticity=None if not math.isfinite(elasticity[j]) else float(elasticity[j]),
+            # below 1e-9 of the frequency: the round-off of a plane through the solves
+            contribution_hz=float(contribution[j]) if abs(contribution[j]) > 1e-9 * f0 else 0.0,
+        )
+        for j, t in enumerate(tolerances)
+    )
+    return tuple(sorted(effects, key=lambda e: -abs(e.contribution_hz)))
+
+
+def _main_effects(
+    tolerances: Sequence[Tolerance], points: np.ndarray, freqs: np.ndarray
+) -> np.ndarray:
+    """Change of each mode across each input's range from the check solves, shape
+    (modes, inputs): the least-squares plane through the solves (for the full set of
+    corners, the factorial main effects)."""
+    low = np.array([t.low for t in tolerances])
+    width = np.array([t.high - t.low for t in tolerances])
+    u = (points - low) / np.where(width > 0, width, 1.0)
+    A = np.column_stack([np.ones(len(points)), u])
+    out = np.full((freqs.shape[1], len(tolerances)), np.nan)
+    for k in range(freqs.shape[1]):
+        ok = np.isfinite(freqs[:, k])
+        if ok.sum() > len(tolerances):
+            coef = np.linalg.lstsq(A[ok], freqs[ok, k], rcond=None)[0]
+            out[k] = coef[1:]
+    return out
 
 
 def band(
@@ -188,22 +251,27 @@ def band(
     *,
     check: bool = True,
     samples: int | None = None,
+    directions: Directions | None = None,
 ) -> BandResult:
-    """Band, elasticities and contributions of every mode of ``result`` over the tolerances.
+    """Band, elasticities and contributions of every mode over the tolerances.
 
     Parameters
     ----------
     design : Design
         The design ``result`` solved.
     result : FEResult
-        Its nominal solution.
+        Its nominal depth-plane solution.
     tolerances : sequence of Tolerance
     check : bool
-        Check the first-order band by full solves (corners, and sampling with more than
-        four inputs).  Without it every band is first order and says so.
+        Check the first-order depth-plane bands by full solves (corners, and sampling with
+        more than four inputs).  Without it those bands are first order and say so.
     samples : int, optional
         Latin-hypercube points of the check with more than four inputs (default 4 per
         input, at least 16).
+    directions : Directions, optional
+        Every direction of the nominal design; their bands come from the same check solves
+        (always made when given), their contributions from the least-squares plane
+        through them.
 
     Returns
     -------
@@ -224,12 +292,14 @@ def band(
     contribution = dfdp * (high - low)
     errors = np.array([m.estimated_error for m in result.modes])
     n_modes = len(result.modes)
+    others = _other_directions(directions)
     notes: list[str] = []
-    checked = None
+    checked: dict[str, np.ndarray] = {}
     solves = 0
     method = CORNERS
     worst_error = float(np.max(errors)) if len(errors) else 0.0
-    if check and tolerances:
+    points = np.empty((0, len(tolerances)))
+    if (check or others) and tolerances:
         if 2 ** len(tolerances) <= MAX_CORNERS:
             points = corner_values(tolerances)
         else:
@@ -242,16 +312,16 @@ def band(
             points = np.unique(
                 np.concatenate([extreme, latin_hypercube(tolerances, count)], axis=0), axis=0
             )
-        freqs, worst = _solve_points(design, tolerances, points, n_modes)
+        names = ("depth", *(d.name for d in others))
+        checked, worst = _solve_points(design, tolerances, points, n_modes, names)
         worst_error = max(worst_error, worst)
         solves = len(points)
-        checked = (np.minimum(freqs.min(axis=0), f0), np.maximum(freqs.max(axis=0), f0))
         notes.append(
             f"bands checked by {solves} full solves ({method}); exact where a mode is monotonic "
             "in each input over its range, an estimate otherwise"
         )
-    else:
-        notes.append("bands are first order only (not checked by full solves)")
+    if not check:
+        notes.append("depth-plane bands are first order only (not checked by full solves)")
     notes.append("the tolerances are the user's; the band covers only the inputs given")
     out = []
     for i in range(n_modes):
@@ -260,22 +330,14 @@ def band(
         lo_hi = fo
         used = FIRST_ORDER
         chk = None
-        if checked is not None:
-            chk = (float(checked[0][i]), float(checked[1][i]))
+        moves = contribution[i]
+        if check and "depth" in checked:
+            col = checked["depth"][:, i]
+            chk = (float(min(col.min(), f0[i])), float(max(col.max(), f0[i])))
             if abs(chk[0] - fo[0]) > tol_hz or abs(chk[1] - fo[1]) > tol_hz:
                 lo_hi = chk
                 used = method
-        effects = sorted(
-            (
-                InputEffect(
-                    key=t.key,
-                    elasticity=None if math.isnan(elast[i, j]) else float(elast[i, j]),
-                    contribution_hz=float(contribution[i, j]),
-                )
-                for j, t in enumerate(tolerances)
-            ),
-            key=lambda e: -abs(e.contribution_hz),
-        )
+                moves = _main_effects(tolerances, points, checked["depth"][:, i : i + 1])[0]
         out.append(
             ModeBand(
                 number=result.modes[i].number,
@@ -286,16 +348,123 @@ def band(
                 first_order=fo,
                 checked=chk,
                 tolerance_hz=tol_hz,
-                effects=tuple(effects),
+                effects=_effects(tolerances, float(f0[i]), moves, elast[i]),
             )
         )
-    replaced = [b.number for b in out if b.method != FIRST_ORDER]
+    for d in others:
+        freqs = checked[d.name]
+        slope = _main_effects(tolerances, points, freqs)
+        for i, m in enumerate(d.modes[:n_modes]):
+            col = freqs[:, i]
+            col = col[np.isfinite(col)]
+            lo = float(min(col.min(), m.frequency_hz)) if len(col) else m.frequency_hz
+            hi = float(max(col.max(), m.frequency_hz)) if len(col) else m.frequency_hz
+            with np.errstate(divide="ignore", invalid="ignore"):
+                el = slope[i] / (high - low) * nominal / m.frequency_hz
+            el[nominal == 0.0] = np.nan
+            out.append(
+                ModeBand(
+                    number=m.number,
+                    frequency_hz=m.frequency_hz,
+                    low_hz=lo,
+                    high_hz=hi,
+                    method=method,
+                    first_order=(math.nan, math.nan),
+                    checked=(lo, hi),
+                    tolerance_hz=2.0 * worst_error * m.frequency_hz,
+                    effects=_effects(tolerances, m.frequency_hz, slope[i], el),
+                    direction=d.name,
+                )
+            )
+    if others:
+        notes.append(
+            "width-plane, torsion and axial bands come from the check solves; their "
+            "contributions from the least-squares plane through them (not first order)"
+        )
+    replaced = [b.number for b in out if b.direction == "depth" and b.method != FIRST_ORDER]
     if replaced:
         notes.insert(
             0,
-            "first order was off by more than the band's tolerance for mode"
+            "first order was off by more than the band's tolerance for depth-plane mode"
             + ("s " if len(replaced) > 1 else " ")
             + ", ".join(map(str, replaced))
             + ": the checked band is reported",
         )
     return BandResult(tuple(out), tolerances, sens, solves, tuple(notes))
+
+
+def _other_directions(directions: Directions | None) -> list[Direction]:
+    """The computed directions other than the depth plane that are not copies of it."""
+    if directions is None:
+        return []
+    return [d for d in directions.directions[1:] if d.computed and not d.same_as and d.modes]
+
+
+def same_as_bands(result: BandResult, directions: Directions | None) -> BandResult:
+    """``result`` with the bands of a direction that repeats another (a round section's two
+    bending planes) copied from that one."""
+    if directions is None:
+        return result
+    extra = []
+    for d in directions.directions[1:]:
+        if d.same_as:
+            extra += [
+                replace(b, direction=d.name) for b in result.modes if b.direction == d.same_as
+            ]
+    return replace(result, modes=(*result.modes, *extra))
+
+
+def tightening(result: BandResult, table: object | None) -> tuple[str, ...]:
+    """For each mode that is clear at its nominal frequency but whose band reaches an
+    excitation band: which tolerance moves it most (the first to tighten), in words.
+
+    Parameters
+    ----------
+    result : BandResult
+    table : excitation.MarginTable or None
+        Margins computed over the bands (see :func:`calc.excitation.check_member`).
+    """
+    if table is None:
+        return ()
+    bands = {(b.direction, b.number): b for b in result.modes}
+    out: list[str] = []
+    seen: set[tuple[str, int]] = set()
+    for row in table.rows:  # type: ignore[attr-defined]
+        b = bands.get((row.direction, row.mode))
+        if row.clear or b is None or (row.direction, row.mode) in seen:
+            continue
+        line = next(
+            (
+                ln
+                for ln in table.lines  # type: ignore[attr-defined]
+                if ln.excitation == row.excitation and ln.order == row.order
+            ),
+            None,
+        )
+        if line is None:
+            continue
+        f = b.frequency_hz
+        if line.order is not None and line.band_low_hz <= f <= line.band_high_hz:
+            continue  # inside at its nominal value: tightening a tolerance does not help
+        if line.order is None and f < line.low_hz:
+            continue
+        seen.add((row.direction, row.mode))
+        toward_up = line.order is not None and line.band_low_hz > f
+        movers = [e for e in b.effects if e.contribution_hz != 0.0]
+        first = movers[0] if movers else None
+        where = (
+            f"{row.direction} mode {row.mode} ({f:.4g} Hz, band {b.low_hz:.4g}-{b.high_hz:.4g} Hz)"
+        )
+        what = f"the {row.excitation} band" + (
+            f" (order {row.order:g})" if row.order is not None else " (lower limit)"
+        )
+        if first is None:
+            out.append(f"{where} reaches {what} within its tolerances")
+            continue
+        side = "up" if toward_up else "down"
+        out.append(
+            f"{where} reaches {what} within its tolerances; tighten {first.key} first "
+            f"(it moves this mode {abs(first.contribution_hz):.3g} Hz across its range; the band "
+            f"reaches {side} toward the line)"
+        )
+    return tuple(out)

@@ -34,7 +34,6 @@ __all__ = ["BatchRow", "BatchResult", "TableRow", "read_table", "solve_files", "
 
 MAX_ROWS = 1_000_000
 _HEADER = re.compile(r"^\s*(?P<key>[^\[\]]+?)\s*(?:\[(?P<unit>[^\[\]]+)\])?\s*$")
-_SUPPORT_STIFFNESS = re.compile(r"^supports\.(left|right|inner\[\d+\])\.(rotational_)?stiffness$")
 _IN_PROCESS = 20  # "auto" runs batches up to this size here
 
 
@@ -162,11 +161,7 @@ def read_table(sheet: Worksheet, text: str) -> list[TableRow]:
                 continue
             shown = f"{cell.strip()} {unit}" if unit else cell.strip()
             where = f"table row {n}: {key}"
-            if _SUPPORT_STIFFNESS.match(key):
-                entry = schema.entry("spring[0].rotational_stiffness" if "rotational" in key
-                                     else "spring[0].stiffness")  # fmt: skip
-            else:
-                entry = schema.entry(key)
+            entry = schema.entry(key)
             values[key] = entry.parse(shown, where)
             written[key] = shown
         rows.append(TableRow(name, values, written))

@@ -5,11 +5,15 @@ finite stiffness for what it holds; the member is then solved with that restrain
 and a grounded spring of that stiffness at the support, which is exact (a grounded spring
 at the support's position is the same boundary term in the energy as an elastic support).
 A rigid compliance (``math.inf``) leaves the support exactly as written, so a rigid limit
-gives today's numbers bit for bit.
+gives today's numbers bit for bit.  The stiffness acts in both bending planes (the width
+plane too, unless the worksheet sets that plane apart); torsion and axial motion keep what
+the support held as written.  An inner support released in both bending directions is
+replaced by its spring alone and no longer holds torsion or axial motion: give a
+``[[spring]]`` with ``torsional_stiffness``/``axial_stiffness`` where it does.
 
-Key paths (the worksheet's names): ``supports.left.stiffness``,
-``supports.left.rotational_stiffness``, ``supports.right.stiffness``,
-``supports.right.rotational_stiffness``, ``supports.inner[i].stiffness``,
+Key paths (the worksheet's names): ``supports.left_stiffness``,
+``supports.left_rotational_stiffness``, ``supports.right_stiffness``,
+``supports.right_rotational_stiffness``, ``supports.inner[i].stiffness``,
 ``supports.inner[i].rotational_stiffness``.
 
 How stiff a real support is stays the user's judgement; beamtone gives no typical values.
@@ -21,7 +25,7 @@ import math
 from dataclasses import dataclass, replace
 
 from beamtone.calc.errors import InputError
-from beamtone.calc.model import HOLDS, InnerSupport, Member, Spring
+from beamtone.calc.model import HOLDS, Member, Spring
 
 __all__ = ["Compliance", "compliant_member", "compliance_key", "support_position"]
 
@@ -53,8 +57,10 @@ class Compliance:
 
 
 def compliance_key(support: str, rotational: bool) -> str:
-    """Key path of a support's stiffness, e.g. ``supports.left.rotational_stiffness``."""
+    """Key path of a support's stiffness, e.g. ``supports.left_rotational_stiffness``."""
     name = "rotational_stiffness" if rotational else "stiffness"
+    if support in ("left", "right"):
+        return f"supports.{support}_{name}"
     return f"supports.{support}.{name}"
 
 
@@ -112,6 +118,9 @@ def compliant_member(member: Member, compliances: tuple[Compliance, ...]) -> Mem
         For a stiffness given for a direction the support does not hold, or a stiffness
         that is not positive, keyed by the compliance's key path.
     """
+    from beamtone.calc.restraints import member_restraints
+
+    original = member_restraints(member)
     left, right = member.left, member.right
     inner = list(member.inner_supports)
     drop: set[int] = set()
@@ -143,7 +152,10 @@ def compliant_member(member: Member, compliances: tuple[Compliance, ...]) -> Mem
         if not (release_w or release_slope):
             continue
         new_kind = _KIND_OF[(holds_w and not release_w, holds_slope and not release_slope)]
-        springs.append(Spring(at, k if release_w else 0.0, kr if release_slope else 0.0))
+        spring = Spring(at, k if release_w else 0.0, kr if release_slope else 0.0)
+        if _restraint(original, c.support).width != kind:  # the width plane was set apart
+            spring = replace(spring, stiffness_width=0.0, rotational_stiffness_width=0.0)
+        springs.append(spring)
         if c.support == "left":
             left = new_kind
         elif c.support == "right":
@@ -154,14 +166,41 @@ def compliant_member(member: Member, compliances: tuple[Compliance, ...]) -> Mem
             if new_kind == "free":
                 drop.add(i)
             else:
-                inner[i] = InnerSupport(inner[i].at, new_kind)
+                inner[i] = replace(inner[i], kind=new_kind)
     if not springs:
         return member
-    kept = tuple(s for i, s in enumerate(inner) if i not in drop)
+    # Torsion and axial motion keep what each support held as written (and the width plane
+    # what it was set to apart from the depth plane).
+    rl, rr, ri = original
+    kept = tuple(
+        replace(s, overrides=_kept(ri[i], s.kind)) for i, s in enumerate(inner) if i not in drop
+    )
     return replace(
         member,
         left=left,
         right=right,
         inner_supports=kept,
         springs=(*member.springs, *springs),
+        left_overrides=_kept(rl, left),
+        right_overrides=_kept(rr, right),
     )
+
+
+def _restraint(original: tuple, support: str):  # noqa: ANN202 - restraints.Restraint
+    left, right, inner = original
+    if support == "left":
+        return left
+    if support == "right":
+        return right
+    i = _inner_index(support)
+    assert i is not None
+    return inner[i]
+
+
+def _kept(restraint, kind: str) -> tuple[tuple[str, str], ...]:  # noqa: ANN001, ARG001
+    """Overrides that keep a support's torsion, axial and set-apart width kinds."""
+    out = []
+    if restraint.width != restraint.depth:  # else the width plane follows the new kind
+        out.append(("width", restraint.width))
+    out += [("torsion", restraint.torsion), ("axial", restraint.axial)]
+    return tuple(out)

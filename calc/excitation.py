@@ -362,12 +362,17 @@ class ModeRef:
         Natural frequency [Hz].
     estimated_error : float
         Its estimated relative error [-].
+    band_low_hz, band_high_hz : float or None
+        Its band over the worksheet's tolerances [Hz] (:mod:`calc.band`), where given: the
+        mode is clear of a line only when the whole band is.
     """
 
     direction: str
     number: int
     frequency_hz: float
     estimated_error: float = 0.0
+    band_low_hz: float | None = None
+    band_high_hz: float | None = None
 
     def __post_init__(self) -> None:
         if self.direction not in DIRECTIONS:
@@ -383,7 +388,10 @@ def mode_refs(result: object, direction: str = "depth") -> tuple[ModeRef, ...]:
 
 
 def check_member(
-    excitations: Sequence[Excitation], result: object, directions: object | None = None
+    excitations: Sequence[Excitation],
+    result: object,
+    directions: object | None = None,
+    bands: object | None = None,
 ) -> MarginTable | None:
     """The margin table of a solved member, every computed direction included.
 
@@ -395,6 +403,8 @@ def check_member(
     directions : directions.Directions, optional
         Every direction, where solved; without it only the depth plane is checked and the
         verdict names the directions it does not cover.
+    bands : band.BandResult, optional
+        The modes' bands over the tolerances: a mode is clear only where its whole band is.
 
     Returns
     -------
@@ -416,6 +426,16 @@ def check_member(
             for d in directions.directions  # type: ignore[attr-defined]
             if not d.computed
         ]
+    if bands is not None:
+        ranges = {
+            (b.direction, b.number): (b.low_hz, b.high_hz)
+            for b in bands.modes  # type: ignore[attr-defined]
+        }
+        modes = tuple(
+            ModeRef(m.direction, m.number, m.frequency_hz, m.estimated_error,
+                    *ranges.get((m.direction, m.number), (None, None)))
+            for m in modes
+        )  # fmt: skip
     return margin_table(excitations, modes, unchecked)
 
 
@@ -552,10 +572,12 @@ def _row(line: Line, mode: ModeRef) -> MarginRow:
         separation = 0.0
         required = max(line.below, line.above)
     err = max(abs(mode.estimated_error), _EDGE)
-    clear = f * (1.0 + err) < line.band_low_hz or f * (1.0 - err) > line.band_high_hz
+    lowest = min(f, mode.band_low_hz if mode.band_low_hz is not None else f) * (1.0 - err)
+    highest = max(f, mode.band_high_hz if mode.band_high_hz is not None else f) * (1.0 + err)
+    clear = highest < line.band_low_hz or lowest > line.band_high_hz
     if line.order is None:  # a lower limit: at or above it is clear
         required = 0.0
-        clear = f * (1.0 - err) >= line.low_hz
+        clear = lowest >= line.low_hz
     return MarginRow(
         line.excitation, line.order, line.low_hz, line.high_hz, mode.number, mode.direction,
         f, separation, required, clear,

@@ -299,6 +299,30 @@ def _segment_like(prefix: str, member: bool, library: tuple[str, ...]) -> list[E
     ]  # fmt: skip
 
 
+def _compliance_entries() -> list[Entry]:
+    """Support stiffnesses and the tolerances table (see :mod:`calc.compliance`,
+    :mod:`calc.tolerances`)."""
+    rows: list[Entry] = []
+    for where, prefix in (
+        ("left end", "supports.left_"),
+        ("right end", "supports.right_"),
+        ("inner support", "supports.inner[]."),
+    ):
+        rows += [
+            Entry(f"{prefix}stiffness", QUANTITY, "stiffness",
+                  f"the {where}'s translational stiffness where it is not rigid; "
+                  '[value, "rigid"] for a range', STIFFNESS, also=(TEXT,)),
+            Entry(f"{prefix}rotational_stiffness", QUANTITY, "rot. stiffness",
+                  f"the {where}'s rotational stiffness where it is not rigid; "
+                  '[value, "rigid"] for a range', ROTATIONAL_STIFFNESS, also=(TEXT,)),
+        ]  # fmt: skip
+    rows.append(
+        Entry("tolerances", TABLE, "tolerances",
+              'toleranced inputs: "key.path" = "5 %", "0.3 mm" or [low, high]')
+    )  # fmt: skip
+    return rows
+
+
 def _excitation_entries() -> list[Entry]:
     """``[[excitation]]`` tables and the ``[response]`` table (see :mod:`calc.excitation`)."""
     from beamtone.calc.excitation import CRITERIA
@@ -442,6 +466,7 @@ def _entries() -> dict[str, Entry]:
               "reference point of the equivalent single-DOF model", LENGTH, allow_zero=True,
               minimum=False, position=True),
         *_excitation_entries(),
+        *_compliance_entries(),
         Entry("record", TABLE, "record", "the record beamtone solve --record writes"),
         *_direction_entries(),
     ]  # fmt: skip

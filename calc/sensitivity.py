@@ -45,7 +45,7 @@ from beamtone.calc.compliance import support_position
 from beamtone.calc.errors import InputError
 from beamtone.calc.fe import FEResult
 from beamtone.calc.model import POSITION_TOLERANCE, Member
-from beamtone.calc.tolerances import COMPLIANCE, Design, Tolerance, vary
+from beamtone.calc.tolerances import COMPLIANCE, Design, Tolerance, support_key, vary
 
 __all__ = [
     "Sensitivities",
@@ -440,8 +440,9 @@ def _derivative(design: Design, tol: Tolerance, nom: _Nominal) -> np.ndarray:
 def _reaction_squared(design: Design, key: str, nom: _Nominal) -> np.ndarray:
     """r^2 / T for the support's held DOF named by ``key`` (d lambda/dc = -r^2 at c = 0)."""
     topo, model, w, theta, lam, T = nom.topo, nom.model, nom.w, nom.theta, nom.lam, nom.T
-    _, support, name = key.split(".")
-    rotational = name == "rotational_stiffness"
+    found = support_key(key)
+    assert found is not None, key
+    support, rotational = found
     at, _ = support_position(design.member, support)
     j = int(np.argmin(np.abs(topo.x - at)))
     dof = 1 if rotational else 0

@@ -20,7 +20,12 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
 from typing import TYPE_CHECKING
 
-from beamtone.calc.compliance import Compliance, compliant_member, support_position
+from beamtone.calc.compliance import (
+    Compliance,
+    compliance_key,
+    compliant_member,
+    support_position,
+)
 from beamtone.calc.errors import InputError
 from beamtone.calc.model import Member
 
@@ -28,6 +33,9 @@ if TYPE_CHECKING:  # the loader reads tolerances, so it is imported only where u
     from beamtone.calc.worksheet import Worksheet
 
 __all__ = [
+    "support_key",
+    "read_compliances",
+    "read_tolerances",
     "Design",
     "Tolerance",
     "vary",
@@ -42,7 +50,9 @@ VALUE = "value"
 COMPLIANCE = "compliance"
 """A tolerance on 1/stiffness of a support (low = 0 is rigid)."""
 
-_SUPPORT = re.compile(r"^supports\.(left|right|inner\[\d+\])\.(stiffness|rotational_stiffness)$")
+_SUPPORT = re.compile(
+    r"^supports\.(?:(left|right)_|(inner\[\d+\])\.)(stiffness|rotational_stiffness)$"
+)
 
 
 @dataclass(frozen=True)
@@ -64,9 +74,9 @@ class Design:
     compliances: tuple[Compliance, ...] = ()
 
     @classmethod
-    def of(cls, sheet: Worksheet, compliances: tuple[Compliance, ...] = ()) -> Design:
-        """The design of a worksheet as written."""
-        return cls(sheet, sheet.member, compliances)
+    def of(cls, sheet: Worksheet) -> Design:
+        """The design of a loaded worksheet: its member as written, its support stiffnesses."""
+        return cls(sheet, sheet.rigid_member or sheet.member, sheet.compliances)
 
     def solved_member(self) -> Member:
         """The member the finite-element solve sees (compliant supports as springs)."""
@@ -121,6 +131,15 @@ class Tolerance:
         return value
 
 
+def support_key(key: str) -> tuple[str, bool] | None:
+    """(support, rotational) of a support stiffness key path, e.g. ``("left", True)`` for
+    ``supports.left_rotational_stiffness``, ``("inner[0]", False)``; None for other keys."""
+    m = _SUPPORT.match(key)
+    if not m:
+        return None
+    return m.group(1) or m.group(2), m.group(3) == "rotational_stiffness"
+
+
 def nominal_value(design: Design, key: str) -> float:
     """The current value [SI] of the quantity at ``key`` (``math.inf`` for a rigid support).
 
@@ -129,13 +148,13 @@ def nominal_value(design: Design, key: str) -> float:
     InputError
         For a key this design has no quantity at.
     """
-    m = _SUPPORT.match(key)
-    if m:
-        support, name = m.group(1), m.group(2)
+    found = support_key(key)
+    if found:
+        support, rotational = found
         support_position(design.member, support)  # names a support that exists
         for c in design.compliances:
             if c.support == support:
-                return c.rotational_stiffness if name == "rotational_stiffness" else c.stiffness
+                return c.rotational_stiffness if rotational else c.stiffness
         return math.inf
     _check_key(design, key)
     return _read(design.member, key)
@@ -168,9 +187,9 @@ def vary(design: Design, values: Mapping[str, float]) -> Design:
     from beamtone.calc.sizing import set_value
 
     for key, value in values.items():
-        m = _SUPPORT.match(key)
-        if m:
-            design = _with_stiffness(design, m.group(1), m.group(2), value, key)
+        found = support_key(key)
+        if found:
+            design = _with_stiffness(design, *found, value, key)
         else:
             try:
                 member = set_value(design.sheet, design.member, key, value)
@@ -203,12 +222,14 @@ def vary_within(design: Design, tolerances: Sequence[Tolerance], point: Sequence
         ) from None
 
 
-def _with_stiffness(design: Design, support: str, name: str, value: float, key: str) -> Design:
+def _with_stiffness(
+    design: Design, support: str, rotational: bool, value: float, key: str
+) -> Design:
     support_position(design.member, support)  # names a support that exists
     if not value > 0.0:
         raise InputError(key, value, "a positive stiffness, or rigid")
     current = next((c for c in design.compliances if c.support == support), Compliance(support))
-    new = replace(current, **{name: value})
+    new = replace(current, **{"rotational_stiffness" if rotational else "stiffness": value})
     others = tuple(c for c in design.compliances if c.support != support)
     updated = replace(design, compliances=(*others, new))
     updated.solved_member()  # refuses a stiffness for what the support does not hold
@@ -245,3 +266,177 @@ def _read(member: Member, key: str) -> float:
     except (IndexError, KeyError, AttributeError, TypeError, ValueError):
         pass
     raise InputError(key, key, "a key path of a quantity of this worksheet")
+
+
+# --- reading the worksheet -------------------------------------------------------------------
+
+_PERCENT = re.compile(r"^\s*([+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?)\s*%\s*$")
+_RIGID = "rigid"
+_STIFFNESS_NAMES = ("stiffness", "rotational_stiffness")
+
+
+def read_compliances(
+    supports: Mapping[str, object], member: Member
+) -> tuple[tuple[Compliance, ...], tuple[Tolerance, ...]]:
+    """The support stiffnesses of a worksheet's ``[supports]`` table.
+
+    ``left_rotational_stiffness = "2 MN*m/rad"`` makes the left end that stiff;
+    ``left_rotational_stiffness = ["2 MN*m/rad", "rigid"]`` keeps it rigid in the analysis
+    and adds a tolerance from that stiffness to rigid (varied as its compliance).  The same
+    for ``left_stiffness``, ``right_...`` and ``stiffness``/``rotational_stiffness`` of an
+    inner support.
+
+    Raises
+    ------
+    InputError
+        Keyed by the entry, for a value that is not a stiffness, a range that does not end
+        at rigid, or a stiffness for what the support does not hold.
+    """
+    from beamtone.calc import schema
+
+    places: list[tuple[str, Mapping[str, object], str]] = [
+        ("left", supports, "left_"),
+        ("right", supports, "right_"),
+    ]
+    inner = supports.get("inner", [])
+    for i, item in enumerate(inner if isinstance(inner, list) else []):
+        if isinstance(item, Mapping):
+            places.append((f"inner[{i}]", item, ""))
+    compliances: list[Compliance] = []
+    ranges: list[Tolerance] = []
+    for support, table, prefix in places:
+        given: dict[str, float] = {}
+        for name in _STIFFNESS_NAMES:
+            if prefix + name not in table:
+                continue
+            key = compliance_key(support, name == "rotational_stiffness")
+            entry = schema.entry(key)
+            value = table[prefix + name]
+            if isinstance(value, list):
+                if len(value) != 2 or value[1] != _RIGID or not isinstance(value[0], str):
+                    raise InputError(
+                        key,
+                        value,
+                        'a stiffness, or a range to rigid: ["2 MN*m/rad", "rigid"]',
+                        "a finite range goes in [tolerances]: the stiffness here, its range there",
+                    )
+                k = entry.parse(value[0], key)
+                given[name] = math.inf
+                written = f'["{value[0]}", "rigid"]'
+                ranges.append(Tolerance(key, 0.0, 0.0, 1.0 / k, COMPLIANCE, written))
+            else:
+                given[name] = entry.parse(value, key)
+        if given:
+            compliances.append(Compliance(support, **given))
+    out = tuple(compliances)
+    compliant_member(member, out)  # refuses a stiffness for what a support does not hold
+    for t in ranges:  # a range to rigid: check the soft end too
+        support, rotational = support_key(t.key) or ("", False)
+        trial = tuple(
+            replace(c, **{"rotational_stiffness" if rotational else "stiffness": 1.0 / t.high})
+            if c.support == support
+            else c
+            for c in out
+        )
+        compliant_member(member, trial)
+    return out, tuple(ranges)
+
+
+def read_tolerances(table: object, design: Design) -> tuple[Tolerance, ...]:
+    """The ``[tolerances]`` table: key path -> ``"5 %"``, ``"0.3 mm"`` or ``[low, high]``.
+
+    ``"5 %"`` is plus or minus 5 % of the value, ``"0.3 mm"`` plus or minus that amount,
+    and a pair gives the low and high values (each a quantity, or a signed percentage of
+    the value such as ``"-5 %"``).  A key path is any quantity ``--vary`` takes, Young's
+    modulus and density of a library material, or a support stiffness.
+
+    Raises
+    ------
+    InputError
+        Keyed ``tolerances.KEY``, for an unknown key, a value of the wrong kind, or a range
+        that reaches a value the key does not accept.
+    """
+    from beamtone.calc import schema
+
+    if table is None:
+        return ()
+    if not isinstance(table, Mapping):
+        raise InputError("tolerances", table, 'a table of "key.path" = "5 %" entries')
+    out: list[Tolerance] = []
+    for key, value in table.items():
+        where = f"tolerances.{key}"
+        entry = schema.find(key) if isinstance(key, str) else None
+        if entry is None or entry.kind != schema.QUANTITY or entry.dimension is None:
+            raise InputError(
+                where,
+                key,
+                'the key path of a quantity, e.g. "member.material.youngs_modulus"',
+                schema.hint(str(key).rsplit(".", 1)[-1], [e.name for e in schema.entries()]),
+            )
+        try:
+            nominal = nominal_value(design, key)
+        except InputError as exc:
+            raise InputError(where, key, "a quantity this worksheet has", exc.expected) from None
+        low, high = _range(value, nominal, entry, where)
+        tol = Tolerance(key, nominal, low, high, VALUE, _written(value))
+        for end in (low, high):  # the model must accept the whole range
+            try:
+                vary(design, {key: end}).solved_member()
+            except InputError as exc:
+                raise InputError(
+                    where, _written(value), f"a range the model accepts ({exc.key}: {exc.expected})"
+                ) from None
+        out.append(tol)
+    return tuple(out)
+
+
+def _written(value: object) -> str:
+    if isinstance(value, list):
+        return "[" + ", ".join(f'"{v}"' for v in value) + "]"
+    return str(value)
+
+
+def _range(value: object, nominal: float, entry, where: str) -> tuple[float, float]:  # noqa: ANN001
+    expected = 'a tolerance such as "5 %", "0.3 mm" (plus or minus) or ["low", "high"]'
+    if not math.isfinite(nominal):
+        raise InputError(
+            where, value, 'a range to rigid written at the support: ["2 MN*m/rad", "rigid"]'
+        )
+    if isinstance(value, str):
+        m = _PERCENT.match(value)
+        if m:
+            rel = float(m.group(1)) / 100.0
+            if not 0.0 < rel < 1.0 or nominal == 0.0:
+                raise InputError(
+                    where, value,
+                    "a percentage above 0 % and below 100 %" if nominal != 0.0
+                    else "a tolerance in units: the value is zero",
+                )  # fmt: skip
+            return nominal - rel * abs(nominal), nominal + rel * abs(nominal)
+        delta = entry.dimension and _parse(value, entry, where)
+        if not delta > 0.0:
+            raise InputError(where, value, expected)
+        return nominal - delta, nominal + delta
+    if isinstance(value, list) and len(value) == 2 and all(isinstance(v, str) for v in value):
+        ends = []
+        for v in value:
+            m = _PERCENT.match(v)
+            ends.append(
+                nominal * (1.0 + float(m.group(1)) / 100.0) if m else _parse(v, entry, where)
+            )
+        low, high = ends
+        if not low <= nominal <= high or low == high:
+            raise InputError(
+                where, _written(value), f"a low and a high value around the value ({nominal:.6g} "
+                f"{entry.dimension.si_unit})",
+            )  # fmt: skip
+        return low, high
+    raise InputError(where, value, expected)
+
+
+def _parse(text: str, entry, where: str) -> float:  # noqa: ANN001
+    from beamtone.calc.units import parse_quantity
+
+    return parse_quantity(
+        text, entry.dimension, where, allow_zero=True, allow_negative=True, minimum=False
+    )

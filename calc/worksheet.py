@@ -16,6 +16,7 @@ from pathlib import Path
 from typing import Any
 
 from beamtone.calc import materials, schema
+from beamtone.calc.compliance import Compliance
 from beamtone.calc.errors import InputError
 from beamtone.calc.excitation import (
     CRITERIA,
@@ -35,6 +36,7 @@ from beamtone.calc.model import (
 )
 from beamtone.calc.restraints import OVERRIDES
 from beamtone.calc.sections import Section, build_section
+from beamtone.calc.tolerances import Tolerance
 
 __all__ = [
     "FORMAT", "MAX_BYTES", "MAX_MODES", "MAX_RITZ", "EstimateSettings", "Worksheet", "load",
@@ -97,6 +99,13 @@ class Worksheet:
         The ``[[excitation]]`` tables, in SI (see :mod:`calc.excitation`).
     damping_ratio : float or None
         ``response.damping_ratio`` where given [-].
+    compliances : tuple of Compliance
+        Support stiffnesses where a support is not rigid (``supports.left_stiffness`` ...);
+        ``member`` already carries them as springs (see :mod:`calc.compliance`).
+    tolerances : tuple of Tolerance
+        The toleranced inputs (``[tolerances]``, and support stiffness ranges to rigid).
+    rigid_member : Member or None
+        The member with every support rigid as written, where ``compliances`` changed it.
     """
 
     title: str
@@ -108,6 +117,9 @@ class Worksheet:
     data: dict[str, Any] = field(default_factory=dict, repr=False, compare=False)
     excitations: tuple[Excitation, ...] = ()
     damping_ratio: float | None = None
+    compliances: tuple[Compliance, ...] = ()
+    tolerances: tuple[Tolerance, ...] = ()
+    rigid_member: Member | None = None
 
 
 def load(path: str | Path) -> Worksheet:
@@ -294,7 +306,27 @@ def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Workshe
                     _overrides(supports, "supports", "right_"))  # fmt: skip
     excitations = _excitations(data.get("excitation", []), member.length)
     damping = _response(data.get("response", {}))
-    return Worksheet(title, notes, member, modes, estimate, source, data, excitations, damping)
+    sheet = Worksheet(title, notes, member, modes, estimate, source, data, excitations, damping)
+    return _uncertain(sheet, supports)
+
+
+def _uncertain(sheet: Worksheet, supports: dict[str, Any]) -> Worksheet:
+    """The worksheet with its support stiffnesses and tolerances (calc.tolerances reads them)."""
+    from dataclasses import replace
+
+    from beamtone.calc.compliance import compliant_member
+    from beamtone.calc.tolerances import Design, read_compliances, read_tolerances
+
+    compliances, ranges = read_compliances(supports, sheet.member)
+    design = Design(sheet, sheet.member, compliances)
+    tolerances = (*read_tolerances(sheet.data.get("tolerances"), design), *ranges)
+    if not compliances and not tolerances:
+        return sheet
+    member = compliant_member(sheet.member, compliances)
+    rigid = sheet.member if member is not sheet.member else None
+    return replace(
+        sheet, member=member, compliances=compliances, tolerances=tolerances, rigid_member=rigid
+    )
 
 
 def _format(data: dict[str, Any]) -> None:

@@ -8,6 +8,7 @@ import textwrap
 from typing import TYPE_CHECKING, Any
 
 from beamtone.calc.caution import CAUTION
+from beamtone.render.bands import band_lines, with_bands
 from beamtone.render.directions import (
     all_modes_json,
     assumption_lines,
@@ -123,6 +124,9 @@ def solve_text(analysis: Analysis) -> str:
         lines.append("")
         lines += direction_lines(directions)
         lines += assumption_lines(directions)
+    if analysis.bands is not None:
+        lines.append("")
+        lines += band_lines(analysis.bands)
     if analysis.margins is not None:
         lines.append("")
         lines += margin_lines(analysis.margins, analysis.sheet.excitations)
@@ -174,7 +178,7 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
     sheet, result, check = analysis.sheet, analysis.modes, analysis.handbook
     member = sheet.member
     est, low, eq = analysis.estimate, analysis.lower_bound, analysis.equivalent
-    return {
+    return with_bands(analysis, {
         "title": sheet.title,
         "modes": [
             {
@@ -249,7 +253,7 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
         "caution": CAUTION,
         **_excitation_json(analysis),
         **_directions_json(analysis),
-    }
+    })  # fmt: skip
 
 
 def _directions_json(analysis: Analysis) -> dict[str, Any]:

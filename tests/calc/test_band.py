@@ -94,7 +94,7 @@ def test_compliant_clamp_to_rigid() -> None:
     design, result, _ = _sheet("sensor-mast.toml")
     EI = design.member.segments[0].bending_stiffness
     c = 1.2 / (10 * EI)
-    tol = Tolerance("supports.left.rotational_stiffness", 0.0, 0.0, c, COMPLIANCE)
+    tol = Tolerance("supports.left_rotational_stiffness", 0.0, 0.0, c, COMPLIANCE)
     out = band(design, result, [tol])
     first = out.modes[0]
     assert first.method == CORNERS

@@ -62,7 +62,7 @@ def test_a_bad_row_keeps_its_place() -> None:
     # the clamped root may be given a rotational stiffness; a free tip has none to give
     sheet = worksheet.loads(_BAR)
     table = (
-        "supports.left.rotational_stiffness,supports.right.rotational_stiffness\n"
+        "supports.left_rotational_stiffness,supports.right_rotational_stiffness\n"
         "1e9 N*m/rad,rigid\n"
         "1e3 N*m/rad,1e3 N*m/rad\n"
     )
@@ -72,7 +72,7 @@ def test_a_bad_row_keeps_its_place() -> None:
     result = solve_table(sheet, rows, engine="local")
     assert result.rows[0].error is not None and "supports.right" in result.rows[0].error
     assert result.rows[1].error is not None and result.failed == 2
-    rows = read_table(sheet, "name,supports.left.rotational_stiffness\nsoft,1e3 N*m/rad\n")
+    rows = read_table(sheet, "name,supports.left_rotational_stiffness\nsoft,1e3 N*m/rad\n")
     soft = solve_table(sheet, rows, engine="local").rows[0]
     rigid = solve_table(sheet, read_table(sheet, "member.length\n0.8 m\n"), engine="local")
     assert soft.error is None and soft.frequencies_hz[0] < rigid.rows[0].frequencies_hz[0]

@@ -105,7 +105,7 @@ def test_stiff_support_tends_to_rigid_from_below() -> None:
     previous = np.zeros(3)
     for k in (1e5, 1e7, 1e9):
         soft = compliant_member(sheet.member, (Compliance("inner[0]", stiffness=k),))
-        assert soft.inner_supports == (InnerSupport(5.0, "pinned"),)
+        assert [(s.at, s.kind) for s in soft.inner_supports] == [(5.0, "pinned")]
         f = fe.solve(soft, 3).frequencies_hz
         assert np.all(f < rigid * (1 + 1e-6)) and np.all(f >= previous * (1 - 1e-9))
         previous = f
@@ -124,18 +124,38 @@ def test_released_kinds() -> None:
          Compliance("inner[0]", stiffness=1e6)),
     )  # fmt: skip
     assert (out.left, out.right) == ("pinned", "free")
-    assert out.inner_supports == (InnerSupport(0.3, "guided"),)
+    assert [(s.at, s.kind) for s in out.inner_supports] == [(0.3, "guided")]
+    # torsion and axial keep what the supports held as written
+    assert dict(out.left_overrides) == {"torsion": "clamped", "axial": "held"}
+    assert dict(out.right_overrides) == {"torsion": "clamped", "axial": "held"}
     assert [(s.at, s.stiffness, s.rotational_stiffness) for s in out.springs] == [
         (0.0, 0.0, 1e4), (1.0, 1e6, 1e3), (0.3, 1e6, 0.0)]  # fmt: skip
+
+
+def test_torsion_and_axial_keep_the_written_support() -> None:
+    # A rotational stiffness at a clamped root is a bending matter: the i-beam's warping
+    # torsion and its axial modes stay those of the clamp (restraints of calc.restraints).
+    from beamtone.calc.directions import solve_directions
+
+    sec = build_section("i-beam", {"width": 0.1, "depth": 0.2, "flange": 0.008, "web": 0.006})
+    member = Member((Segment(3.0, LIBRARY["steel"], sec),), "clamped", "free")
+    soft = compliant_member(member, (Compliance("left", rotational_stiffness=1e6),))
+    rigid, loose = solve_directions(member, 2), solve_directions(soft, 2)
+    for name in ("torsion", "axial"):
+        a = [m.frequency_hz for m in rigid[name].modes]
+        b = [m.frequency_hz for m in loose[name].modes]
+        assert np.allclose(a, b, rtol=1e-9), name
+    assert loose["depth"].modes[0].frequency_hz < rigid["depth"].modes[0].frequency_hz
+    assert loose["width"].modes[0].frequency_hz < rigid["width"].modes[0].frequency_hz
 
 
 @pytest.mark.parametrize(
     ("compliance", "key"),
     [
-        (Compliance("left", rotational_stiffness=1e3), "supports.left.rotational_stiffness"),
-        (Compliance("right", stiffness=0.0), "supports.right.stiffness"),
-        (Compliance("right", stiffness=-5.0), "supports.right.stiffness"),
-        (Compliance("right", stiffness=math.nan), "supports.right.stiffness"),
+        (Compliance("left", rotational_stiffness=1e3), "supports.left_rotational_stiffness"),
+        (Compliance("right", stiffness=0.0), "supports.right_stiffness"),
+        (Compliance("right", stiffness=-5.0), "supports.right_stiffness"),
+        (Compliance("right", stiffness=math.nan), "supports.right_stiffness"),
         (Compliance("inner[3]", stiffness=1.0), "supports.inner[3]"),
         (Compliance("middle", stiffness=1.0), "supports.middle"),
     ],

@@ -60,7 +60,7 @@ def test_compliant_support_and_percentiles_inside_the_band() -> None:
     tols = [
         _rel(design, "member.material.youngs_modulus", 0.05),
         _rel(design, "mass[0].mass", 0.1),
-        Tolerance("supports.left.rotational_stiffness", 0.0, 0.0, 1.2 / (10 * EI), COMPLIANCE),
+        Tolerance("supports.left_rotational_stiffness", 0.0, 0.0, 1.2 / (10 * EI), COMPLIANCE),
     ]
     result = scatter(design, tols, modes, 300, engine="local")
     bands = band(design, fe.solve(design.solved_member(), modes), tols)

@@ -120,7 +120,7 @@ def test_compliance_at_rigid_is_minus_the_reaction_squared() -> None:
     # lambda(k) = lambda_rigid - r^2/k + O(1/k^2): (lambda(k) - lambda_rigid) k -> -r^2.
     design = _rectangle_cantilever()
     result = fe.solve(design.solved_member(), 3)
-    for key in ("supports.left.rotational_stiffness", "supports.left.stiffness"):
+    for key in ("supports.left_rotational_stiffness", "supports.left_stiffness"):
         s = sensitivities(design, result, [Tolerance(key, 0.0, 0.0, 1e-6, COMPLIANCE)])
         lam = np.array([m.omega**2 for m in result.modes])
         estimates = []
