@@ -364,7 +364,8 @@ def import_times() -> list[tuple[str, float, float | None, str]]:
         ("import for beamtone --help", "import beamtone.cli.main"),
         (
             "import for beamtone solve",
-            "import beamtone.cli.main, calc.analysis, calc.worksheet, cli.output",
+            "import beamtone.cli.main, beamtone.calc.analysis, beamtone.calc.worksheet, "
+            "beamtone.render.text",
         ),
     ):
         out = subprocess.run(
