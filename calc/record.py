@@ -24,7 +24,10 @@ Tolerances of the comparison (relative unless stated):
 - counts, flags (rigid-body modes, bracket inside, inside-band flags): exactly;
 - the width plane's, torsion's and axial frequencies as the natural frequencies, and the
   governing direction exactly; a record written before they were stored is not compared on
-  them.
+  them;
+- the excitation verdict (clear, not clear, not shown clear) and the governing mode and line
+  (from the worksheet's ``[[excitation]]`` tables): exactly; a record written before they were
+  stored is not compared on them.
 """
 
 from __future__ import annotations
@@ -132,12 +135,18 @@ class StoredResults:
     equivalent : tuple of float
         Equivalent single-DOF model: (point [m], effective mass [kg], stiffness [N/m]).
     margins : StoredMargins or None
-        The excitation check, where one was recorded.  Sizing margins go here: the
-        worksheet holds no excitation yet, so ``solve --record`` stores none.
+        A single-excitation check given to :func:`build_record` (``margins=``), where one was
+        recorded; the worksheet's own excitations are stored as ``verdict`` and
+        ``governing_pair``.
     governing : str or None
         The direction of the governing mode (the lowest of every direction).
     width_hz, torsion_hz, axial_hz : tuple of float or None
         Natural frequencies of the width plane, torsion and axial motion [Hz], where computed.
+    verdict : str or None
+        The excitation verdict (``"clear"``, ``"not clear"``, ``"not shown clear"``), where
+        the worksheet has ``[[excitation]]`` tables.
+    governing_pair : str or None
+        The mode and excitation line that govern the verdict, in words.
     """
 
     rigid_body_modes: int
@@ -154,6 +163,8 @@ class StoredResults:
     width_hz: tuple[float, ...] | None = None
     torsion_hz: tuple[float, ...] | None = None
     axial_hz: tuple[float, ...] | None = None
+    verdict: str | None = None
+    governing_pair: str | None = None
 
 
 # --- the table of stored results -----------------------------------------------------------------
@@ -297,7 +308,33 @@ _RESULTS = (
         )
         for name in ("width", "torsion", "axial")
     ),
+    _Stored(
+        "verdict", "excitation verdict", "", "text", "exact",
+        lambda a: None if a.margins is None else _verdict_word(a.margins.verdict),
+        optional=True, new=True,
+    ),
+    _Stored(
+        "governing_pair", "governing mode and line", "", "text", "exact",
+        lambda a: None if a.margins is None else _pair(a.margins.verdict.governing),
+        optional=True, new=True,
+    ),
 )  # fmt: skip
+
+
+def _verdict_word(verdict: Any) -> str:
+    """``"clear"``, ``"not clear"`` (a mode inside a band) or ``"not shown clear"``."""
+    if verdict.clear:
+        return "clear"
+    g = verdict.governing
+    return "not shown clear" if g is not None and g.clear else "not clear"
+
+
+def _pair(row: Any) -> str | None:
+    """The governing mode and excitation line in words (``"depth mode 2, pump order 1"``)."""
+    if row is None:
+        return None
+    line = "lower limit" if row.order is None else f"order {row.order:g}"
+    return f"{row.direction} mode {row.mode}, {row.excitation} {line}"
 
 
 def _groups(entries: tuple[_Stored, ...]) -> list[tuple[_Stored, ...]]:

@@ -22,6 +22,7 @@ from beamtone.calc.caution import CAUTION
 
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.analysis import Analysis
+    from beamtone.calc.excitation import Excitation, MarginTable
     from beamtone.calc.record import Verification
     from beamtone.calc.sizing import MarginCheck
     from beamtone.calc.worksheet import Worksheet
@@ -123,9 +124,11 @@ class Formula:
 
 @dataclass(frozen=True)
 class Figure:
-    """Where the mode-shape figure goes, with its caption."""
+    """Where a figure goes, with its caption: ``"modes"`` (the mode shapes) or
+    ``"interference"`` (the excitation chart)."""
 
     caption: str
+    name: str = "modes"
 
 
 @dataclass(frozen=True)
@@ -191,12 +194,18 @@ class Report:
         The data of the mode-shape figure.
     verification : Verification or None
         The outcome of verifying the worksheet's stored record, where it has one.
+    margins : MarginTable or None
+        The worksheet's excitation margins (the data of the interference chart).
+    excitations : tuple of Excitation
+        The worksheet's excitations.
     """
 
     title: str
     sections: tuple[Section, ...]
     shapes: ModeShapes
     verification: Verification | None = None
+    margins: MarginTable | None = None
+    excitations: tuple[Excitation, ...] = ()
 
 
 # --- the mode shapes -----------------------------------------------------------------------------
@@ -351,13 +360,16 @@ def build(
         Section("Results", (*_results(analysis), *directions_report.blocks(analysis))),
         Section("Cross-checks", _checks(analysis, verification)),
         Section("Dimensional groups", _groups(analysis)),
-        Section("Excitation margins", _margins(margins)),
+        Section("Excitation margins", _excitation_blocks(analysis, margins)),
         Section("Mode shapes", (Figure(_caption(analysis)),)),
         Section("Warnings", _warnings(analysis)),
         Section("Caution", (Paragraph(caution),)),
         Section("References", _references(analysis, margins)),
     ]
-    return Report(title, tuple(sections), mode_shapes(analysis), verification)
+    return Report(
+        title, tuple(sections), mode_shapes(analysis), verification, analysis.margins,
+        analysis.sheet.excitations,
+    )  # fmt: skip
 
 
 def report_data(
@@ -894,6 +906,126 @@ def _margins(margins: MarginCheck | None) -> tuple[Block, ...]:
     ]
     if not margins.clear:
         blocks.append(Alert("At least one mode lies inside an excitation band."))
+    return tuple(blocks)
+
+
+def _excitation_blocks(analysis: Analysis, margins: MarginCheck | None) -> tuple[Block, ...]:
+    """The worksheet's excitations: the margin table, the verdict, the chart, and the forced
+    response where a damping ratio is given; then the check of ``--excitation``, where given
+    (without either, a note on how to add one)."""
+    table = analysis.margins
+    if table is None:
+        return _margins(margins)
+    from beamtone.calc.excitation import CAUTION as MARGIN_CAUTION
+    from beamtone.calc.excitation import CRITERIA
+
+    rows = tuple(
+        (
+            r.excitation, "limit" if r.order is None else f"{r.order:g}",
+            number(r.line_low_hz) if r.line_high_hz == r.line_low_hz
+            else f"{number(r.line_low_hz)} to {number(r.line_high_hz)}",
+            f"{r.direction} {r.mode}", number(r.frequency_hz), f"{100 * r.separation:+.1f} %",
+            f"{100 * r.required:.1f} %", "clear" if r.clear else "INSIDE",
+        )
+        for r in table.rows
+    )  # fmt: skip
+    bands = tuple(
+        f"{ln.excitation} {'lower limit' if ln.order is None else f'order {ln.order:g}'}: "
+        f"no mode in {number(ln.band_low_hz)} to {number(ln.band_high_hz)} Hz"
+        for ln in table.lines
+    )
+    blocks: list[Block] = [
+        Paragraph(
+            "The worksheet's excitations. Every excitation line against every computed mode "
+            "of every computed direction. "
+            "Separation is from the nearest end of the line, as a fraction of it (negative "
+            "below); a mode is clear only where it lies outside the band with its estimated "
+            "error, so a mode on a band edge is not clear."
+        ),
+        Bullets(bands),
+        Table(
+            ("excitation", "order", "line [Hz]", "mode", "f [Hz]", "separation", "required", ""),
+            rows,
+        ),  # fmt: skip
+        (Paragraph if table.verdict.clear else Alert)(f"Verdict: {table.verdict.text}"),
+    ]
+    if table.verdict.unchecked:
+        blocks.append(Bullets(tuple(f"not covered: {n}" for n in table.verdict.unchecked)))
+    if table.passages:
+        blocks.append(
+            Paragraph(
+                f"{len(table.passages)} excitation line(s) lie above a natural frequency: the "
+                "member passes through resonance whenever the source runs up from rest and "
+                "down to it (start-up and shut-down)."
+            )
+        )
+    named = [e for e in analysis.sheet.excitations if e.criterion is not None]
+    if named:
+        blocks.append(
+            Bullets(
+                tuple(
+                    f"{e.name}: criterion {e.criterion} ({CRITERIA[e.criterion].applies_to}); "
+                    f"{CRITERIA[e.criterion].source}"
+                    for e in named
+                )
+            )  # fmt: skip
+        )
+    blocks.append(Paragraph(MARGIN_CAUTION))
+    speed = any(e.as_speed for e in analysis.sheet.excitations)
+    caption = (
+        "Interference chart: natural frequencies against running speed, with the order "
+        "lines, their margin bands and the operating speed; red: a mode not clear."
+        if speed
+        else "Frequency map: the margin bands of every excitation line and the natural "
+        "frequencies; red: a mode not clear."
+    )
+    blocks.append(Figure(caption, "interference"))
+    if analysis.response is not None:
+        blocks += _response(analysis)
+    if margins is not None:
+        blocks += _margins(margins)
+    return tuple(blocks)
+
+
+def _response(analysis: Analysis) -> tuple[Block, ...]:
+    from beamtone.calc.response import DAMPING_CAUTION
+
+    resp = analysis.response
+    assert resp is not None
+    rows: list[tuple[str, ...]] = []
+    for ln in resp.lines:
+        line = f"{ln.excitation} order {ln.order:g}"
+        amps = ", ".join(f"{a:.3g}" for a in ln.amplification)
+        if not ln.points:
+            rows.append((line, amps, "-", "-", "-", "-"))
+        for p in ln.points:
+            rows.append((
+                line, amps, f"{p.name} at {number(p.at, 4)} m", f"{p.displacement:.3e}",
+                f"{p.velocity:.3e}", f"{p.acceleration:.3e}",
+            ))  # fmt: skip
+    blocks: list[Block] = [
+        Paragraph(
+            f"Forced response: modal superposition of the {resp.modes_used} computed "
+            "mass-normalized modes with an assumed damping ratio of "
+            f"{100 * resp.damping_ratio:g} % of critical in every mode; amplification "
+            "1/sqrt((1 - r^2)^2 + (2 zeta r)^2) per mode; amplitudes of "
+            "a harmonic force at each line (for a range, the largest over it)."
+        ),
+        Table(
+            (
+                "line",
+                "amplification by mode",
+                "where",
+                "displacement [m]",
+                "velocity [m/s]",
+                "acceleration [m/s^2]",
+            ),
+            tuple(rows),
+        ),  # fmt: skip
+        Alert(DAMPING_CAUTION),
+    ]
+    if resp.notes:
+        blocks.append(Bullets(resp.notes))
     return tuple(blocks)
 
 

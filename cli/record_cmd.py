@@ -138,7 +138,8 @@ def report(args: argparse.Namespace) -> int:
     sheet = load(worksheet)
     out = _output(args, worksheet)
     figure = out.with_name(out.stem + "-modes.svg")
-    for target in (out, figure):
+    chart = out.with_name(out.stem + "-chart.svg")
+    for target in (out, figure, chart):
         if _same(target, worksheet):
             raise InputError("-o", str(target), "a file other than the worksheet itself")
     content = report_data(
@@ -153,9 +154,11 @@ def report(args: argparse.Namespace) -> int:
         files = [(out, doc.html())]
     else:
         shown = figure if doc.figure_svg is not None else None
-        files = [(out, doc.markdown(shown.name if shown else None))]
+        files = [(out, doc.markdown(shown.name if shown else None, chart.name))]
         if shown is not None and doc.figure_svg is not None:
             files.append((shown, doc.figure_svg))
+        if doc.chart_svg is not None:
+            files.append((chart, doc.chart_svg))
     for target, text in reversed(files):  # the figure first: never a reference to a missing file
         _write(target, text)
     written = [str(target) for target, _ in files]

@@ -52,7 +52,7 @@ def _inline_svg(svg: str, label: str) -> str:
     return text.replace("<svg", f'<svg role="img" aria-label="{label_attr}"', 1).strip()
 
 
-def _block(block: Block, svg: str | None, note: str) -> str:
+def _block(block: Block, svg: str | None, note: str, chart: str | None = None) -> str:
     if isinstance(block, Paragraph):
         return f"<p>{_esc(block.text)}</p>"
     if isinstance(block, Bullets):
@@ -62,6 +62,8 @@ def _block(block: Block, svg: str | None, note: str) -> str:
     if isinstance(block, Formula):
         return "<pre>" + _esc("\n".join(block.lines)) + "</pre>"
     if isinstance(block, Figure):
+        if block.name == "interference":
+            svg = chart
         if svg is None:
             return f'<p class="note">{_esc(note)}</p>'
         return (
@@ -79,7 +81,9 @@ def _block(block: Block, svg: str | None, note: str) -> str:
     return f"<table><thead><tr>{head}</tr></thead><tbody>{''.join(rows)}</tbody></table>"
 
 
-def html(report: Report, figure_svg: str | None = None, note: str = "") -> str:
+def html(
+    report: Report, figure_svg: str | None = None, note: str = "", chart_svg: str | None = None
+) -> str:
     """The report as one self-contained HTML file.
 
     Parameters
@@ -90,6 +94,8 @@ def html(report: Report, figure_svg: str | None = None, note: str = "") -> str:
         The mode-shape figure as an SVG document, put inline; without it ``note`` says why
         there is no figure.
     note : str
+    chart_svg : str, optional
+        The interference chart as an SVG document, put inline where there is one.
 
     Returns
     -------
@@ -99,7 +105,7 @@ def html(report: Report, figure_svg: str | None = None, note: str = "") -> str:
     for number, section in enumerate(report.sections, start=1):
         body.append(f'<section id="s{number}">')
         body.append(f"<h2>{number}. {_esc(section.title)}</h2>")
-        body += [_block(b, figure_svg, note) for b in section.blocks]
+        body += [_block(b, figure_svg, note, chart_svg) for b in section.blocks]
         body.append("</section>")
     return (
         "<!DOCTYPE html>\n"

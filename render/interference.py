@@ -27,24 +27,26 @@ _DIRECTION_STYLE = {
 }
 
 
-def interference_chart(
-    excitations: Sequence[Excitation], modes: Sequence[ModeRef], table: MarginTable
-) -> str | None:
+def interference_chart(excitations: Sequence[Excitation], table: MarginTable) -> str | None:
     """The interference chart (or, without a running speed, the frequency map) as SVG.
 
     Parameters
     ----------
     excitations : sequence of Excitation
-    modes : sequence of ModeRef
-        Every computed mode of every computed direction.
     table : MarginTable
-        Their margin table (the modes inside a band are marked).
+        Their margin table: every computed mode of every computed direction (those not clear
+        of a band are marked).
 
     Returns
     -------
     str or None
         None where matplotlib is not installed.
     """
+    modes = list(
+        {
+            (r.direction, r.mode): ModeRef(r.direction, r.mode, r.frequency_hz) for r in table.rows
+        }.values()
+    )
     try:
         import matplotlib
         from matplotlib.figure import Figure
@@ -64,6 +66,14 @@ def interference_chart(
         buffer = io.StringIO()
         fig.savefig(buffer, format="svg", metadata={"Date": None})
     return buffer.getvalue()
+
+
+def _top(table: MarginTable, modes: Sequence[ModeRef]) -> float:
+    """The chart's frequency axis ends 30 % above the highest band (modes above it are clear
+    of every band and left off), or above the lowest mode where that is higher."""
+    reach = max((ln.band_high_hz for ln in table.lines), default=0.0)
+    lowest = min((m.frequency_hz for m in modes), default=0.0)
+    return 1.3 * max(reach, lowest)
 
 
 def _inside(table: MarginTable) -> set[tuple[str, int]]:
@@ -90,8 +100,7 @@ def _speed_chart(
 ) -> None:
     speeds = [e for e in excitations if e.as_speed]
     top_rpm = 1.3 * max(e.high_hz for e in speeds) * 60.0
-    top_hz = max([ln.band_high_hz for ln in table.lines] + [m.frequency_hz for m in modes])
-    top_hz *= 1.15
+    top_hz = _top(table, modes)
     x = [0.0, top_rpm]
     first = next(e for e in excitations if e.as_speed)
     for e in excitations:
@@ -135,8 +144,7 @@ def _frequency_map(
                     color="#f0b000", alpha=0.35, label=label)  # fmt: skip
             ax.plot([ln.low_hz, ln.high_hz], [row, row], color="#a06000", linewidth=3)
     _mode_lines(ax, modes, table, vertical=True)
-    top = max([ln.band_high_hz for ln in table.lines] + [m.frequency_hz for m in modes])
-    ax.set_xlim(0.0, 1.1 * top)
+    ax.set_xlim(0.0, _top(table, modes))
     ax.set_yticks(range(len(names)), names)
     ax.set_ylim(-0.8, len(names) - 0.2)
     ax.set_xlabel("frequency [Hz]")

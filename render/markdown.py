@@ -44,7 +44,7 @@ def _cell(text: str, literal: bool) -> str:
     return f"{fence}{pad}{text}{pad}{fence}"
 
 
-def _block(block: Block, figure: str | None, note: str) -> list[str]:
+def _block(block: Block, figure: str | None, note: str, chart: str | None = None) -> list[str]:
     if isinstance(block, Paragraph):
         return [escape(block.text)]
     if isinstance(block, Bullets):
@@ -54,6 +54,8 @@ def _block(block: Block, figure: str | None, note: str) -> list[str]:
     if isinstance(block, Formula):
         return ["```text", *block.lines, "```"]
     if isinstance(block, Figure):
+        if block.name == "interference":
+            figure = chart
         if figure is None:
             return [f"*{escape(note or 'figure not written')}*"]
         return [f"![{escape(block.caption)}]({figure})", "", f"*{escape(block.caption)}*"]
@@ -66,7 +68,9 @@ def _block(block: Block, figure: str | None, note: str) -> list[str]:
     return [header, rule, *rows]
 
 
-def markdown(report: Report, figure_file: str | None = None, note: str = "") -> str:
+def markdown(
+    report: Report, figure_file: str | None = None, note: str = "", chart_file: str | None = None
+) -> str:
     """The report as Markdown.
 
     Parameters
@@ -78,6 +82,8 @@ def markdown(report: Report, figure_file: str | None = None, note: str = "") -> 
         referenced by it.  Without it the figure is left out and ``note`` says why.
     note : str
         Why there is no figure, where there is none.
+    chart_file : str, optional
+        Name of the SVG file holding the interference chart, where there is one.
 
     Returns
     -------
@@ -87,6 +93,6 @@ def markdown(report: Report, figure_file: str | None = None, note: str = "") -> 
     for number, section in enumerate(report.sections, start=1):
         lines += [f"## {number}. {escape(section.title)}", ""]
         for block in section.blocks:
-            lines += _block(block, figure_file, note)
+            lines += _block(block, figure_file, note, chart_file)
             lines.append("")
     return "\n".join(lines).rstrip() + "\n"

@@ -40,11 +40,15 @@ class Report:
         The mode-shape figure as a standalone SVG document; None where it was not drawn.
     figure_note : str
         Why there is no figure, where there is none.
+    chart_svg : str or None
+        The interference chart (or frequency map) as SVG, where the worksheet has excitations
+        and it was drawn.
     """
 
     content: content.Report
     figure_svg: str | None
     figure_note: str = ""
+    chart_svg: str | None = None
 
     @property
     def title(self) -> str:
@@ -56,7 +60,7 @@ class Report:
         """The numbered sections, in order."""
         return self.content.sections
 
-    def markdown(self, figure_file: str | None = None) -> str:
+    def markdown(self, figure_file: str | None = None, chart_file: str | None = None) -> str:
         """The report as Markdown.
 
         Parameters
@@ -64,13 +68,16 @@ class Report:
         figure_file : str, optional
             Name of the SVG file (beside the Markdown file) the figure was written to; the
             figure is referenced by it.  Without it the figure is left out with a note.
+        chart_file : str, optional
+            Name of the SVG file the interference chart was written to.
 
         Returns
         -------
         str
         """
         shown = figure_file if self.figure_svg is not None else None
-        return _markdown(self.content, shown, self.figure_note)
+        chart = chart_file if self.chart_svg is not None else None
+        return _markdown(self.content, shown, self.figure_note, chart)
 
     def html(self) -> str:
         """The report as one self-contained HTML file (inline style and figure).
@@ -79,7 +86,7 @@ class Report:
         -------
         str
         """
-        return _html(self.content, self.figure_svg, self.figure_note)
+        return _html(self.content, self.figure_svg, self.figure_note, self.chart_svg)
 
 
 def render(report: content.Report, figure: bool = True) -> Report:
@@ -97,7 +104,12 @@ def render(report: content.Report, figure: bool = True) -> Report:
     """
     svg = mode_figure(report.shapes) if figure else None
     note = "" if svg is not None else (NO_FIGURE if figure else "figure not requested")
-    return Report(report, svg, note)
+    chart = None
+    if figure and report.margins is not None:
+        from beamtone.render.interference import interference_chart
+
+        chart = interference_chart(report.excitations, report.margins)
+    return Report(report, svg, note, chart)
 
 
 def build(

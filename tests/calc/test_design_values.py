@@ -5,6 +5,8 @@ from __future__ import annotations
 import numpy as np
 import pytest
 import scipy.optimize
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from beamtone.calc import fe
 from beamtone.calc.design_values import default_step, grid_text, practical_values
@@ -13,6 +15,7 @@ from beamtone.calc.excitation import Excitation, MarginTable, margin_table, mode
 from beamtone.calc.materials import Material
 from beamtone.calc.model import Member, PointMass, Segment
 from beamtone.calc.sections import build_section
+from tests.fuzz import EXAMPLES
 
 STEEL = Material("test steel", 200e9, 7850.0, "test data")
 PUMP = Excitation("pump", 1480 / 60, 1480 / 60, (1.0, 2.0))  # 1480 rpm, orders 1 and 2
@@ -119,3 +122,72 @@ def test_step_and_sizes_together_are_refused() -> None:
         practical_values(evaluate, [(1.0, 2.0)], 1.0, 2.0, step=0.1, sizes=[1.5])
     with pytest.raises(InputError):
         practical_values(evaluate, [(1.0, 2.0)], 1.0, 2.0, step=-1.0)
+
+
+# --- property: sizing never recommends a value inside or on a band after rounding ----------------
+
+_SHEET = """\
+format = 1
+[member]
+length = "{length} m"
+material = "steel"
+section = {{ shape = "rectangle", width = "40 mm", depth = "10 mm" }}
+[supports]
+left = "{left}"
+right = "{right}"
+[[mass]]
+at = "{at} m"
+mass = "{mass} kg"
+[check]
+modes = 3
+"""
+
+
+@settings(max_examples=EXAMPLES(3), deadline=None, derandomize=True)
+@given(
+    length=st.sampled_from([0.4, 0.8, 1.5]),
+    ends=st.sampled_from([("clamped", "free"), ("pinned", "pinned"), ("clamped", "pinned")]),
+    where=st.floats(0.2, 1.0),
+    mass=st.sampled_from([0.5, 3.0, 20.0]),
+    excitation=st.floats(8.0, 250.0),
+    orders=st.sampled_from([(1,), (1, 2), (1, 3)]),
+    margin=st.sampled_from([0.1, 0.2, 0.3]),
+    step=st.sampled_from([None, "1 mm", "0.5 mm"]),
+)
+def test_sizing_never_recommends_inside_or_on_a_band(
+    length: float,
+    ends: tuple[str, str],
+    where: float,
+    mass: float,
+    excitation: float,
+    orders: tuple[int, ...],
+    margin: float,
+    step: str | None,
+) -> None:
+    """Random members and excitations: the recommended (rounded) value, solved afresh, has
+    every mode strictly outside every closed band (checked here without calc.excitation)."""
+    from beamtone.calc import sizing
+    from beamtone.calc.worksheet import loads
+
+    text = _SHEET.format(length=length, left=ends[0], right=ends[1], at=where * length, mass=mass)
+    sheet = loads(text)
+    request = sizing.read_request(
+        sheet, "member.section.depth", "3 mm", "60 mm", excitation=f"{excitation} Hz",
+        harmonics=",".join(map(str, orders)), margin=f"{100 * margin}%", step=step,
+    )  # fmt: skip
+    result = sizing.run_request(request)
+    if result.recommended is None:
+        return
+    chosen = result.solutions[result.recommended]
+    assert chosen.above == "rounded"
+    unit_step = 1.0 if step is None or step == "1 mm" else 0.5
+    if step is not None:  # on the grid of the step, in mm
+        assert (
+            abs(chosen.value_si * 1000 / unit_step - round(chosen.value_si * 1000 / unit_step))
+            < 1e-9
+        )
+    member = sizing.variation(sheet, "member.section.depth").member(chosen.value_si)
+    fresh = fe.solve(member, 3).frequencies_hz
+    for h in orders:
+        low, high = h * excitation * (1 - margin), h * excitation * (1 + margin)
+        assert all(f < low or f > high for f in fresh), (chosen.value, fresh, low, high)

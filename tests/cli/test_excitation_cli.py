@@ -190,12 +190,12 @@ def test_forced_response_in_solve(tmp_path: Path, capsys: pytest.CaptureFixture[
 
 
 def test_example_worksheet_solves(capsys: pytest.CaptureFixture[str]) -> None:
-    status, out, err = run(capsys, "solve", str(ROOT / "worksheets" / "pump-span.toml"))
+    status, out, err = run(capsys, "solve", str(ROOT / "worksheets" / "excitations" / "pump-span.toml"))
     assert status == 0, err
     assert "verdict" in out and "ACI 351.3R" in out and "check against the current edition" in out
 
 
-# --- sizing: the figures, reproduced and gone ---------------------------------------------
+# --- sizing: the figures, reproduced and gone -------------------------------------------
 
 
 def test_pump_span_edge_value_is_inside_and_never_recommended(
@@ -307,3 +307,71 @@ def test_size_without_goal_or_excitations_still_exits_2(
         capsys, "size", str(path), "--vary", "member.length", "--between", "1 m", "2 m"
     )
     assert status == 2 and "[[excitation]]" in err
+
+
+# --- the report -------------------------------------------------------------------------------
+
+
+def test_report_shows_the_table_the_verdict_and_the_chart(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    path = _write(tmp_path, PUMP_SPAN + EXCITATION)
+    out_path = tmp_path / "span.md"
+    status, out, err = run(capsys, "report", str(path), "-o", str(out_path))
+    assert status == 0, err
+    chart = tmp_path / "span-chart.svg"
+    assert str(chart) in out
+    md = out_path.read_text(encoding="utf-8")
+    assert "The worksheet's excitations" in md
+    assert "Verdict: NOT CLEAR" in md
+    assert "(span-chart.svg)" in md and "Interference chart" in md
+    svg = chart.read_text(encoding="utf-8")
+    assert svg.lstrip().startswith("<?xml") and "running speed [rpm]" in svg
+    html_path = tmp_path / "span.html"
+    status, _, err = run(capsys, "report", str(path), "-o", str(html_path), "--html")
+    assert status == 0, err
+    page = html_path.read_text(encoding="utf-8")
+    assert page.count("<svg") == 2
+
+
+def test_report_frequency_map_and_forced_response(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    text = (
+        BRACKET + '\n[[excitation]]\nname = "motor"\nfrequency = "120 Hz"\n'
+        'criterion = "bracket-octave"\nforce = "5 N"\nforce_at = "250 mm"\n'
+        '\n[response]\ndamping_ratio = "3 %"\n'
+    )  # fmt: skip
+    path = _write(tmp_path, text)
+    out_path = tmp_path / "bracket.md"
+    status, _, err = run(capsys, "report", str(path), "-o", str(out_path))
+    assert status == 0, err
+    md = out_path.read_text(encoding="utf-8")
+    assert "Frequency map" in md and "Forced response: modal superposition" in md
+    assert "damping is uncertain" in md
+    assert "bracket-octave" in md and "check against the current edition" in md
+    assert "frequency \\[Hz\\]" not in md  # the chart is a file, not text
+    assert "frequency [Hz]" in (tmp_path / "bracket-chart.svg").read_text(encoding="utf-8")
+
+
+# --- the record -------------------------------------------------------------------------------
+
+
+def test_record_keeps_the_verdict_and_verify_fails_when_an_edit_moves_a_mode_into_a_band(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    text = BRACKET + '\n[[excitation]]\nname = "motor"\nfrequency = "120 Hz"\nmargin = "20 %"\n'
+    path = _write(tmp_path, text)
+    status, out, err = run(capsys, "solve", str(path), "--record", "--fail-unless-clear")
+    assert status == 0, err + out  # clear: fundamental 44 Hz, far below 96-144 Hz
+    stored = path.read_text(encoding="utf-8")
+    assert 'verdict = "clear"' in stored
+    assert run(capsys, "verify", str(path))[0] == 0
+    # a thicker bracket puts the fundamental (about 102 Hz) inside the band around 120 Hz
+    path.write_text(stored.replace('depth = "12 mm"', 'depth = "21 mm"'), encoding="utf-8")
+    status, out, _ = run(capsys, "verify", str(path), "--json")
+    assert status == 1
+    obj = json.loads(out)
+    (verdict,) = [c for c in obj["comparisons"] if c["quantity"] == "excitation verdict"]
+    assert (verdict["stored"], verdict["now"], verdict["ok"]) == ("clear", "not clear", False)
+    assert run(capsys, "solve", str(path), "--fail-unless-clear")[0] == 3
