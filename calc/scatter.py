@@ -411,6 +411,8 @@ def scatter(
     nominal = fe.solve(design.solved_member(), modes).frequencies_hz
     checked = _check(template, points, freqs)
     notes = [
+        "depth-plane modes only: the study solves bending in the worksheet's plane (the width "
+        "plane, torsion and axial bands are in beamtone solve)",
         "each input uniform over its range (a support ranging to rigid: uniform in 1/k); "
         "percentiles describe this assumed spread, and the tolerances are the user's",
         f"samples solved on one mesh layout designed for {STUDY_ACCURACY:.0e}; "

@@ -174,6 +174,10 @@ def build_parser() -> argparse.ArgumentParser:
     out = sweep.add_mutually_exclusive_group()
     out.add_argument("--json", action="store_true", help="print one JSON object")
     out.add_argument("--csv", action="store_true", help="print comma-separated values")
+
+    from beamtone.cli import study_cmd
+
+    study_cmd.add_parsers(commands, _positive_int)
     return parser
 
 
@@ -254,7 +258,19 @@ def _report(args: argparse.Namespace) -> int:
     return record_cmd.report(args)
 
 
-_COMMANDS = ("solve", "groups", "size", "sweep", "verify", "report")
+_COMMANDS = ("solve", "groups", "size", "sweep", "verify", "report", "scatter", "batch")
+
+
+def _scatter(args: argparse.Namespace) -> int:
+    from beamtone.cli import study_cmd
+
+    return study_cmd.scatter(args)
+
+
+def _batch(args: argparse.Namespace) -> int:
+    from beamtone.cli import study_cmd
+
+    return study_cmd.batch(args)
 
 
 def _app(path: str | None) -> int:
@@ -313,7 +329,7 @@ def _commands(arguments: list[str]) -> int:
 
     handlers = {
         "solve": _solve, "groups": _groups, "size": _size, "sweep": _sweep,
-        "verify": _verify, "report": _report,
+        "verify": _verify, "report": _report, "scatter": _scatter, "batch": _batch,
     }  # fmt: skip
     try:
         return handlers[args.command](args)
