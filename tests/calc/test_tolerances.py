@@ -80,3 +80,77 @@ def test_a_tolerance_must_contain_its_nominal() -> None:
     with pytest.raises(InputError) as err:
         Tolerance("member.length", 1.0, 1.1, 1.2, written="1.1 m to 1.2 m")
     assert err.value.key == "tolerances.member.length"
+
+
+# --- the worksheet's [tolerances] and support stiffnesses ------------------------------------
+
+_MAST = """format = 1
+[member]
+length = "1.2 m"
+material = "steel"
+section = { shape = "round-tube", outside_diameter = "48 mm", wall = "3 mm" }
+[supports]
+left = "clamped"
+right = "free"
+SUPPORT
+[[mass]]
+at = "1.2 m"
+mass = "2.5 kg"
+[tolerances]
+TOLERANCES
+"""
+
+
+def _sheet(support: str = "", tolerances: str = "") -> worksheet.Worksheet:
+    return worksheet.loads(_MAST.replace("SUPPORT", support).replace("TOLERANCES", tolerances))
+
+
+def test_tolerance_syntax() -> None:
+    sheet = _sheet(
+        tolerances='"member.material.youngs_modulus" = "5 %"\n'
+        '"member.section.wall" = "0.3 mm"\n'
+        '"mass[0].mass" = ["2.3 kg", "2.8 kg"]\n'
+        '"member.length" = ["-1 %", "+2 %"]\n'
+    )
+    got = {t.key: (t.low, t.high) for t in sheet.tolerances}
+    assert got["member.material.youngs_modulus"] == pytest.approx((190e9, 210e9))
+    assert got["member.section.wall"] == pytest.approx((0.0027, 0.0033))
+    assert got["mass[0].mass"] == pytest.approx((2.3, 2.8))
+    assert got["member.length"] == pytest.approx((1.188, 1.224))
+    assert sheet.member == _sheet().member  # tolerances change no number
+
+
+def test_support_stiffness_syntax() -> None:
+    EI = _sheet().member.segments[0].bending_stiffness
+    soft = _sheet(f'left_rotational_stiffness = "{10 * EI / 1.2} N*m/rad"')
+    assert soft.member.left == "pinned" and soft.rigid_member is not None
+    ranged = _sheet('left_rotational_stiffness = ["30 kN*m/rad", "rigid"]')
+    assert ranged.member == _sheet().member  # rigid in the analysis: today's numbers
+    (t,) = ranged.tolerances
+    assert t.measure == COMPLIANCE and t.high == pytest.approx(1 / 30e3)
+    assert Design.of(soft).solved_member() == soft.member
+
+
+@pytest.mark.parametrize(
+    ("support", "tolerances", "key"),
+    [
+        ("", '"member.colour" = "5 %"', "tolerances.member.colour"),
+        ("", '"member.section.wall" = "5 kg"', "tolerances.member.section.wall"),
+        ("", '"member.section.wall" = "150 %"', "tolerances.member.section.wall"),
+        ("", '"member.section.wall" = "3 mm"', "tolerances.member.section.wall"),
+        ("", '"mass[0].mass" = ["2.6 kg", "2.8 kg"]', "tolerances.mass[0].mass"),
+        ("", '"mass[1].mass" = "5 %"', "tolerances.mass[1].mass"),
+        ("", '"member.section.wall" = 5', "tolerances.member.section.wall"),
+        ("", '"supports.left_rotational_stiffness" = "5 %"',
+         "tolerances.supports.left_rotational_stiffness"),
+        ('right_rotational_stiffness = "1 kN*m/rad"', "", "supports.right_rotational_stiffness"),
+        ('left_stiffness = ["1 kN/m", "2 kN/m"]', "", "supports.left_stiffness"),
+        ('left_stiffness = "-1 kN/m"', "", "supports.left_stiffness"),
+        ('left_stiffness = "1 kg"', "", "supports.left_stiffness"),
+        ("left_stifness = \"1 kN/m\"", "", "supports.left_stifness"),
+    ],
+)  # fmt: skip
+def test_bad_entries_name_their_key(support: str, tolerances: str, key: str) -> None:
+    with pytest.raises(InputError) as err:
+        _sheet(support, tolerances)
+    assert err.value.key == key, err.value.message
