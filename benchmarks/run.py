@@ -234,6 +234,26 @@ def bench_directions(repeat: int) -> list[tuple[str, float, float | None, str]]:
     return rows
 
 
+def bench_excitations(repeat: int) -> list[tuple[str, float, float | None, str]]:
+    """The margin table and forced response against the same solve without them.
+
+    The example with excitations (two excitations, three lines, a criterion, a force and a
+    damping ratio) analysed in full, and the same worksheet with its ``[[excitation]]`` and
+    ``[response]`` tables taken out, timed in turn; the goal is at most 10 % more.
+    """
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.worksheet import from_data, load
+
+    sheet = load(ROOT / "worksheets" / "excitations" / "pump-span.toml")
+    bare = {k: v for k, v in sheet.data.items() if k not in ("excitation", "response")}
+    plain = from_data(bare)
+    without, with_them = interleaved_medians(
+        [lambda: analyse(plain), lambda: analyse(sheet)], max(4 * repeat, 10)
+    )
+    return [("warm solve with margin table and forced response / without: pump span",
+             with_them / without, 1.10, "ratio")]  # fmt: skip
+
+
 def bench_growth(sizes: list[int]) -> list[tuple[str, float, float | None, str]]:
     """fe.solve time against the number of attachments, with the fitted growth exponent."""
     import numpy as np
@@ -408,6 +428,7 @@ def main() -> int:
     rows += bench_cold(1 if args.quick else 5)
     rows += bench_warm_ratio(repeat)
     rows += bench_directions(repeat)
+    rows += bench_excitations(repeat)
     rows += bench_growth([10, 30, 100] if args.quick else [10, 30, 100, 300, 1000, 3000, 5000])
     rows += [(*r, "s") for r in bench_sizing(repeat, 100 if args.quick else 2000)]
     rows += [(*r, "s") for r in bench_app(3 if args.quick else 15)]
