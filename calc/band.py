@@ -54,6 +54,7 @@ CORNERS = "corners"
 SAMPLED = "corners and sampling"
 _BAND_TOLERANCE = 0.01  # of the first-order width
 _SEED = 20261202
+EULER_BERNOULLI = "euler-bernoulli"
 
 
 @dataclass(frozen=True)
@@ -136,7 +137,9 @@ class BandResult:
     modes : tuple of ModeBand
         Depth-plane modes first, then every other computed direction's.
     tolerances : tuple of Tolerance
-    sensitivities : Sensitivities
+    sensitivities : Sensitivities or None
+        First-order sensitivities of the depth plane (None for a bending theory other than
+        Euler-Bernoulli: its bands come from the check solves).
     solves : int
         Full finite-element solves made by the check (0 when not checked).
     notes : tuple of str
@@ -148,7 +151,7 @@ class BandResult:
 
     modes: tuple[ModeBand, ...]
     tolerances: tuple[Tolerance, ...]
-    sensitivities: Sensitivities
+    sensitivities: Sensitivities | None
     solves: int
     notes: tuple[str, ...]
     tighten: tuple[str, ...] = ()
@@ -278,28 +281,26 @@ def band(
     BandResult
     """
     tolerances = tuple(tolerances)
-    sens = sensitivities(design, result, tolerances)
-    dfdp = sens.frequency_derivatives
-    elast = sens.elasticities
     low = np.array([t.low for t in tolerances])
     high = np.array([t.high for t in tolerances])
     nominal = np.array([t.nominal for t in tolerances])
-    down = np.minimum(dfdp * (low - nominal), dfdp * (high - nominal))
-    up = np.maximum(dfdp * (low - nominal), dfdp * (high - nominal))
-    f0 = sens.frequencies_hz
-    fo_low = f0 + down.sum(axis=1)
-    fo_high = f0 + up.sum(axis=1)
-    contribution = dfdp * (high - low)
-    errors = np.array([m.estimated_error for m in result.modes])
     n_modes = len(result.modes)
-    others = _other_directions(directions)
+    # First-order sensitivities are those of Euler-Bernoulli elements; a member solved with
+    # another bending theory gets its depth-plane bands from the check solves as well.
+    first_order = getattr(design.solved_member(), "theory", EULER_BERNOULLI) == EULER_BERNOULLI
+    sens = sensitivities(design, result, tolerances) if first_order else None
+    fitted: list[tuple[str, tuple]] = [] if first_order else [("depth", result.modes)]
+    fitted += [(d.name, d.modes) for d in _other_directions(directions)]
+    check = check or not first_order
+    errors = np.array([m.estimated_error for m in result.modes])
     notes: list[str] = []
     checked: dict[str, np.ndarray] = {}
     solves = 0
     method = CORNERS
     worst_error = float(np.max(errors)) if len(errors) else 0.0
     points = np.empty((0, len(tolerances)))
-    if (check or others) and tolerances:
+    dfdp = sens.frequency_derivatives if sens is not None else np.zeros((n_modes, len(low)))
+    if (check or fitted) and tolerances:
         if 2 ** len(tolerances) <= MAX_CORNERS:
             points = corner_values(tolerances)
         else:
@@ -312,7 +313,7 @@ def band(
             points = np.unique(
                 np.concatenate([extreme, latin_hypercube(tolerances, count)], axis=0), axis=0
             )
-        names = ("depth", *(d.name for d in others))
+        names = ("depth", *(name for name, _ in fitted if name != "depth"))
         checked, worst = _solve_points(design, tolerances, points, n_modes, names)
         worst_error = max(worst_error, worst)
         solves = len(points)
@@ -324,37 +325,15 @@ def band(
         notes.append("depth-plane bands are first order only (not checked by full solves)")
     notes.append("the tolerances are the user's; the band covers only the inputs given")
     out = []
-    for i in range(n_modes):
-        fo = (float(fo_low[i]), float(fo_high[i]))
-        tol_hz = _BAND_TOLERANCE * (fo[1] - fo[0]) + 2.0 * worst_error * float(f0[i])
-        lo_hi = fo
-        used = FIRST_ORDER
-        chk = None
-        moves = contribution[i]
-        if check and "depth" in checked:
-            col = checked["depth"][:, i]
-            chk = (float(min(col.min(), f0[i])), float(max(col.max(), f0[i])))
-            if abs(chk[0] - fo[0]) > tol_hz or abs(chk[1] - fo[1]) > tol_hz:
-                lo_hi = chk
-                used = method
-                moves = _main_effects(tolerances, points, checked["depth"][:, i : i + 1])[0]
-        out.append(
-            ModeBand(
-                number=result.modes[i].number,
-                frequency_hz=float(f0[i]),
-                low_hz=lo_hi[0],
-                high_hz=lo_hi[1],
-                method=used,
-                first_order=fo,
-                checked=chk,
-                tolerance_hz=tol_hz,
-                effects=_effects(tolerances, float(f0[i]), moves, elast[i]),
-            )
-        )
-    for d in others:
-        freqs = checked[d.name]
+    if sens is not None:
+        out += _first_order_bands(
+            result, tolerances, sens, checked.get("depth") if check else None, points,
+            method, worst_error,
+        )  # fmt: skip
+    for name, modes in fitted:
+        freqs = checked[name]
         slope = _main_effects(tolerances, points, freqs)
-        for i, m in enumerate(d.modes[:n_modes]):
+        for i, m in enumerate(modes[:n_modes]):
             col = freqs[:, i]
             col = col[np.isfinite(col)]
             lo = float(min(col.min(), m.frequency_hz)) if len(col) else m.frequency_hz
@@ -373,16 +352,23 @@ def band(
                     checked=(lo, hi),
                     tolerance_hz=2.0 * worst_error * m.frequency_hz,
                     effects=_effects(tolerances, m.frequency_hz, slope[i], el),
-                    direction=d.name,
+                    direction=name,
                 )
             )
+    if not first_order:
+        notes.append(
+            "first-order sensitivities are those of Euler-Bernoulli bending: with the shear "
+            "(Timoshenko) model every band comes from the check solves, elasticities and "
+            "contributions from the least-squares plane through them"
+        )
+    others = [name for name, _ in fitted if name != "depth"]
     if others:
         notes.append(
             "width-plane, torsion and axial bands come from the check solves; their "
             "contributions from the least-squares plane through them (not first order)"
         )
     replaced = [b.number for b in out if b.direction == "depth" and b.method != FIRST_ORDER]
-    if replaced:
+    if replaced and sens is not None:
         notes.insert(
             0,
             "first order was off by more than the band's tolerance for depth-plane mode"
@@ -391,6 +377,59 @@ def band(
             + ": the checked band is reported",
         )
     return BandResult(tuple(out), tolerances, sens, solves, tuple(notes))
+
+
+def _first_order_bands(
+    result: FEResult,
+    tolerances: tuple[Tolerance, ...],
+    sens: Sensitivities,
+    checked: np.ndarray | None,
+    points: np.ndarray,
+    method: str,
+    worst_error: float,
+) -> list[ModeBand]:
+    """Depth-plane bands from the sensitivities, replaced by the check where first order is
+    off by more than the band's tolerance."""
+    dfdp = sens.frequency_derivatives
+    elast = sens.elasticities
+    low = np.array([t.low for t in tolerances])
+    high = np.array([t.high for t in tolerances])
+    nominal = np.array([t.nominal for t in tolerances])
+    down = np.minimum(dfdp * (low - nominal), dfdp * (high - nominal))
+    up = np.maximum(dfdp * (low - nominal), dfdp * (high - nominal))
+    f0 = sens.frequencies_hz
+    fo_low = f0 + down.sum(axis=1)
+    fo_high = f0 + up.sum(axis=1)
+    contribution = dfdp * (high - low)
+    out = []
+    for i in range(len(result.modes)):
+        fo = (float(fo_low[i]), float(fo_high[i]))
+        tol_hz = _BAND_TOLERANCE * (fo[1] - fo[0]) + 2.0 * worst_error * float(f0[i])
+        lo_hi = fo
+        used = FIRST_ORDER
+        chk = None
+        moves = contribution[i]
+        if checked is not None:
+            col = checked[:, i]
+            chk = (float(min(col.min(), f0[i])), float(max(col.max(), f0[i])))
+            if abs(chk[0] - fo[0]) > tol_hz or abs(chk[1] - fo[1]) > tol_hz:
+                lo_hi = chk
+                used = method
+                moves = _main_effects(tolerances, points, checked[:, i : i + 1])[0]
+        out.append(
+            ModeBand(
+                number=result.modes[i].number,
+                frequency_hz=float(f0[i]),
+                low_hz=lo_hi[0],
+                high_hz=lo_hi[1],
+                method=used,
+                first_order=fo,
+                checked=chk,
+                tolerance_hz=tol_hz,
+                effects=_effects(tolerances, float(f0[i]), moves, elast[i]),
+            )
+        )
+    return out
 
 
 def _other_directions(directions: Directions | None) -> list[Direction]:

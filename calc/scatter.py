@@ -185,6 +185,7 @@ class _Template:
 
 def _signature(member: Member) -> tuple[object, ...]:
     return (
+        getattr(member, "theory", "euler-bernoulli"),
         member.left,
         member.right,
         tuple(s.kind for s in member.inner_supports),
@@ -228,9 +229,12 @@ def _solve_chunk(template: _Template, points: np.ndarray) -> tuple[np.ndarray, i
     out = np.empty((len(points), template.modes))
     batch: list[tuple[int, Member]] = []
     alone = 0
+    # The stacked solver assembles Euler-Bernoulli elements; another bending theory is
+    # solved sample by sample by the full solver.
+    stacked = template.signature[0] == "euler-bernoulli"
     for i, point in enumerate(points):
         member = vary_within(template.design, template.tolerances, point)
-        if _signature(member) == template.signature:
+        if stacked and _signature(member) == template.signature:
             batch.append((i, member))
         else:
             out[i] = fe.solve(member, template.modes, accuracy=STUDY_ACCURACY).frequencies_hz

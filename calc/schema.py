@@ -483,7 +483,17 @@ def pattern(key: str) -> str:
 
 
 def find(key: str) -> Entry | None:
-    """The entry of a key path or pattern, or None where the worksheet has no such key."""
+    """The entry of a key path or pattern, or None where the worksheet has no such key.
+
+    ``tolerances.KEY`` (an entry of the ``[tolerances]`` table) is found where ``KEY`` is a
+    quantity: a text entry, read by :func:`calc.tolerances.read_tolerances`.
+    """
+    if key.startswith("tolerances.") and key != "tolerances.":
+        target = _entries().get(pattern(key[len("tolerances.") :]))
+        if target is None or target.kind != QUANTITY:
+            return None
+        return Entry(pattern(key), TEXT, f"tolerance of {target.label}",
+                     f'the range of {target.label}: "5 %", plus or minus, or [low, high]')  # fmt: skip
     return _entries().get(pattern(key))
 
 

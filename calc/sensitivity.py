@@ -338,6 +338,12 @@ def sensitivities(
         For a key the design has no quantity at.
     """
     member = design.solved_member()
+    theory = getattr(member, "theory", "euler-bernoulli")
+    if theory != "euler-bernoulli":
+        raise InputError(
+            "member.theory", theory, "Euler-Bernoulli bending for first-order sensitivities "
+            "(calc.band takes other theories' bands from full solves)",
+        )  # fmt: skip
     modes = result.modes
     x = modes[0].x
     w = np.column_stack([md.w_modal for md in modes])

@@ -53,8 +53,10 @@ def test_table_rows_scale_with_depth() -> None:
     assert rows[1].values["member.section.depth"] == pytest.approx(0.016)
     result = solve_table(sheet, rows, engine="local")
     thin, thick, mid = (r.frequencies_hz[0] for r in result.rows)
-    assert thick / thin == pytest.approx(2.0, rel=1e-6)  # f ~ depth
-    assert mid / thin == pytest.approx(1.5, rel=1e-6)
+    # f ~ depth in Euler-Bernoulli bending; shear deformation and rotary inertia (where the
+    # worksheet's theory includes them) lower the 16 mm bar, 50 depths long, by under 0.1 %
+    assert thick / thin == pytest.approx(2.0, rel=1e-3)
+    assert mid / thin == pytest.approx(1.5, rel=1e-3)
     assert result.keys == ("member.section.depth",)
 
 

@@ -22,6 +22,7 @@ import pytest
 from beamtone.calc import fe, worksheet
 from beamtone.calc.sensitivity import element_forms, sensitivities
 from beamtone.calc.tolerances import COMPLIANCE, Design, Tolerance, nominal_value, vary
+from tests.calc.bending import euler_bernoulli
 
 _ROOT = __import__("pathlib").Path(__file__).resolve().parents[2]
 
@@ -33,9 +34,10 @@ def _tol(design: Design, key: str, rel: float = 0.01) -> Tolerance:
 
 
 def _rectangle_cantilever(left: str = "clamped", right: str = "free") -> Design:
-    return Design.of(
-        worksheet.loads(
-            f"""format = 1
+    return euler_bernoulli(
+        Design.of(
+            worksheet.loads(
+                f"""format = 1
 [member]
 length = "1 m"
 material = "steel"
@@ -44,6 +46,7 @@ section = {{ shape = "rectangle", width = "50 mm", depth = "10 mm" }}
 left = "{left}"
 right = "{right}"
 """
+            )
         )
     )
 
@@ -82,7 +85,7 @@ def test_fox_kapoor_against_differences_of_full_solves(sheet: str, keys: list[st
     # Fox and Kapoor (1968) against central differences of full solves (step 1e-4 relative;
     # the difference's own error is about 1e-8 relative, the FE accuracy 1e-6).
     loaded = worksheet.load(_ROOT / "worksheets" / sheet)
-    design = Design.of(loaded)
+    design = euler_bernoulli(Design.of(loaded))
     modes = min(loaded.modes, 3)
     result = fe.solve(design.solved_member(), modes)
     tols = [_tol(design, k) for k in keys]
@@ -105,7 +108,7 @@ def test_an_attachment_moving_along_the_member() -> None:
     # Against one-sided second-order differences of full solves (steps 3e-4 and 1e-3 m
     # agree to 3e-6: the difference's own error).
     loaded = worksheet.load(_ROOT / "worksheets" / "sensor-mast.toml")
-    design = Design.of(loaded)
+    design = euler_bernoulli(Design.of(loaded))
     result = fe.solve(design.solved_member(), 2)
     s = sensitivities(design, result, [Tolerance("mass[0].at", 1.2, 1.1, 1.2)])
     lam = np.array([m.omega**2 for m in result.modes])
@@ -134,9 +137,10 @@ def test_compliance_at_rigid_is_minus_the_reaction_squared() -> None:
 def test_springs_masses_and_axial_force_are_exact() -> None:
     # K and M are linear in these: the derivative is the mode's own energy term exactly,
     # e.g. d lambda / dk = w(a)^2 and d lambda / dM = -lambda w(a)^2 (Fox and Kapoor).
-    design = Design.of(
-        worksheet.loads(
-            """format = 1
+    design = euler_bernoulli(
+        Design.of(
+            worksheet.loads(
+                """format = 1
 [member]
 length = "1.5 m"
 material = "steel"
@@ -154,6 +158,7 @@ at = "1.5 m"
 stiffness = "200 kN/m"
 rotational_stiffness = "300 N*m/rad"
 """
+            )
         )
     )
     member = design.member
