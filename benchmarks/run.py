@@ -254,6 +254,66 @@ def bench_excitations(repeat: int) -> list[tuple[str, float, float | None, str]]
              with_them / without, 1.10, "ratio")]  # fmt: skip
 
 
+def bench_tolerances(
+    repeat: int, samples: int, cluster: bool
+) -> list[tuple[str, float, float | None, str]]:
+    """Tolerance bands and scatter studies (issue 19) on the sensor mast with tolerances.
+
+    First-order bands and sensitivities (Euler-Bernoulli bending, what they are derived
+    for) on top of the plain analysis, against the plain analysis, timed in turn: goal at
+    most 1.3x.  The checked bands of every direction (corner solves) against the plain
+    analysis, for information.  A scatter study of ``samples`` samples with the default
+    engine (goal under 30 s for 10,000), and, with ``cluster``, the same study on a local
+    dask cluster: the largest difference of its percentiles from the local run (goal 0).
+    """
+    from dataclasses import fields, replace
+
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.band import band
+    from beamtone.calc.scatter import scatter
+    from beamtone.calc.tolerances import Design
+    from beamtone.calc.worksheet import from_data, load
+
+    sheet = load(ROOT / "worksheets" / "excitations" / "sensor-mast-tolerances.toml")
+    if "theory" in {f.name for f in fields(sheet.member)}:
+        bending = replace(sheet.member, theory="euler-bernoulli")
+        sheet = replace(sheet, member=bending, rigid_member=None)
+    bare = {k: v for k, v in sheet.data.items() if k != "tolerances"}
+    bare["supports"] = {k: v for k, v in bare["supports"].items() if "stiffness" not in k}
+    plain = replace(from_data(bare), member=sheet.member)
+    design = Design.of(sheet)
+    tols = [t for t in sheet.tolerances if t.measure == "value"]
+
+    def first_order() -> None:
+        a = analyse(plain)
+        band(design, a.modes, tols, check=False)
+
+    base, with_bands = interleaved_medians(
+        [lambda: analyse(plain), first_order], max(4 * repeat, 10)
+    )
+    checked = median_time(lambda: analyse(sheet), max(repeat // 2, 2))
+    rows: list[tuple[str, float, float | None, str]] = [
+        ("first-order bands and sensitivities / plain analysis: sensor mast, 3 inputs",
+         with_bands / base, 1.3, "ratio"),
+        ("checked bands of every direction (16 corners) / plain analysis: sensor mast",
+         checked / base, None, "ratio"),
+    ]  # fmt: skip
+    start = time.perf_counter()
+    local = scatter(design, sheet.tolerances, 5, samples)
+    took = time.perf_counter() - start
+    goal = 30.0 if samples >= 10_000 else None
+    rows.append((f"scatter, {samples} samples, 4 inputs, 5 modes ({local.engine})", took, goal,
+                 "s"))  # fmt: skip
+    if cluster:
+        import numpy as np
+
+        on_dask = scatter(design, sheet.tolerances, 5, samples, engine="dask", workers=2)
+        diff = float(np.max(np.abs(on_dask.percentiles - local.percentiles)))
+        rows.append(("  the same on a local dask cluster: largest percentile difference [Hz]",
+                     diff, 0.0, "number"))  # fmt: skip
+    return rows
+
+
 def bench_growth(sizes: list[int]) -> list[tuple[str, float, float | None, str]]:
     """fe.solve time against the number of attachments, with the fitted growth exponent."""
     import numpy as np
@@ -429,6 +489,7 @@ def main() -> int:
     rows += bench_warm_ratio(repeat)
     rows += bench_directions(repeat)
     rows += bench_excitations(repeat)
+    rows += bench_tolerances(repeat, 500 if args.quick else 10_000, not args.quick)
     rows += bench_growth([10, 30, 100] if args.quick else [10, 30, 100, 300, 1000, 3000, 5000])
     rows += [(*r, "s") for r in bench_sizing(repeat, 100 if args.quick else 2000)]
     rows += [(*r, "s") for r in bench_app(3 if args.quick else 15)]
