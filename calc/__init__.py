@@ -6,7 +6,7 @@ is defined)::
     sheet = load("worksheets/machine-span.toml")   # or loads(text); InputError on bad input
     analysis = analyse(sheet)        # every method: FE modes, handbook, Rayleigh, Dunkerley ...
     size_for_target(...), size_for_excitation(...), sweep(...), sweep2(...), margins(...)
-    worksheet_groups(sheet), worksheet_master_curve(sheet, ...), pi_groups(...)
+    worksheet_groups(sheet), worksheet_master_curve(sheet, ...), variable_groups(["f=Hz", ...])
     save_record(path, analysis), verify(sheet)     # the stored [record] and its check
     report_data(sheet)               # the calculation record's content, as plain data
 
@@ -70,6 +70,7 @@ __all__ = [
     "solve",
     "sweep",
     "sweep2",
+    "variable_groups",
     "verify",
     "worksheet_groups",
     "worksheet_master_curve",
@@ -93,6 +94,7 @@ _LAZY = {
     "sweep2": "beamtone.calc.sizing",
     "margins": "beamtone.calc.sizing",
     "pi_groups": "beamtone.calc.groups",
+    "variable_groups": "beamtone.calc.groups",
     "worksheet_groups": "beamtone.calc.similitude",
     "worksheet_master_curve": "beamtone.calc.similitude",
     "read_record": "beamtone.calc.record",

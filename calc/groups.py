@@ -31,6 +31,7 @@ __all__ = [
     "parse_variables",
     "variable",
     "pi_groups",
+    "variable_groups",
     "formula",
 ]
 
@@ -603,3 +604,29 @@ def _one() -> sympy.Rational:
     import sympy
 
     return sympy.Rational(1)
+
+
+def variable_groups(items: list[str], repeating: list[str] | None = None) -> GroupsResult:
+    """The groups of variables given as ``"NAME=UNIT"`` text (the command line's and the app's
+    variable list): each item read by :func:`parse_variables` and :func:`variable`, then
+    :func:`pi_groups`.
+
+    Parameters
+    ----------
+    items : list of str
+        ``"NAME=UNIT"`` items, the wanted variable first.
+    repeating : list of str, optional
+        Names of the repeating variables (default: chosen as :func:`pi_groups` does).
+
+    Returns
+    -------
+    GroupsResult
+
+    Raises
+    ------
+    InputError
+        For an item that is not ``NAME=UNIT`` with a known unit, and for repeating variables
+        that cannot repeat.
+    """
+    pairs = parse_variables(items)
+    return pi_groups([variable(name, unit) for name, unit in pairs], repeating)

@@ -29,15 +29,13 @@ def run(args: argparse.Namespace) -> int:
 
 
 def _variables(args: argparse.Namespace, items: list[str]) -> int:
-    from beamtone.calc.groups import parse_variables, pi_groups, variable
+    from beamtone.calc import variable_groups
     from beamtone.render import groups as shown
 
-    pairs = parse_variables(items)
-    variables = [variable(name, unit) for name, unit in pairs]
     repeat = None
     if args.repeat:
         repeat = [n.strip() for n in args.repeat.split(",") if n.strip()]
-    result = pi_groups(variables, repeat)
+    result = variable_groups(items, repeat)
     if args.json:
         write_json(shown.variables_json(result))
     else:

@@ -59,7 +59,7 @@ class GroupsScreen(Screen[None]):
     @on(Input.Submitted, "#variables")
     @on(Input.Changed, "#variables")
     def _calculate(self, event: Input.Changed | Input.Submitted) -> None:
-        from beamtone.calc.groups import parse_variables, pi_groups, variable
+        from beamtone.calc import variable_groups
 
         out = self.query_one("#calculator", Static)
         items = event.value.split()
@@ -67,8 +67,7 @@ class GroupsScreen(Screen[None]):
             out.update("")
             return
         try:
-            pairs = parse_variables(items)
-            result = pi_groups([variable(n, u) for n, u in pairs])
+            result = variable_groups(items)
         except InputError as exc:
             out.update(f"[b red]{exc.message}[/]")
             out.set_class(True, "error")
