@@ -124,6 +124,10 @@ def summary(analysis: Analysis) -> RenderableType:
     if groups:
         lines.append("groups   ", style="bold")
         lines.append(", ".join(f"{g.expression} = {g.value:.4g}" for g in groups) + "\n")
+    if analysis.margins is not None:  # the worksheet's excitations (calc.excitation)
+        verdict = analysis.margins.verdict
+        lines.append("verdict  ", style="bold")
+        lines.append(verdict.text + "\n", style="bold" if verdict.clear else "bold red")
     for w in analysis.warnings:
         lines.append(f"! {w}\n", style="yellow")
     return Group(table, lines)
