@@ -132,9 +132,11 @@ class Entry:
         """The last part of the pattern (``"at"`` for ``"mass[].at"``)."""
         return self.pattern.rsplit(".", 1)[-1].removesuffix("[]")
 
-    def parse(self, text: object, key: str) -> float:
+    def parse(self, text: object, key: str, length: float | None = None) -> float:
         """A quantity as written to SI [``dimension.si_unit``], with this entry's limits (a
         frequency in cycles per second, ``"1480 rpm"`` -> 24.67 Hz: units.parse_frequency).
+        A position may be written from the right end (``"right end"``, ``"150 mm from the
+        right end"``: :mod:`calc.positions`), read with the member's ``length`` [m].
 
         Raises
         ------
@@ -143,6 +145,12 @@ class Entry:
         """
         assert self.dimension is not None, self.pattern
         from beamtone.calc.units import FREQUENCY, parse_frequency
+
+        if self.position:
+            from beamtone.calc.positions import from_right, resolve
+
+            if from_right(text) is not None:
+                return resolve(text, key, length)
 
         if self.dimension == FREQUENCY:  # cycles per second: rpm and rad/s divided by 2 pi
             return parse_frequency(text, key)

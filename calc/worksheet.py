@@ -240,14 +240,22 @@ def _choice(table: dict[str, Any], name: str, key: str, hints: dict[str, str] | 
     return value
 
 
-def _quantity(table: dict[str, Any], name: str, key: str, *, required: bool = True) -> float:
+def _quantity(
+    table: dict[str, Any],
+    name: str,
+    key: str,
+    *,
+    required: bool = True,
+    length: float | None = None,
+) -> float:
     """The quantity ``name`` of ``table`` (at ``key``) in SI, parsed with its schema entry's
-    dimension and limits; a missing required one is named with the entry's ``missing``."""
+    dimension and limits; a missing required one is named with the entry's ``missing``; a
+    position from the right end is read with the member's ``length`` [m]."""
     path = f"{key}.{name}"
     found = schema.entry(path)
     if required:
-        return found.parse(_required(table, name, key, found.missing), path)
-    return found.parse(table[name], path)
+        return found.parse(_required(table, name, key, found.missing), path, length)
+    return found.parse(table[name], path, length)
 
 
 def _table(value: object, key: str, what: str) -> dict[str, Any]:
@@ -292,10 +300,11 @@ def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Workshe
         "left and right end conditions",
     )
     segments, axial = _member(member_table)
-    left, right, inner = _supports(supports)
-    masses = tuple(_mass(t, f"mass[{i}]") for i, t in enumerate(_tables(
+    length = sum(s.length for s in segments)  # positions may be written from the right end
+    left, right, inner = _supports(supports, length)
+    masses = tuple(_mass(t, f"mass[{i}]", length) for i, t in enumerate(_tables(
         data.get("mass", []), "mass", "[[mass]] entries with at and mass")))  # fmt: skip
-    springs = tuple(_spring(t, f"spring[{i}]") for i, t in enumerate(_tables(
+    springs = tuple(_spring(t, f"spring[{i}]", length) for i, t in enumerate(_tables(
         data.get("spring", []), "spring", "[[spring]] entries with at and stiffness")))  # fmt: skip
     modes = _check(data.get("check", {}))
     estimate = _estimate(data.get("estimate", {}))
@@ -443,7 +452,7 @@ def _section(value: object, key: str) -> Section:
     return build_section(shape, dims, key)
 
 
-def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]]:
+def _supports(table: dict[str, Any], length: float) -> tuple[str, str, tuple[InnerSupport, ...]]:
     _keys(table, "supports")
     ends = []
     for side in ("left", "right"):
@@ -454,7 +463,7 @@ def _supports(table: dict[str, Any]) -> tuple[str, str, tuple[InnerSupport, ...]
     for i, item in enumerate(_tables(table.get("inner", []), "supports.inner", "{ at, kind }")):
         key = f"supports.inner[{i}]"
         _keys(item, key)
-        at = _quantity(item, "at", key)
+        at = _quantity(item, "at", key, length=length)
         kind = _choice(item, "kind", key)
         inner.append(InnerSupport(at, kind, _overrides(item, key, "")))
     return ends[0], ends[1], tuple(inner)
@@ -471,9 +480,9 @@ def _overrides(table: dict[str, Any], key: str, prefix: str) -> tuple[tuple[str,
     return tuple(out)
 
 
-def _mass(table: dict[str, Any], key: str) -> PointMass:
+def _mass(table: dict[str, Any], key: str, length: float) -> PointMass:
     _keys(table, key)
-    at = _quantity(table, "at", key)
+    at = _quantity(table, "at", key, length=length)
     mass = _quantity(table, "mass", key)
     inertia = 0.0
     if "rotary_inertia" in table:
@@ -502,9 +511,9 @@ def point_mass(
     return PointMass(at, mass, inertia, **more)
 
 
-def _spring(table: dict[str, Any], key: str) -> Spring:
+def _spring(table: dict[str, Any], key: str, length: float) -> Spring:
     _keys(table, key)
-    at = _quantity(table, "at", key)
+    at = _quantity(table, "at", key, length=length)
     k = kr = 0.0
     if "stiffness" in table:
         k = _quantity(table, "stiffness", key, required=False)
@@ -569,7 +578,7 @@ def _excitations(value: object, length: float) -> tuple[Excitation, ...]:
         force = force_at = None
         if "force" in table or "force_at" in table:
             force = _quantity(table, "force", key)
-            force_at = _quantity(table, "force_at", key)
+            force_at = _quantity(table, "force_at", key, length=length)
             if not -1e-9 * length <= force_at <= length * (1 + 1e-9):
                 raise InputError(
                     f"{key}.force_at", table["force_at"],
