@@ -313,6 +313,7 @@ def build(
     margins: MarginCheck | None = None,
     verification: Verification | None = None,
     now: _dt.datetime | None = None,
+    study: object | None = None,
 ) -> Report:
     """The content of the calculation record of an analysis.
 
@@ -329,6 +330,8 @@ def build(
         The outcome of verifying the worksheet's stored record, where it has one.
     now : datetime, optional
         The date to state (default: now, UTC).
+    study : scatter.ScatterResult, optional
+        A sampled study over the worksheet's tolerances, shown with its histogram.
 
     Returns
     -------
@@ -358,6 +361,7 @@ def build(
         Section("Assumptions", _assumptions(analysis)),
         Section("Methods and formulas", _methods(analysis)),
         Section("Results", (*_results(analysis), *directions_report.blocks(analysis))),
+        *_tolerance_section(analysis, study),
         Section("Cross-checks", _checks(analysis, verification)),
         Section("Dimensional groups", _groups(analysis)),
         Section("Excitation margins", _excitation_blocks(analysis, margins)),
@@ -372,6 +376,15 @@ def build(
     )  # fmt: skip
 
 
+def _tolerance_section(analysis: Analysis, study: object | None) -> tuple[Section, ...]:
+    """The tolerance bands (calc.band_report), where the worksheet has tolerances."""
+    if analysis.bands is None:
+        return ()
+    from beamtone.calc.band_report import band_blocks
+
+    return (Section("Tolerance bands", band_blocks(analysis.bands, study)),)
+
+
 def report_data(
     sheet: Worksheet,
     *,
@@ -381,6 +394,7 @@ def report_data(
     source: str | None = None,
     caution: str = CAUTION,
     now: _dt.datetime | None = None,
+    samples: int | None = None,
 ) -> Report:
     """Solve a worksheet and return the content of its calculation record.
 
@@ -401,6 +415,9 @@ def report_data(
         The worksheet's name as the reader should see it.
     caution : str
     now : datetime, optional
+    samples : int, optional
+        Also run a sampled study of this many samples over the worksheet's tolerances
+        (:func:`calc.scatter.scatter`) and show its percentiles and histogram.
 
     Returns
     -------
@@ -427,6 +444,16 @@ def report_data(
     verification = None
     if stored is not None:
         verification = record.verify(sheet, analysis if as_recorded else None)
+    study = None
+    if samples is not None:
+        from beamtone.calc.errors import InputError
+        from beamtone.calc.scatter import scatter
+        from beamtone.calc.tolerances import Design
+
+        if not sheet.tolerances:
+            raise InputError("--scatter", samples, "a worksheet with tolerances to sample")
+        study = scatter(Design.of(sheet), sheet.tolerances, analysis.modes.frequencies_hz.size,
+                        samples)  # fmt: skip
     return build(
         analysis,
         caution=caution,
@@ -434,6 +461,7 @@ def report_data(
         margins=check,
         verification=verification,
         now=now,
+        study=study,
     )
 
 

@@ -113,6 +113,8 @@ def build_parser() -> argparse.ArgumentParser:
     report.add_argument("--margin", metavar="PCT", help="band half-width (default 20%%)")
     report.add_argument("--modes", type=_positive_int(50, "modes"), help="default: worksheet's")
     report.add_argument("--elements", type=_positive_int(20_000, "elements"), metavar="N")
+    report.add_argument("--scatter", type=_positive_int(1_000_000, "samples"), metavar="N",
+                        help="add a sampled study of the tolerances (histogram)")  # fmt: skip
 
     groups = commands.add_parser(
         "groups",

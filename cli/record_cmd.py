@@ -148,6 +148,7 @@ def report(args: argparse.Namespace) -> int:
         elements=args.elements,
         excitation=_excitation(args),
         source=args.file,
+        samples=getattr(args, "scatter", None),
     )
     doc = render(content)
     if args.html:

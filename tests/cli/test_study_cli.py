@@ -69,3 +69,16 @@ def test_batch_table_and_bad_input(tmp_path) -> None:  # noqa: ANN001
         'left_rotational_stiffness = ["30 kN*m/rad", "rigid"]\n', ""))  # fmt: skip
     none = _run("scatter", str(plain), "--samples", "10")
     assert none.returncode == 2 and "tolerances" in none.stderr
+
+
+def test_report_shows_the_bands_and_a_histogram(tmp_path) -> None:  # noqa: ANN001
+    sheet = tmp_path / "mast.toml"
+    sheet.write_text(_SHEET)
+    out = _run("report", str(sheet), "-o", str(tmp_path / "mast.md"), "--scatter", "40")
+    assert out.returncode == 0, out.stderr
+    text = (tmp_path / "mast.md").read_text()
+    assert (
+        "Tolerance bands" in text
+        and "| mode 1 [Hz] | samples | histogram |".replace("[", "\\[").replace("]", "\\]") in text
+    )
+    assert "tolerances are the user's" in text
