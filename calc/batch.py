@@ -140,7 +140,13 @@ def read_table(sheet: Worksheet, text: str) -> list[TableRow]:
             raise InputError("table", cell, "a key path, optionally with [unit]")
         key, unit = m.group("key"), m.group("unit")
         if key != "name":
-            nominal_value(design, key)  # a quantity this worksheet has
+            try:
+                nominal_value(design, key)  # a quantity this worksheet has
+            except InputError as exc:
+                raise InputError(
+                    "table", cell, "a header of key paths of this worksheet's quantities",
+                    exc.hint or exc.expected,
+                ) from None  # fmt: skip
         columns.append((key, unit))
     if not any(k != "name" for k, _ in columns):
         raise InputError("table", ",".join(header), "at least one column with a key path")
