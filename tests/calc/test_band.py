@@ -136,3 +136,27 @@ def test_latin_hypercube_strata() -> None:
     for j, t in enumerate(tols):
         strata = np.floor((pts[:, j] - t.low) / (t.high - t.low) * 50).astype(int)
         assert sorted(strata) == list(range(50))
+
+
+def test_the_verdict_holds_over_the_band() -> None:
+    # The nominal fundamental (about 16.3 Hz) clears the band 18.9-23.1 Hz around a 21 Hz line;
+    # with Young's modulus anywhere from -10 % to +60 % the mode reaches 16.3 sqrt(1.6) =
+    # 20.7 Hz (f ~ sqrt(E), dimensional analysis), inside it: not clear, E named to tighten.
+    from beamtone.calc.analysis import analyse
+
+    text = (_ROOT / "worksheets" / "sensor-mast.toml").read_text()
+    text += (
+        '\n[tolerances]\n"member.material.youngs_modulus" = ["-10 %", "+60 %"]\n'
+        '\n[[excitation]]\nname = "fan"\nfrequency = "21 Hz"\nmargin = "10 %"\n'
+    )
+    analysis = analyse(worksheet.loads(text))
+    first = next(b for b in analysis.bands.modes if b.direction == "depth" and b.number == 1)
+    assert first.frequency_hz < 18.9 < first.high_hz
+    assert math.isclose(first.high_hz, first.frequency_hz * math.sqrt(1.6), rel_tol=1e-4)
+    assert analysis.margins is not None and not analysis.margins.verdict.clear
+    assert any("member.material.youngs_modulus" in t for t in analysis.bands.tighten)
+    # without the tolerance the same member is clear of that line
+    plain = analyse(worksheet.loads(text.split("[tolerances]")[0] + text.split('+60 %"]\n')[1]))
+    assert plain.margins is not None and plain.bands is None
+    rows = [r for r in plain.margins.rows if r.mode == 1 and r.order == 1.0]
+    assert all(r.clear for r in rows)
