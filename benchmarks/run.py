@@ -234,6 +234,40 @@ def bench_directions(repeat: int) -> list[tuple[str, float, float | None, str]]:
     return rows
 
 
+def bench_theory(repeat: int) -> list[tuple[str, float, float | None, str]]:
+    """Timoshenko against Euler-Bernoulli bending (issue 17), on the example worksheets.
+
+    The same worksheet analysed under ``theory = "timoshenko"`` and ``"euler-bernoulli"``
+    (``analyse``, timed in turn; goal at most 1.5x).  Both analyses solve each bending plane by
+    both theories (the output shows both), so the finite-element solve of the depth plane
+    alone, Timoshenko's (three meshes, extrapolated) against Euler-Bernoulli's (two meshes),
+    is shown beside it with the same goal.
+    """
+    from dataclasses import replace
+
+    from beamtone.calc import fe
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.worksheet import load
+
+    rows = []
+    for path in sorted((ROOT / "worksheets").glob("*.toml")):
+        sheet = load(path)
+        timo = replace(sheet, member=replace(sheet.member, theory="timoshenko"))
+        eb = replace(sheet, member=replace(sheet.member, theory="euler-bernoulli"))
+        t_eb, t_timo = interleaved_medians(
+            [lambda s=eb: analyse(s), lambda s=timo: analyse(s)], max(2 * repeat, 6)
+        )
+        rows.append((f"warm solve, Timoshenko / Euler-Bernoulli analysis: {path.name}",
+                     t_timo / t_eb, 1.5, "ratio"))  # fmt: skip
+        f_eb, f_timo = interleaved_medians(
+            [lambda m=eb.member: fe.solve(m, 5), lambda m=timo.member: fe.solve(m, 5)],
+            max(4 * repeat, 10),
+        )
+        rows.append((f"depth-plane FE solve, Timoshenko / Euler-Bernoulli: {path.name}",
+                     f_timo / f_eb, 1.5, "ratio"))  # fmt: skip
+    return rows
+
+
 def bench_excitations(repeat: int) -> list[tuple[str, float, float | None, str]]:
     """The margin table and forced response against the same solve without them.
 
@@ -488,6 +522,7 @@ def main() -> int:
     rows += bench_cold(1 if args.quick else 5)
     rows += bench_warm_ratio(repeat)
     rows += bench_directions(repeat)
+    rows += bench_theory(repeat)
     rows += bench_excitations(repeat)
     rows += bench_tolerances(repeat, 500 if args.quick else 10_000, not args.quick)
     rows += bench_growth([10, 30, 100] if args.quick else [10, 30, 100, 300, 1000, 3000, 5000])

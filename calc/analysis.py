@@ -12,7 +12,8 @@ from dataclasses import dataclass, replace
 
 from beamtone.calc import excitation, fe, handbook, rayleigh, response, similitude
 from beamtone.calc.band import BandResult, tightening
-from beamtone.calc.directions import Directions, solve_directions
+from beamtone.calc.directions import Directions, _direction_modes, solve_directions
+from beamtone.calc.theories import TheoryPair, solve_pair
 from beamtone.calc.worksheet import Worksheet
 
 __all__ = ["Analysis", "analyse"]
@@ -45,6 +46,11 @@ class Analysis:
     bands : band.BandResult or None
         Each mode's band over the worksheet's tolerances, with ranked sensitivities (None
         without tolerances); the margins' verdict holds over the bands.
+    theories : theories.TheoryPair or None
+        The depth plane solved by both beam theories: ``modes`` is the chosen theory's; the
+        handbook, Rayleigh, Dunkerley and the bracket are Euler-Bernoulli results and are
+        compared with ``theories.euler_bernoulli``; excitation margins use the Timoshenko
+        modes (the more accurate ones).
     """
 
     sheet: Worksheet
@@ -60,6 +66,12 @@ class Analysis:
     response: response.ForcedResponse | None = None
     directions: Directions | None = None
     bands: BandResult | None = None
+    theories: TheoryPair | None = None
+
+    @property
+    def theory(self) -> str:
+        """The chosen beam theory (``"timoshenko"`` or ``"euler-bernoulli"``)."""
+        return self.sheet.member.theory
 
     @property
     def warnings(self) -> tuple[str, ...]:
@@ -109,25 +121,36 @@ def analyse(
     """
     member = sheet.member
     count = modes or sheet.modes
-    result = fe.solve(member, count, elements=elements)
+    pair = solve_pair(member, count, elements=elements)
+    result = pair.chosen
+    euler_bernoulli = pair.euler_bernoulli  # what the Euler-Bernoulli cross-checks compare with
+    bending = replace(member, theory="euler-bernoulli")  # Rayleigh, Ritz and Dunkerley's model
     check = handbook.check(member, count)
     directions = (
-        solve_directions(member, count, depth=result, depth_handbook=check, elements=elements)
+        solve_directions(
+            member,
+            count,
+            depth=result,
+            depth_handbook=check,
+            elements=elements,
+            depth_theories=pair,
+        )
         if every_direction
         else None
     )
     settings = sheet.estimate
     if settings.shape == "static":
-        estimate = rayleigh.rayleigh_static(member)
+        estimate = rayleigh.rayleigh_static(bending)
     else:
-        estimate = rayleigh.rayleigh_shape(member, settings.shape)
+        estimate = rayleigh.rayleigh_shape(bending, settings.shape)
     ritz = None
     if settings.shapes is not None:
         shapes = settings.shapes if isinstance(settings.shapes, int) else list(settings.shapes)
-        ritz = rayleigh.ritz(member, shapes)
-    lower = rayleigh.dunkerley(member)
+        ritz = rayleigh.ritz(bending, shapes)
+    lower = rayleigh.dunkerley(bending)
     bands = _bands(sheet, result, directions)
-    margins = excitation.check_member(sheet.excitations, result, directions, bands)
+    accurate, accurate_directions = _accurate(pair, directions)
+    margins = excitation.check_member(sheet.excitations, accurate, accurate_directions, bands)
     if bands is not None and margins is not None:
         bands = replace(bands, tighten=tightening(bands, margins))
     return Analysis(
@@ -137,16 +160,34 @@ def analyse(
         estimate=estimate,
         ritz=ritz,
         lower_bound=lower,
-        bracket=rayleigh.bracket(lower, result, estimate),
+        bracket=rayleigh.bracket(lower, euler_bernoulli, estimate),
         equivalent=rayleigh.equivalent_system(member, result, settings.reference),
         groups=similitude.member_groups(member, [m.omega for m in result.modes]),
         margins=margins,
         directions=directions,
         bands=bands,
+        theories=pair,
         response=None
         if sheet.damping_ratio is None or not sheet.excitations
         else response.forced_response(member, result, sheet.excitations, sheet.damping_ratio),
     )
+
+
+def _accurate(
+    pair: TheoryPair, directions: Directions | None
+) -> tuple[fe.FEResult, Directions | None]:
+    """The depth plane's and every direction's modes by the more accurate theory (Timoshenko
+    where it was solved), for the excitation margins."""
+    accurate = pair.accurate
+    if directions is None or accurate is pair.chosen:
+        return accurate, directions
+    swapped = []
+    for d in directions.directions:
+        if d.theories is not None and d.theories.accurate is not d.solution:
+            better = d.theories.accurate
+            d = replace(d, modes=_direction_modes(d.name, better), solution=better)
+        swapped.append(d)
+    return accurate, replace(directions, directions=tuple(swapped))
 
 
 def _bands(

@@ -25,14 +25,18 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass, replace
 
+import numpy as np
+
 from beamtone.calc import fe, handbook, rayleigh
 from beamtone.calc.closedforms import ClosedForm, fork_warping_closed_form, rod_closed_form
 from beamtone.calc.errors import InputError
 from beamtone.calc.fe.rod import RodProblem, RodResult, solve_rod
+from beamtone.calc.fe.timoshenko import segment_properties
 from beamtone.calc.materials import Material
 from beamtone.calc.model import InnerSupport, Member, PointMass, Segment, Spring
 from beamtone.calc.restraints import DIRECTIONS, Restraint, member_restraints
 from beamtone.calc.sections import Section
+from beamtone.calc.theories import TheoryPair, solve_pair
 
 __all__ = [
     "DIRECTIONS",
@@ -119,7 +123,9 @@ class Direction:
     estimate, lower_bound, bracket : rayleigh results or None
         For the width plane: Rayleigh's upper bound from the static deflection shape,
         Dunkerley's lower bound and the bracket of the FE fundamental (the depth plane's are
-        the analysis's own).
+        the analysis's own); Euler-Bernoulli results, bracketing the Euler-Bernoulli solve.
+    theories : theories.TheoryPair or None
+        A bending plane solved by both beam theories (``modes`` are the chosen theory's).
     """
 
     name: str
@@ -136,6 +142,7 @@ class Direction:
     estimate: rayleigh.RayleighEstimate | None = None
     lower_bound: rayleigh.DunkerleyBound | None = None
     bracket: rayleigh.Bracket | None = None
+    theories: TheoryPair | None = None
 
     @property
     def computed(self) -> bool:
@@ -232,6 +239,9 @@ def width_member(member: Member) -> Member | str:
             second_moment_width=sec.second_moment,
             depth=sec.width,
             width=sec.depth,
+            shear_area=sec.shear_area_width,
+            shear_area_width=sec.shear_area,
+            plane="width",
         )
         segments.append(replace(seg, section=turned))
     springs = tuple(
@@ -263,6 +273,7 @@ def width_member(member: Member) -> Member | str:
         springs,
         inner_supports,
         member.axial_force,
+        theory=member.theory,
     )
 
 
@@ -276,20 +287,27 @@ def _plain(member: Member) -> Member:
         tuple(Spring(s.at, s.stiffness, s.rotational_stiffness) for s in member.springs),
         tuple(InnerSupport(s.at, s.kind) for s in member.inner_supports),
         member.axial_force,
+        theory=member.theory,
     )
 
 
 def _same_bending(a: Member, b: Member) -> bool:
     """True where two bending members have the same stiffness, mass, supports and attachments."""
-    if (a.left, a.right, a.masses, a.springs, a.inner_supports, a.axial_force) != (
+    if (a.left, a.right, a.masses, a.springs, a.inner_supports, a.axial_force, a.theory) != (
         b.left,
         b.right,
         b.masses,
         b.springs,
         b.inner_supports,
         b.axial_force,
+        b.theory,
     ):
         return False
+    if a.theory == "timoshenko":
+        pa, pb = segment_properties(a), segment_properties(b)
+        assert pa is not None and pb is not None
+        if not (np.array_equal(pa[0], pb[0]) and np.array_equal(pa[1], pb[1])):
+            return False
     return all(
         sa.length == sb.length
         and sa.bending_stiffness == sb.bending_stiffness
@@ -435,6 +453,7 @@ def _width(
     depth: fe.FEResult,
     depth_handbook: handbook.HandbookCheck | None,
     elements: int | None,
+    depth_theories: TheoryPair | None = None,
 ) -> Direction:
     supports = _support_words(member, "width")
     turned = width_member(member)
@@ -455,9 +474,11 @@ def _width(
             ),  # fmt: skip
             warnings=depth.warnings,
             same_as="depth",
-            **_bounds(turned, depth),
+            theories=depth_theories,
+            **_bounds(turned, depth if depth_theories is None else depth_theories.euler_bernoulli),
         )
-    result = fe.solve(turned, count, elements=elements)
+    pair = solve_pair(turned, count, elements=elements)
+    result = pair.chosen
     return Direction(
         "width",
         _direction_modes("width", result),
@@ -466,12 +487,14 @@ def _width(
         handbook=handbook.check(turned, count),
         supports=supports,
         warnings=result.warnings,
-        **_bounds(turned, result),
+        theories=pair,
+        **_bounds(turned, pair.euler_bernoulli),
     )
 
 
 def _bounds(turned: Member, result: fe.FEResult) -> dict[str, object]:
     """Rayleigh (static deflection shape), Dunkerley and the bracket of a bending plane."""
+    turned = replace(turned, theory="euler-bernoulli")  # Euler-Bernoulli results all three
     estimate = rayleigh.rayleigh_static(turned)
     lower = rayleigh.dunkerley(turned)
     return {
@@ -592,6 +615,7 @@ def solve_directions(
     depth: fe.FEResult | None = None,
     depth_handbook: handbook.HandbookCheck | None | str = "",
     elements: int | None = None,
+    depth_theories: TheoryPair | None = None,
 ) -> Directions:
     """Solve every direction of a member.
 
@@ -606,6 +630,8 @@ def solve_directions(
         The depth plane's handbook check where already made (None: not a tabulated case).
     elements : int, optional
         Force the bending meshes (see :func:`calc.fe.solve`).
+    depth_theories : theories.TheoryPair, optional
+        The depth plane solved by both beam theories, where already done.
 
     Returns
     -------
@@ -631,8 +657,9 @@ def solve_directions(
             handbook=depth_handbook,
             supports=_support_words(member, "depth"),
             warnings=depth.warnings,
+            theories=depth_theories,
         ),
-        _width(member, modes, depth, depth_handbook, elements),
+        _width(member, modes, depth, depth_handbook, elements, depth_theories),
         _torsion(member, modes),
         _axial(member, modes),
     )

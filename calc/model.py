@@ -147,6 +147,10 @@ class Member:
     left_overrides, right_overrides : tuple of (str, str)
         (direction, kind) pairs an end sets for the width plane, torsion or axial motion
         (:mod:`calc.restraints`).
+    theory : str
+        The beam theory of the bending solve: ``"euler-bernoulli"`` (the default of the model;
+        the worksheet's default is ``"timoshenko"``), or ``"timoshenko"`` (shear deformation
+        and rotary inertia of the section, :mod:`calc.shear`).
 
     Raises
     ------
@@ -163,6 +167,7 @@ class Member:
     axial_force: float = 0.0
     left_overrides: tuple[tuple[str, str], ...] = ()
     right_overrides: tuple[tuple[str, str], ...] = ()
+    theory: str = "euler-bernoulli"
     _boundaries: tuple[float, ...] = field(init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
@@ -215,6 +220,8 @@ class Member:
 def _validate(member: Member) -> None:
     L = member.length
     tol = POSITION_TOLERANCE * L
+    if member.theory not in ("euler-bernoulli", "timoshenko"):
+        raise InputError("member.theory", member.theory, "timoshenko or euler-bernoulli")
     for key, kind in (("supports.left", member.left), ("supports.right", member.right)):
         if kind not in END_KINDS:
             raise InputError(key, kind, "one of " + ", ".join(END_KINDS))

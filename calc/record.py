@@ -389,6 +389,9 @@ class Record:
     elements : int or None
         The forced mesh (``solve --elements``), None for the automatic one.
     results : StoredResults
+    theory : str
+        The beam theory the results were solved with; ``"euler-bernoulli"`` for a record
+        written before beamtone had a choice (it has no ``theory`` key).
     """
 
     version: str
@@ -397,6 +400,7 @@ class Record:
     modes: int
     elements: int | None
     results: StoredResults
+    theory: str = "euler-bernoulli"
 
 
 # --- digest and version --------------------------------------------------------------------------
@@ -493,6 +497,7 @@ def build_record(
         modes=len(analysis.modes.modes),
         elements=elements,
         results=_stored_results(values),
+        theory=analysis.theory,
     )
 
 
@@ -525,6 +530,7 @@ def _table(record: Record) -> Any:
     table.add("modes", record.modes)
     if record.elements is not None:
         table.add("elements", record.elements)
+    table.add("theory", record.theory)
     table.add("results", _results_table(record.results))
     return table
 
@@ -821,6 +827,9 @@ def read_record(sheet: Worksheet) -> Record | None:
     if not isinstance(results, Mapping):
         raise _bad("results", results, "a table of results")
     stored = _read_results(results, modes)
+    theory = table.get("theory", "euler-bernoulli")  # before the choice: Euler-Bernoulli
+    if theory not in ("timoshenko", "euler-bernoulli"):
+        raise _bad("theory", theory, "timoshenko or euler-bernoulli")
     return Record(
         version=_text(table, "version", ""),
         written=_written(table.get("written")),
@@ -828,6 +837,7 @@ def read_record(sheet: Worksheet) -> Record | None:
         modes=modes,
         elements=elements,
         results=stored,
+        theory=theory,
     )
 
 
@@ -881,12 +891,17 @@ class Verification:
     digest_now : str
         Digest of the worksheet's inputs now.
     comparisons : tuple of Comparison
+    theory_note : str
+        Where the record was made under another beam theory than the worksheet now chooses
+        (a record written before the choice existed: Euler-Bernoulli), the sentence saying it
+        was verified under the record's theory; else "".
     """
 
     record: Record
     version_now: str
     digest_now: str
     comparisons: tuple[Comparison, ...]
+    theory_note: str = ""
 
     @property
     def inputs_unchanged(self) -> bool:
@@ -910,7 +925,12 @@ class Verification:
 
     @property
     def message(self) -> str:
-        """One sentence on the outcome."""
+        """One sentence on the outcome (and the theory it was verified under, where that is
+        not the worksheet's)."""
+        text = self._outcome()
+        return f"{text}; {self.theory_note}" if self.theory_note else text
+
+    def _outcome(self) -> str:
         when = f"written {self.record.written} with beamtone {self.record.version}"
         if not self.inputs_unchanged:
             text = f"the inputs changed since the record was written on {self.record.written}"
@@ -1056,6 +1076,18 @@ def verify(sheet: Worksheet, analysis: Analysis | None = None) -> Verification |
     record = read_record(sheet)
     if record is None:
         return None
+    note = ""
+    if record.theory != sheet.member.theory:
+        # solved again as the record was made: its results mean that theory's numbers
+        from dataclasses import replace
+
+        note = (
+            f"verified under the {record.theory} theory the record was made with (the "
+            f"worksheet now solves by the {sheet.member.theory} theory; solve --record writes "
+            "a record of that)"
+        )
+        sheet = replace(sheet, member=replace(sheet.member, theory=record.theory))
+        analysis = None
     if analysis is None:
         from beamtone.calc.analysis import analyse
 
@@ -1065,4 +1097,5 @@ def verify(sheet: Worksheet, analysis: Analysis | None = None) -> Verification |
         version_now=tool_version(),
         digest_now=inputs_digest(sheet.data),
         comparisons=compare(record, analysis),
+        theory_note=note,
     )

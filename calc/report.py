@@ -608,11 +608,27 @@ def _derived(analysis: Analysis) -> tuple[Block, ...]:
     )
 
 
+def _theory_assumption(analysis: Analysis) -> str:
+    """The beam theory of the bending solve, and what it leaves out (issue 17)."""
+    if analysis.theory == "timoshenko":
+        text = (
+            "Timoshenko bending in each plane: plane sections stay plane but not normal to the "
+            "axis; shear deformation (Cowper's shear coefficients) and the rotary inertia of "
+            "the section are included."
+        )
+    else:
+        text = (
+            "Euler-Bernoulli bending in each plane: plane sections stay plane and normal to the "
+            "axis; shear deformation and the rotary inertia of the section are neglected."
+        )
+    pair = analysis.theories
+    return text if pair is None or not pair.note() else f"{text} {pair.note()}."
+
+
 def _assumptions(analysis: Analysis) -> tuple[Block, ...]:
     member = analysis.sheet.member
     items = [
-        "Euler-Bernoulli bending in each plane: plane sections stay plane and normal to the "
-        "axis; shear deformation and the rotary inertia of the section are neglected.",
+        _theory_assumption(analysis),
         "Linear: small deflections, linear-elastic, isotropic and homogeneous material with "
         "the properties listed.",
         "Undamped free vibration: the natural frequencies are those of the undamped system.",

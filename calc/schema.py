@@ -212,6 +212,8 @@ SECTION_SHAPES: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
             "torsion_constant",
             "warping_constant",
             "polar_moment",
+            "shear_area",
+            "shear_area_width",
         ),
     ),  # fmt: skip
 }
@@ -240,6 +242,10 @@ _SECTION_FIELDS: dict[str, tuple[Dimension, str, str]] = {
                          "warping constant Cw of an open section (0 for solid and closed ones)"),
     "polar_moment": (SECOND_MOMENT, "polar moment",
                      "polar second moment Ip about the centroid (rho Ip: torsional inertia)"),
+    "shear_area": (AREA, "shear area",
+                   "shear area kappa A for bending in the depth plane (Timoshenko theory)"),
+    "shear_area_width": (AREA, "shear area, width",
+                         "shear area kappa A for bending in the width plane"),
 }  # fmt: skip
 
 
@@ -414,6 +420,7 @@ def _direction_entries() -> list[Entry]:
 def _entries() -> dict[str, Entry]:
     from beamtone.calc import materials
     from beamtone.calc.model import END_KINDS, INNER_KINDS
+    from beamtone.calc.shear import THEORIES, TIMOSHENKO
     from beamtone.calc.worksheet import FORMAT, MAX_MODES, MAX_RITZ
 
     library = tuple(materials.LIBRARY)
@@ -428,6 +435,9 @@ def _entries() -> dict[str, Entry]:
         Entry("member.axial_force", QUANTITY, "axial force",
               "constant axial force, tension positive", FORCE, allow_zero=True,
               allow_negative=True, minimum=False, default="0 N", variable=True),
+        Entry("member.theory", CHOICE, "beam theory",
+              "timoshenko (shear deformation and rotary inertia) or euler-bernoulli",
+              choices=THEORIES, default=TIMOSHENKO),
         Entry("member.segment", TABLES, "segments", "uniform lengths, left to right"),
         *_segment_like("member.segment[]", False, library),
         Entry("supports", TABLE, "supports", "end and inner supports", required=True,

@@ -90,6 +90,15 @@ class Section:
         moment of inertia per length is rho*Ip.  None when not known.
     width : float or None
         Overall dimension in the width plane [m]; None when not given.
+    shear_area : float or None
+        Shear area kappa A for bending in the depth plane [m^2], where a section given by its
+        properties states it (built-in shapes: from Cowper's coefficient, :mod:`calc.shear`).
+    shear_area_width : float or None
+        The same for the width plane [m^2].
+    plane : str
+        The plane this section bends in: ``"depth"``, or ``"width"`` for the section turned a
+        quarter turn (:func:`calc.directions.width_member`); its ``second_moment`` is that
+        plane's.
     """
 
     shape: str
@@ -102,6 +111,9 @@ class Section:
     warping_constant: float | None = None
     polar_moment: float | None = None
     width: float | None = None
+    shear_area: float | None = None
+    shear_area_width: float | None = None
+    plane: str = "depth"
 
     @property
     def radius_of_gyration(self) -> float:
@@ -280,6 +292,12 @@ def _properties(d: dict[str, float], key: str) -> Section:
             f"{J:.6g} m^4",
             f"at most the polar moment {Ip:.6g} m^4 (equal only for round sections)",
         )
+    for name in ("shear_area", "shear_area_width"):
+        if d.get(name) is not None and d[name] > A * (1.0 + 1e-12):
+            # kappa A: the part of the area that carries the shear; never more than the area
+            raise InputError(
+                f"{key}.{name}", f"{d[name]:.6g} m^2", f"at most the area {A:.6g} m^2 (kappa A)"
+            )
     return Section(
         "properties",
         A,
@@ -291,6 +309,8 @@ def _properties(d: dict[str, float], key: str) -> Section:
         warping_constant=d.get("warping_constant", 0.0 if J is not None else None),
         polar_moment=Ip,
         width=width,
+        shear_area=d.get("shear_area"),
+        shear_area_width=d.get("shear_area_width"),
     )
 
 

@@ -310,9 +310,13 @@ def _worksheet(data: dict[str, Any], source: str, default_title: str) -> Workshe
     estimate = _estimate(data.get("estimate", {}))
     # The stored results of beamtone solve --record; calc.record reads and checks them.
     _table(data.get("record", {}), "record", "the record beamtone solve --record writes")
+    # the right number by default: Timoshenko (README, "Beam theory")
+    theory = str(schema.entry("member.theory").default)
+    if "theory" in member_table:
+        theory = _choice(member_table, "theory", "member")
     member = Member(segments, left, right, masses, springs, inner, axial,
                     _overrides(supports, "supports", "left_"),
-                    _overrides(supports, "supports", "right_"))  # fmt: skip
+                    _overrides(supports, "supports", "right_"), theory)  # fmt: skip
     excitations = _excitations(data.get("excitation", []), member.length)
     damping = _response(data.get("response", {}))
     sheet = Worksheet(title, notes, member, modes, estimate, source, data, excitations, damping)

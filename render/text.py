@@ -28,6 +28,7 @@ from beamtone.render.margins import (
 
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.analysis import Analysis
+    from beamtone.calc.theories import TheoryPair
 
 __all__ = ["solve_text", "solve_json"]
 
@@ -74,8 +75,9 @@ def solve_text(analysis: Analysis) -> str:
         extras.append(f"axial {kind} {_fmt(abs(member.axial_force), 4)} N")
     if extras:
         lines.append(f"  carries   {', '.join(extras)}")
+    element = "Timoshenko" if analysis.theory == "timoshenko" else "Hermite"
     lines.append(
-        f"  mesh      {result.elements} Hermite beam elements, {result.degrees_of_freedom} "
+        f"  mesh      {result.elements} {element} beam elements, {result.degrees_of_freedom} "
         f"free DOF, {result.solver}"
     )
     rigid = result.rigid_body_modes
@@ -88,8 +90,11 @@ def solve_text(analysis: Analysis) -> str:
         lines.append(depth_heading(directions))
 
     header = ["mode", "f [Hz]", "omega [rad/s]", "est. error", "eff. mass", "cumul."]
+    # the handbook is Euler-Bernoulli: compared with the Euler-Bernoulli solve
+    pair = analysis.theories
+    eb_modes = result.modes if pair is None else pair.euler_bernoulli.modes
     if check is not None:
-        header += ["handbook [Hz]", "FE vs hb"]
+        header += ["handbook [Hz]", "FE vs hb" if eb_modes is result.modes else "E-B vs hb"]
     rows = [header]
     for i, mode in enumerate(result.modes):
         row = [
@@ -102,7 +107,7 @@ def solve_text(analysis: Analysis) -> str:
         ]
         if check is not None:
             ref = check.frequencies_hz[i]
-            row += [_fmt(ref), f"{100 * (mode.frequency_hz - ref) / ref:+.2e} %"]
+            row += [_fmt(ref), f"{100 * (eb_modes[i].frequency_hz - ref) / ref:+.2e} %"]
         rows.append(row)
     widths = [max(len(r[c]) for r in rows) for c in range(len(header))]
     for r in rows:
@@ -119,6 +124,9 @@ def solve_text(analysis: Analysis) -> str:
     )
     lines.append("            modes normalized to unit modal mass; effective mass in the plane")
     lines.append("")
+    if pair is not None:
+        lines += theory_lines(pair)
+        lines.append("")
     lines += _estimate_lines(analysis)
     if directions is not None:
         lines.append("")
@@ -140,6 +148,27 @@ def solve_text(analysis: Analysis) -> str:
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines) + "\n"
+
+
+def theory_lines(pair: TheoryPair) -> list[str]:
+    """The chosen beam theory and, per mode, both theories and the shear effect."""
+    from beamtone.calc.theories import SHOWN_ABOVE
+
+    chosen = "Timoshenko" if pair.theory == "timoshenko" else "Euler-Bernoulli"
+    lines = [f"  theory    {chosen} (the table above); the other beside it, per mode:"]
+    if pair.timoshenko is None:
+        return lines + [f"            {pair.note()}"]
+    for e, t, d in zip(
+        pair.euler_bernoulli.modes, pair.timoshenko.modes, pair.differences, strict=False
+    ):
+        flag = "  (differ by more than 1 %)" if abs(d) > SHOWN_ABOVE else ""
+        lines.append(
+            f"  mode {e.number:<4} Timoshenko {_fmt(t.frequency_hz)} Hz, Euler-Bernoulli "
+            f"{_fmt(e.frequency_hz)} Hz, shear and rotary inertia {100 * d:+.2f} %{flag}"
+        )
+    lines += [f"            no shear flexibility: {why}" for why in pair.without_shear]
+    lines.append("            Rayleigh, Dunkerley, the bracket and the handbook: Euler-Bernoulli")
+    return lines
 
 
 def _estimate_lines(analysis: Analysis) -> list[str]:
@@ -189,9 +218,11 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
                 "effective_mass_kg": m.effective_mass,
                 "effective_mass_fraction": m.effective_mass_fraction,
                 "cumulative_mass_fraction": m.cumulative_mass_fraction,
+                **_theory_json(analysis.theories, i),
             }
-            for m in result.modes
+            for i, m in enumerate(result.modes)
         ],
+        "theory": analysis.theory,
         "rigid_body_modes": result.rigid_body_modes,
         "handbook": None
         if check is None
@@ -254,6 +285,16 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
         **_excitation_json(analysis),
         **_directions_json(analysis),
     })  # fmt: skip
+
+
+def _theory_json(pair: TheoryPair | None, i: int) -> dict[str, float]:
+    """A bending mode's frequency by each theory that was solved [Hz]."""
+    if pair is None:
+        return {}
+    out = {"euler_bernoulli_hz": pair.euler_bernoulli.modes[i].frequency_hz}
+    if pair.timoshenko is not None:
+        out["timoshenko_hz"] = pair.timoshenko.modes[i].frequency_hz
+    return out
 
 
 def _directions_json(analysis: Analysis) -> dict[str, Any]:

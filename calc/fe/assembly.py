@@ -19,6 +19,8 @@ from beamtone.calc.fe.elements import (
     scaled_element_matrices,
 )
 from beamtone.calc.fe.mesh import Mesh
+from beamtone.calc.fe.timoshenko import element_shear
+from beamtone.calc.fe.timoshenko import scaled_element_matrices as timoshenko_matrices
 from beamtone.calc.model import Member, holds
 
 __all__ = ["System", "assemble"]
@@ -61,6 +63,9 @@ class System:
     influence_load: np.ndarray
     total_mass: float
     lambda_max_bound: float
+    shear: tuple[np.ndarray, np.ndarray] | None = None
+    """Timoshenko theory: each element's shear parameter phi and rotary inertia per length
+    (:func:`calc.fe.timoshenko.element_shear`); None for Euler-Bernoulli."""
 
     def full(self, vectors: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Nodal deflections and slopes (unscaled) of vectors on the free DOFs.
@@ -181,7 +186,11 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
     m = np.array([seg.mass_per_length for seg in segs])[mesh.segment]
     s = float(np.median(h))
     P = member.axial_force
-    ke, ge, me = scaled_element_matrices(h, EI, m, s, geometric or P != 0.0)
+    shear = element_shear(member, mesh.segment, h, EI)
+    if shear is None:
+        ke, ge, me = scaled_element_matrices(h, EI, m, s, geometric or P != 0.0)
+    else:  # shear deformation and rotary inertia (interdependent interpolation element)
+        ke, ge, me = timoshenko_matrices(h, EI, m, s, geometric or P != 0.0, *shear)
     n_nodes = len(mesh.x)
     n = 2 * n_nodes
 
@@ -245,4 +254,5 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
         influence_load=load,
         total_mass=total_mass,
         lambda_max_bound=lam_elem + lam_spring,
+        shear=shear,
     )

@@ -55,7 +55,9 @@ def buckling_load(member: Member, elements: int | None = None) -> float:
         top = largest_eigenvalue(Gs, Ks, system.K.shape[0])
         loads.append(1.0 / top if top > 0 else math.inf)
     coarse, fine = loads
-    return fine - (coarse - fine) / 15.0 if math.isfinite(fine) else math.inf
+    # Richardson on h^4 (Hermite elements) or h^2 (Timoshenko: constant shear strain)
+    rate = 3.0 if member.theory == "timoshenko" else 15.0
+    return fine - (coarse - fine) / rate if math.isfinite(fine) else math.inf
 
 
 def check_buckling(member: Member) -> None:

@@ -6,6 +6,7 @@ import numpy as np
 
 from beamtone.calc.fe.assembly import System
 from beamtone.calc.fe.mesh import Mesh
+from beamtone.calc.fe.timoshenko import element_quotient, geometric_quotient
 from beamtone.calc.model import Member, rigid_body_count, rigid_motion_rows
 
 __all__ = ["strain_energy_quotient", "rigid_vectors"]
@@ -46,10 +47,17 @@ def strain_energy_quotient(
     b = theta[1:] - d
     k1 = (-4.0 * a - 2.0 * b) / h
     k2 = (2.0 * a + 4.0 * b) / h
-    energy = (EI * h * (k1 * k1 + k1 * k2 + k2 * k2) / 3.0).sum(axis=0)
-    if member.axial_force != 0.0:
-        slope2 = h * (d * d + (2.0 * a * a - a * b + 2.0 * b * b) / 15.0)
-        energy = energy + member.axial_force * slope2.sum(axis=0)
+    P = member.axial_force
+    if system.shear is None:
+        energy = (EI * h * (k1 * k1 + k1 * k2 + k2 * k2) / 3.0).sum(axis=0)
+        if P != 0.0:
+            slope2 = h * (d * d + (2.0 * a * a - a * b + 2.0 * b * b) / 15.0)
+            energy = energy + P * slope2.sum(axis=0)
+    else:  # Timoshenko: bending and shear energy together, and w'^2 of its deflection shape
+        phi = system.shear[0][:, None]
+        energy = (EI / h * element_quotient(a, b, phi)).sum(axis=0)
+        if P != 0.0:
+            energy = energy + P * (h * geometric_quotient(d, a, b, phi)).sum(axis=0)
     for sp in member.springs:
         j, e = mesh.carrier(sp.at)
         at = w[j] + e * theta[j]
