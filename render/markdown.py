@@ -17,9 +17,13 @@ from beamtone.calc.report import (
 __all__ = ["markdown", "escape"]
 
 # Escape only what would change the rendering: backslashes, code and emphasis markers, table
-# pipes, link and image brackets, the start of an HTML tag, a heading mark at the start, an
-# underscore at a word edge.
-_MD_SPECIAL = re.compile(r"([\\`*|\[\]])|!(?=\[)|<(?=[A-Za-z/!?])|(?<!\w)_|_(?!\w)|^#")
+# pipes, the start of an HTML tag, a heading mark at the start, an underscore at a word edge;
+# and, in text that could make a link, an image or a link reference definition (a "](", "]["
+# or "]:" in it), every bracket and an image's "!".  Brackets elsewhere stay as written
+# ("beamtone[report]"): with no reference definition in the document they cannot link.
+_MD_SPECIAL = re.compile(r"([\\`*|])|<(?=[A-Za-z/!?])|(?<!\w)_|_(?!\w)|^#")
+_MD_LINKING = re.compile(r"([\\`*|\[\]])|!(?=\[)|<(?=[A-Za-z/!?])|(?<!\w)_|_(?!\w)|^#")
+_LINK = re.compile(r"\][(\[:]")
 
 
 def escape(text: str) -> str:
@@ -29,8 +33,11 @@ def escape(text: str) -> str:
     --------
     >>> escape("a *b* | <i>c_</i>")
     'a \\\\*b\\\\* \\\\| \\\\<i>c\\\\_\\\\</i>'
+    >>> escape("pip install 'beamtone[report]'"), escape("![x](y)")
+    ("pip install 'beamtone[report]'", '\\\\!\\\\[x\\\\](y)')
     """
-    return _MD_SPECIAL.sub(lambda m: "\\" + m.group(0), text).replace("\n", " ")
+    special = _MD_LINKING if _LINK.search(text) else _MD_SPECIAL
+    return special.sub(lambda m: "\\" + m.group(0), text).replace("\n", " ")
 
 
 def _cell(text: str, literal: bool) -> str:
