@@ -280,10 +280,12 @@ def _app(path: str | None) -> int:
     from beamtone.calc.errors import InputError
 
     if path is not None:
-        from beamtone.calc.worksheet import load
+        from beamtone.tui.document import TEMPLATES, Document
 
         try:
-            load(path)  # refuse a damaged file before the screen is taken over
+            # refuse a file that cannot be read as TOML before the screen is taken over; a
+            # worksheet with entries to fix opens with them marked, a new path starts one
+            Document.open_or_new(path, TEMPLATES[0])
         except InputError as exc:
             sys.stderr.write(f"beamtone: {exc.message}\n")
             return EXIT_INPUT

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from pathlib import Path
 
 from textual.app import App
@@ -38,11 +39,19 @@ class BeamtoneApp(App[None]):
         self.ask_template = path is None
 
     def on_mount(self) -> None:
+        problem = None
         if self.start_path is not None:
-            self.document = Document.open(self.start_path)
+            try:
+                self.document = Document.open_or_new(self.start_path, TEMPLATES[0])
+            except InputError as exc:  # unreadable as TOML: say so, start a new worksheet
+                problem = exc.message
+            # a path with no file yet: a new worksheet that saves there
+            self.ask_template = not self.start_path.expanduser().exists()
         self.push_screen(Workbench(self.document))
         if self.ask_template:
             self.push_screen(TemplateDialog(), self._template_chosen)
+        if problem:
+            self.notify(f"not opened: {problem}", severity="error", timeout=10, markup=False)
         self._offer_recovery()
 
     def _offer_recovery(self) -> None:
@@ -87,7 +96,9 @@ class BeamtoneApp(App[None]):
 
     async def _template_chosen(self, template: Template | None) -> None:
         if template is not None and template != TEMPLATES[0]:
-            await self._replace(Document.from_template(template))
+            document = Document.from_template(template)
+            document.path = self.document.path  # a new worksheet keeps the path it was given
+            await self._replace(document)
 
     # --- actions ------------------------------------------------------------------------------
 
@@ -100,30 +111,45 @@ class BeamtoneApp(App[None]):
             return
         self._save(self.document.path)
 
-    def action_save_as(self) -> None:
+    def action_save_as(self, then: Callable[[], object] | None = None) -> None:
         current = str(self.document.path) if self.document.path else "worksheet.toml"
-        self.push_screen(PathDialog("Save the worksheet as:", current), self._save_to)
 
-    def _save_to(self, path: str | None) -> None:
-        if path:
-            self._save(Path(path))
+        def chosen(path: str | None) -> None:
+            if path and self._save(Path(path)) and then is not None:
+                then()
+
+        self.push_screen(PathDialog("Save the worksheet as:", current), chosen)
 
     def _save(self, path: Path) -> bool:
+        """Save as it is, a draft with entries to fix included; say what was saved."""
         bench = self.workbench
         view = bench.query_one(ResultsView)
         current = view.analysis if view.state == "current" and not bench.pending else None
         try:
             saved = self.document.save(path, current)
-        except InputError as exc:
-            self.notify(f"not saved: {exc.message}", severity="error", timeout=8)
+        except InputError as exc:  # the file cannot be written: the old one stays intact
+            self.notify(f"not saved: {exc.message}", severity="error", timeout=8, markup=False)
             return False
         self.refresh_title()
-        recorded = (
-            "with its calculation record"
-            if current is not None
-            else "(no record: results not current)"
-        )
-        self.notify(f"saved {saved} {recorded}")
+        problems = self.document.problems()
+        if problems:
+            count = len(problems)
+            entries = "entry" if count == 1 else "entries"
+            self.notify(
+                f"saved {saved} as a draft: {count} {entries} to fix "
+                f"({', '.join(p.key for p in problems[:3])}{', ...' if count > 3 else ''}); "
+                "beamtone solve refuses it until they are fixed",
+                severity="warning",
+                timeout=10,
+                markup=False,
+            )
+        else:
+            recorded = (
+                "with its calculation record"
+                if current is not None
+                else "(no record: results not current)"
+            )
+            self.notify(f"saved {saved} {recorded}", markup=False)
         return True
 
     def action_open(self) -> None:
@@ -139,7 +165,7 @@ class BeamtoneApp(App[None]):
             document = Document.open(path)
         except InputError as exc:
             # a damaged file: say so, keep the current worksheet
-            self.notify(f"not opened: {exc.message}", severity="error", timeout=10)
+            self.notify(f"not opened: {exc.message}", severity="error", timeout=10, markup=False)
             return
         await self._replace(document)
         self._offer_recovery()
@@ -164,7 +190,7 @@ class BeamtoneApp(App[None]):
         self.document.replace_text(text)
         await self.workbench.reload()
         self.refresh_title()
-        self.notify(f"applied {key} = {value}")
+        self.notify(f"applied {key} = {value}", markup=False)
 
     def action_groups(self) -> None:
         analysis = self.workbench.query_one(ResultsView).analysis
@@ -173,22 +199,26 @@ class BeamtoneApp(App[None]):
     def action_quit_safely(self) -> None:
         self._unless_unsaved("quit", self.exit)
 
-    def _unless_unsaved(self, what: str, then: object) -> None:
+    async def action_quit(self) -> None:
+        """Every way out (the command palette's Quit included) asks about unsaved changes."""
+        self.action_quit_safely()
+
+    def _unless_unsaved(self, what: str, then: Callable[[], object]) -> None:
         if not self.document.modified:
-            then()  # type: ignore[operator]
+            then()
             return
 
         def answered(choice: str | None) -> None:
             if choice == "save":
                 if self.document.path is None:
-                    self.action_save_as()
+                    self.action_save_as(then)
                     return
                 if not self._save(self.document.path):
                     return
-                then()  # type: ignore[operator]
+                then()
             elif choice == "discard":
                 self.document.discard_autosave()
-                then()  # type: ignore[operator]
+                then()
 
         self.push_screen(UnsavedDialog(what), answered)
 

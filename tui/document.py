@@ -7,7 +7,10 @@ Comments and layout of an opened file are kept (tomlkit).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+import os
+import time
+from collections.abc import Iterator
+from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
 from typing import Any
@@ -16,7 +19,9 @@ import tomlkit
 import tomlkit.exceptions
 from tomlkit.items import AoT, Table
 
+from beamtone.calc import schema
 from beamtone.calc.errors import InputError
+from beamtone.calc.positions import from_right
 from beamtone.calc.worksheet import Worksheet, key_path, loads, write_atomic
 
 __all__ = ["Template", "TEMPLATES", "Document"]
@@ -78,6 +83,7 @@ class Document:
     doc: tomlkit.TOMLDocument
     path: Path | None = None
     modified: bool = False
+    _new_name: str | None = field(default=None, repr=False, compare=False)
 
     # --- opening ---------------------------------------------------------------------------
 
@@ -96,12 +102,33 @@ class Document:
 
     @classmethod
     def open(cls, path: str | Path) -> Document:
-        """Open a worksheet file; it must load without error (else InputError)."""
-        from beamtone.calc.worksheet import load
+        """Open a worksheet file as it is, entries to fix included (they are marked in the
+        form); InputError (key ``file``) only where it cannot be read as TOML text."""
+        from beamtone.calc.files import read_limited
+        from beamtone.calc.worksheet import MAX_BYTES
 
         p = Path(path).expanduser()
-        load(p)  # the same checks as the command line: refuse a damaged file
-        return cls.from_text(p.read_text(encoding="utf-8"), p)
+        raw = read_limited(p, MAX_BYTES)  # the command line's guards: size, kind, access
+        if b"\x00" in raw:
+            raise InputError("file", str(p), "a TOML text file", "it contains binary data")
+        try:
+            text = raw.decode("utf-8").removeprefix("\ufeff")
+        except UnicodeDecodeError as exc:
+            raise InputError(
+                "file", str(p), "a TOML text file in UTF-8", f"undecodable byte at {exc.start}"
+            ) from None
+        return cls.from_text(text, p)
+
+    @classmethod
+    def open_or_new(cls, path: str | Path, template: Template) -> Document:
+        """Open ``path``, or start a new worksheet from ``template`` that saves there where
+        no file exists yet."""
+        p = Path(path).expanduser()
+        if p.exists():
+            return cls.open(p)
+        document = cls.from_template(template)
+        document.path = p
+        return document
 
     @classmethod
     def from_template(cls, template: Template) -> Document:
@@ -279,13 +306,13 @@ class Document:
 
     @property
     def autosave_path(self) -> Path:
-        """Where unsaved edits are kept: beside the file, or in the user's cache folder."""
+        """Where unsaved edits are kept: beside the file, or, for a new worksheet, a file of
+        its own in beamtone's cache folder (``$BEAMTONE_CACHE``, see calc.diskcache)."""
         if self.path is not None:
             return self.path.with_name(f".{self.path.name}.autosave")
-        import os
-
-        cache = Path(os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache") / "beamtone"
-        return cache / "new-worksheet.autosave"
+        if self._new_name is None:
+            self._new_name = f"{_NEW}{time.time_ns()}-{os.getpid()}.autosave"
+        return _new_folder() / self._new_name
 
     def autosave(self) -> None:
         """Keep the unsaved edits (atomically) so a crash loses nothing; quiet on failure."""
@@ -306,7 +333,14 @@ class Document:
             return
 
     def recoverable(self) -> str | None:
-        """Edits kept by an earlier session that ended without saving, if any differ."""
+        """Edits kept by an earlier session that ended without saving, if any differ (for a
+        new worksheet: the newest new worksheet whose session has ended, taken over as this
+        one's own autosave)."""
+        if self.path is None and self._new_name is None:
+            orphan = _orphan()
+            if orphan is None:
+                return None
+            self._new_name = orphan.name
         target = self.autosave_path
         try:
             text = target.read_text(encoding="utf-8")
@@ -321,8 +355,30 @@ class Document:
 
     # --- saving ----------------------------------------------------------------------------
 
+    def problems(self) -> list[InputError]:
+        """The entries to fix: every quantity that does not read, then the loader's first
+        complaint where it names another key (the loader stops at its first)."""
+        found: list[InputError] = []
+        for key, value in _leaves(self.plain(), ""):
+            entry = schema.find(key)
+            if entry is None or entry.kind != schema.QUANTITY or not isinstance(value, str):
+                continue
+            if entry.position and from_right(value) is not None:
+                continue  # read with the member's length, by the loader below
+            try:
+                entry.parse(value, key)
+            except InputError as exc:
+                found.append(exc)
+        try:
+            self.worksheet()
+        except InputError as exc:
+            if all(exc.key != seen.key for seen in found):
+                found.append(exc)
+        return found
+
     def save(self, path: str | Path | None = None, analysis: Any = None) -> Path:
-        """Validate, then write atomically; the document is then unmodified.
+        """Write the worksheet as it is, atomically (a draft with entries to fix included:
+        :meth:`problems` names them); the document is then unmodified.
 
         Parameters
         ----------
@@ -336,8 +392,7 @@ class Document:
         Raises
         ------
         InputError
-            When the worksheet does not validate (nothing is written), or the file
-            cannot be written (the old file stays intact).
+            When the file cannot be written (the old file stays intact).
         """
         from beamtone.calc.record import build_record, inputs_digest, with_record
 
@@ -347,12 +402,66 @@ class Document:
         if "record" in self.doc:
             del self.doc["record"]
         text = self.text()
-        sheet = loads(text, str(target))
-        if analysis is not None and inputs_digest(analysis.sheet.data) == inputs_digest(sheet.data):
-            text = with_record(text, build_record(analysis))
-            self.doc = tomlkit.parse(text)
+        if analysis is not None:
+            try:
+                sheet = loads(text, str(target))
+            except InputError:
+                sheet = None  # a draft: saved without a record
+            if sheet is not None and inputs_digest(analysis.sheet.data) == inputs_digest(
+                sheet.data
+            ):
+                text = with_record(text, build_record(analysis))
+                self.doc = tomlkit.parse(text)
         write_atomic(target, text)
         self.discard_autosave()
         self.path = target
         self.modified = False
         return target
+
+
+_NEW = "new-worksheet-"
+
+
+def _new_folder() -> Path:
+    """Where new worksheets keep their unsaved edits (a folder of the working tree's
+    ``.beamtone-autosave`` where the user has no cache folder)."""
+    from beamtone.calc import diskcache
+
+    return (diskcache.folder() or Path(".beamtone-autosave")) / "autosave"
+
+
+def _alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except (PermissionError, OSError):
+        return True
+    return True
+
+
+def _orphan() -> Path | None:
+    """The newest new worksheet's autosave whose session has ended (its process is gone)."""
+    try:
+        kept = sorted(_new_folder().glob(f"{_NEW}*.autosave"), key=lambda p: p.name)
+    except OSError:
+        return None
+    for candidate in reversed(kept):
+        pid = candidate.stem.rsplit("-", 1)[-1]
+        if pid.isdigit() and (int(pid) == os.getpid() or not _alive(int(pid))):
+            return candidate
+    return None
+
+
+def _leaves(node: Any, prefix: str) -> Iterator[tuple[str, Any]]:
+    """Every (key path, value) of plain worksheet data, tables and arrays of tables walked."""
+    if isinstance(node, dict):
+        for name, value in node.items():
+            if prefix == "" and name == "record":
+                continue
+            yield from _leaves(value, f"{prefix}.{name}" if prefix else str(name))
+    elif isinstance(node, list) and node and all(isinstance(v, dict) for v in node):
+        for i, item in enumerate(node):
+            yield from _leaves(item, f"{prefix}[{i}]")
+    else:
+        yield prefix, node

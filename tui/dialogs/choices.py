@@ -26,7 +26,10 @@ class UnsavedDialog(ModalScreen[str]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Label(f"The worksheet has unsaved changes. Save before you {self.what}?")
+            yield Label(
+                f"The worksheet has unsaved changes. Save before you {self.what}?",
+                classes="question",
+            )
             with Horizontal(classes="buttons"):
                 yield Button("save", id="save", variant="primary")
                 yield Button("don't save", id="discard", variant="error")
@@ -50,7 +53,9 @@ class RecoverDialog(ModalScreen[bool]):
         with Vertical(classes="dialog"):
             yield Label(
                 f"An earlier session left unsaved edits to {self.where}. Recover them? "
-                "(They replace what is on screen, unsaved; saving keeps them.)"
+                "(They replace what is on screen, unsaved; saving keeps them.)",
+                markup=False,  # a file name is the user's text
+                classes="question",
             )
             with Horizontal(classes="buttons"):
                 yield Button("recover", id="recover", variant="primary")

@@ -2,14 +2,17 @@
 
 from __future__ import annotations
 
-from textual import on
+from rich.text import Text
+from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.screen import Screen
+from textual.timer import Timer
 from textual.widgets import Button, DataTable, Footer, Header, Input, Static
 
 from beamtone.calc.errors import InputError
+from beamtone.tui.widgets.debounce import DEBOUNCE
 
 __all__ = ["GroupsScreen"]
 
@@ -22,6 +25,9 @@ class GroupsScreen(Screen[None]):
     def __init__(self, analysis: object | None) -> None:
         super().__init__()
         self.analysis = analysis
+        self.asked = ""  # the variable list as typed
+        self.shown = ""  # the variable list whose answer is on screen
+        self._timer: Timer | None = None
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -56,23 +62,54 @@ class GroupsScreen(Screen[None]):
     def _back(self) -> None:
         self.dismiss(None)
 
-    @on(Input.Submitted, "#variables")
     @on(Input.Changed, "#variables")
-    def _calculate(self, event: Input.Changed | Input.Submitted) -> None:
-        from beamtone.calc import variable_groups
+    def _typed(self, event: Input.Changed) -> None:
+        """Work after a pause in typing, in a worker: the screen never waits for sympy."""
+        self.asked = event.value
+        if self._timer is not None:
+            self._timer.stop()
+        self._timer = self.set_timer(DEBOUNCE, self._start)
 
+    @on(Input.Submitted, "#variables")
+    def _submitted(self, event: Input.Submitted) -> None:
+        self.asked = event.value
+        self._start()
+
+    def _start(self) -> None:
+        if self._timer is not None:
+            self._timer.stop()
+            self._timer = None
         out = self.query_one("#calculator", Static)
-        items = event.value.split()
-        if not items:
+        if not self.asked.split():
+            self.shown = self.asked
             out.update("")
             return
+        out.update(Text("working…", style="dim"))
+        self._calculate(self.asked)
+
+    @work(thread=True, exclusive=True, group="groups", exit_on_error=False)
+    def _calculate(self, text: str) -> None:
+        from beamtone.calc.groups import parse_variables, pi_groups, variable
+
         try:
-            result = variable_groups(items)
+            pairs = parse_variables(text.split())
+            result = pi_groups([variable(n, u) for n, u in pairs])
         except InputError as exc:
-            out.update(f"[b red]{exc.message}[/]")
-            out.set_class(True, "error")
+            self.app.call_from_thread(self._show, text, exc.message, True)
             return
-        out.set_class(False, "error")
+        except Exception as exc:  # the outermost layer of this work: never a traceback
+            problem = f"internal error, please report: {type(exc).__name__}: {exc}"
+            self.app.call_from_thread(self._show, text, problem, True)
+            return
         lines = [f"rank {result.rank}; repeating {', '.join(result.repeating)}"]
         lines += [f"  {g.symbol} = {g.expression}" for g in result.groups]
-        out.update("\n".join(lines))
+        self.app.call_from_thread(self._show, text, "\n".join(lines), False)
+
+    def _show(self, text: str, shown: str, error: bool) -> None:
+        if text != self.asked:
+            return  # typed on meanwhile: a newer answer is on its way
+        self.shown = text
+        out = self.query_one("#calculator", Static)
+        # the user's own text may come back in a message: never read as markup
+        out.update(Text(shown, style="bold red" if error else ""))
+        out.set_class(error, "error")

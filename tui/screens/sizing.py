@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from rich.text import Text
 from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
@@ -150,7 +151,7 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
 
     def _say(self, text: str, error: bool = False) -> None:
         message = self.query_one("#sizing-message", Static)
-        message.update(text)
+        message.update(Text(text))  # messages quote what the user typed: never markup
         message.set_class(error, "error")
 
     def _show(self, result: object) -> None:
@@ -164,7 +165,11 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
         for i, s in enumerate(result.solutions):
             note = "recommended" if i == result.recommended else s.above
             table.add_row(
-                s.value, f"{s.frequency_hz:.6g}", f"{s.member_mass_kg:.4g}", note, key=str(i)
+                Text(s.value),
+                f"{s.frequency_hz:.6g}",
+                f"{s.member_mass_kg:.4g}",
+                Text(note),
+                key=str(i),
             )
         if result.recommended is not None:
             table.move_cursor(row=result.recommended)

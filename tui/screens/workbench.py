@@ -14,13 +14,12 @@ from textual.widgets import Footer, Header
 
 from beamtone.calc.errors import InputError
 from beamtone.tui.document import Document
+from beamtone.tui.widgets.debounce import DEBOUNCE
 from beamtone.tui.widgets.form import WorksheetForm
 from beamtone.tui.widgets.modeplot import ModePlot, PlotData
 from beamtone.tui.widgets.results import ResultsView
 
 __all__ = ["Workbench"]
-
-DEBOUNCE = 0.05  # seconds of quiet typing before a solve
 
 
 class Workbench(Screen[None]):
@@ -51,6 +50,8 @@ class Workbench(Screen[None]):
         # time a solve of the latest inputs finishes: scripts and tests wait on these
         self.solved: dict | None = None
         self.solve_finished = asyncio.Event()
+        self.last_edit = ""  # the latest edit, "key = text": what the results are for
+        self._solving_edit = ""
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -70,6 +71,8 @@ class Workbench(Screen[None]):
     @on(WorksheetForm.Changed)
     def _changed(self, event: WorksheetForm.Changed) -> None:
         self.app.refresh_title()  # type: ignore[attr-defined]
+        if event.edit:
+            self.last_edit = event.edit
         self.schedule()
 
     def schedule(self, now: bool = False) -> None:
@@ -81,6 +84,7 @@ class Workbench(Screen[None]):
         results = self.query_one(ResultsView)
         if results.analysis is not None:
             results.mark("computing")
+        self.query_one(WorksheetForm).mark_derived_stale()
         if now:
             self._solve()
         else:
@@ -89,6 +93,7 @@ class Workbench(Screen[None]):
     def _solve(self) -> None:
         self.document.autosave()  # after the typing pause: unsaved edits survive a crash
         self._solving = self.document.plain()
+        self._solving_edit = self.last_edit
         self._run(self._solving, self._version)
 
     @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
@@ -121,9 +126,11 @@ class Workbench(Screen[None]):
         self.solved = self._solving
         self.solve_finished.set()
         results = self.query_one(ResultsView)
-        results.show(analysis)  # type: ignore[arg-type]
+        results.show(analysis, self._for_text())  # type: ignore[arg-type]
         self.query_one(ModePlot).show(_plot_data(analysis))
-        self.query_one(WorksheetForm).update_derived(analysis.sheet.member)  # type: ignore[attr-defined]
+        form = self.query_one(WorksheetForm)
+        form.clear_solve_errors()
+        form.update_derived(analysis.sheet.member)  # type: ignore[attr-defined]
 
     def _failed(self, exc: InputError, version: int) -> None:
         if version != self._version:
@@ -134,9 +141,17 @@ class Workbench(Screen[None]):
         self.solve_finished.set()
         results = self.query_one(ResultsView)
         results.mark("stale" if results.analysis is not None else "failed", exc.message)
-        self.query_one(WorksheetForm).show_error(exc)
+        form = self.query_one(WorksheetForm)
+        form.clear_solve_errors()
+        form.show_error(exc)
         plot = self.query_one(ModePlot)
         plot.show(plot.data, stale=True)
+
+    def _for_text(self) -> str:
+        """Which inputs the results are for: the file and the latest edit."""
+        name = self.document.path.name if self.document.path else "the new worksheet"
+        edited = f", after {self._solving_edit}" if self._solving_edit else ""
+        return f"for {name} as on screen{edited}"
 
     async def reload(self) -> None:
         """Rebuild the form after the document was replaced or changed from outside."""

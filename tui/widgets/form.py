@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from typing import Any
 
+from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, VerticalScroll
@@ -18,6 +19,7 @@ from textual.widgets import Button, Label, Select, Static
 from beamtone.calc import materials, schema
 from beamtone.calc.errors import InputError
 from beamtone.calc.model import Member
+from beamtone.calc.positions import RIGHT_END
 from beamtone.tui.document import Document
 from beamtone.tui.widgets.quantity import QuantityField, TextField
 
@@ -64,16 +66,19 @@ class WorksheetForm(VerticalScroll):
     """The entry form over a document."""
 
     class Changed(Message):
-        """The document changed (``structural`` when the form was rebuilt)."""
+        """The document changed (``structural`` when the form was rebuilt; ``edit`` names
+        a typed edit, ``key = text``)."""
 
-        def __init__(self, structural: bool = False) -> None:
+        def __init__(self, structural: bool = False, edit: str = "") -> None:
             super().__init__()
             self.structural = structural
+            self.edit = edit
 
     def __init__(self, document: Document, id: str | None = None) -> None:  # noqa: A002
         super().__init__(id=id)
         self.document = document
         self._member: Member | None = None
+        self._derived = ""  # the shown section and member properties
         # Selects announce their first value when mounted; only later changes are edits
         # (otherwise a value the picker cannot show would be overwritten unasked).
         self._armed = False
@@ -212,7 +217,7 @@ class WorksheetForm(VerticalScroll):
             self.document.delete(key)
         else:
             self.document.set(key, text)
-        self.post_message(self.Changed())
+        self.post_message(self.Changed(edit=f"{key} = {text}"))
 
     def _set_integer(self, key: str, text: str) -> None:
         stripped = text.strip()
@@ -272,10 +277,10 @@ class WorksheetForm(VerticalScroll):
     async def _pressed(self, event: Button.Pressed) -> None:
         button = event.button.id or ""
         doc = self.document
-        if button == "add-mass":
-            doc.add_row("mass", {"at": _end(doc), "mass": "1 kg"})
+        if button == "add-mass":  # at the right end, following the length when it changes
+            doc.add_row("mass", {"at": RIGHT_END, "mass": "1 kg"})
         elif button == "add-spring":
-            doc.add_row("spring", {"at": _end(doc), "stiffness": "10 kN/m"})
+            doc.add_row("spring", {"at": RIGHT_END, "stiffness": "10 kN/m"})
         elif button == "add-inner":
             supports = [dict(s) for s in doc.inner_supports()]
             supports.append({"at": _middle(doc), "kind": "pinned"})
@@ -306,13 +311,22 @@ class WorksheetForm(VerticalScroll):
     def _arm(self) -> None:
         self._armed = True
 
-    async def rebuild(self) -> None:
-        """Rebuild the form from the document (after a structural change)."""
+    async def rebuild(self, focus: str | None = None) -> None:
+        """Rebuild the form from the document (after a structural change); the focus stays
+        where the user was (or moves to the widget ``focus`` names, an id)."""
         self._armed = False
+        focused = self.app.focused
+        keep = focus or (focused.id if focused is not None else None)
+        scroll = self.scroll_y
         await self.recompose()
         self.call_after_refresh(self._arm)
         if self._member is not None:
             self.update_derived(self._member)
+            self.mark_derived_stale()
+        found = self.query(f"#{keep}") if keep else None
+        if found:
+            found.first().focus(scroll_visible=False)
+        self.scroll_to(y=scroll, animate=False)
 
     # --- feedback --------------------------------------------------------------------------
 
@@ -332,7 +346,22 @@ class WorksheetForm(VerticalScroll):
                 f"m = {seg.mass_per_length:.4g} kg/m, E = {E:.4g} GPa"
             )
         parts.append(f"member mass {member.member_mass:.4g} kg, length {member.length:.4g} m")
-        derived.first(Static).update("\n".join(parts))
+        widget = derived.first(Static)
+        self._derived = "\n".join(parts)
+        widget.update(self._derived)
+        widget.remove_class("-stale")
+
+    def mark_derived_stale(self) -> None:
+        """Mark the section and member properties out of date until the next solve."""
+        for widget in self.query("#derived"):
+            if self._member is not None and not widget.has_class("-stale"):
+                widget.add_class("-stale")
+                widget.update(Text(f"(out of date) {self._derived}", style="dim italic"))
+
+    def clear_solve_errors(self) -> None:
+        """Drop the marks a failed solve left; each field shows only its own reading."""
+        for field in self.query(".quantity, .text"):
+            field.recheck()  # type: ignore[attr-defined]
 
     def show_error(self, exc: InputError) -> bool:
         """Mark the field the error names; False where no field shows that key."""
@@ -357,14 +386,6 @@ def _removable(entry: schema.Entry | None) -> bool:
     if entry is None or entry.required:
         return False
     return entry.kind == schema.QUANTITY or entry.default not in (None, "")
-
-
-def _end(doc: Document) -> str:
-    try:
-        length = doc.worksheet().member.length
-    except InputError:
-        return "0 m"
-    return f"{length:.6g} m"
 
 
 def _middle(doc: Document) -> str:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
@@ -9,6 +10,7 @@ from textual.message import Message
 from textual.widgets import Input, Label, Static
 
 from beamtone.calc.errors import InputError
+from beamtone.calc.positions import from_right, resolve
 from beamtone.calc.units import Dimension, parse_quantity
 
 __all__ = ["QuantityField", "TextField"]
@@ -88,10 +90,18 @@ class QuantityField(Vertical):
 
     def _check(self, text: str) -> None:
         si = self.query_one(".si", Static)
-        problem = self.query_one(".problem", Static)
         if self.optional and not text.strip():
             self.remove_class("-invalid")
             si.update("none")
+            return
+        if self.position and from_right(text) is not None:
+            try:  # the distance is checked here, the member's length when it is solved
+                inward = -resolve(text, self.key, 0.0)
+            except InputError as exc:
+                self._invalid(exc)
+                return
+            self.remove_class("-invalid")
+            si.update(f"L\u2212{inward:.5g}\u00a0m")
             return
         try:
             value = parse_quantity(
@@ -103,18 +113,27 @@ class QuantityField(Vertical):
                 minimum=not self.position,
             )
         except InputError as exc:
-            self.add_class("-invalid")
-            si.update("✗")
-            problem.update(f"expected {exc.expected}" + (f" ({exc.hint})" if exc.hint else ""))
+            self._invalid(exc)
             return
         self.remove_class("-invalid")
         si.update(f"{value:.5g}\u00a0{self.dimension.si_unit}")
+
+    def _invalid(self, exc: InputError) -> None:
+        self.add_class("-invalid")
+        self.query_one(".si", Static).update("✗")
+        hint = f" ({exc.hint})" if exc.hint else ""
+        # the message quotes what the user typed: never read as markup
+        self.query_one(".problem", Static).update(Text(f"expected {exc.expected}{hint}"))
+
+    def recheck(self) -> None:
+        """Show this field's own reading again (drop a mark of an earlier solve)."""
+        self._check(self.value)
 
     def show_error(self, message: str) -> None:
         """Mark the field with an error found when the worksheet was solved."""
         self.add_class("-invalid")
         self.query_one(".si", Static).update("✗")
-        self.query_one(".problem", Static).update(message)
+        self.query_one(".problem", Static).update(Text(message))
 
     @property
     def valid(self) -> bool:
@@ -152,9 +171,14 @@ class TextField(Horizontal):
             self._posted = event.value
             self.post_message(QuantityField.Edited(self, self.key, event.value))  # type: ignore[arg-type]
 
+    def recheck(self) -> None:
+        """Drop a mark of an earlier solve."""
+        self.remove_class("-invalid")
+        self.tooltip = None
+
     def show_error(self, message: str) -> None:
         self.add_class("-invalid")
-        self.tooltip = message
+        self.tooltip = Text(message)
 
 
 def _dom_id(key: str) -> str:

@@ -12,11 +12,15 @@ from textual.containers import Vertical
 from textual.widgets import Static
 
 from beamtone.calc.caution import CAUTION
+from beamtone.tui.widgets.freqmap import FrequencyMap
 
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.analysis import Analysis
 
-__all__ = ["ResultsView", "summary"]
+__all__ = ["ResultsView", "answers", "summary", "verdict_line"]
+
+# The further answers, each a section drawn by beamtone.render (as the command line prints it)
+_ANSWERS = ("directions", "theories", "margins", "bands")
 
 
 class ResultsView(Vertical):
@@ -29,9 +33,11 @@ class ResultsView(Vertical):
 
     DEFAULT_CSS = """
     ResultsView { height: auto; padding: 0 1; }
-    ResultsView > #banner { height: auto; }
-    ResultsView > #body { height: auto; }
-    ResultsView.-stale > #body, ResultsView.-failed > #body { color: $text-disabled; }
+    ResultsView > #banner, ResultsView > #inputs { height: auto; }
+    ResultsView > #inputs { color: $text-muted; }
+    ResultsView > #body, ResultsView > .answer { height: auto; width: auto; }
+    ResultsView.-stale > #body, ResultsView.-failed > #body,
+    ResultsView.-stale > .answer, ResultsView.-failed > .answer { color: $text-disabled; }
     """
 
     def __init__(self, id: str | None = None) -> None:  # noqa: A002 - textual's name
@@ -39,21 +45,33 @@ class ResultsView(Vertical):
         self.analysis: Analysis | None = None
         self.state = "empty"
         self.problem = ""
+        self.inputs = ""  # which inputs the shown results are for
 
     def compose(self) -> ComposeResult:
         yield Static(self._banner(), id="banner")
+        yield Static("", id="inputs")
         yield Static(Text(CAUTION, style="italic"), id="body")
+        yield FrequencyMap(id="map")
+        for name in _ANSWERS:
+            yield Static("", id=name, classes="answer")
 
-    def show(self, analysis: Analysis) -> None:
-        """Show fresh results."""
+    def show(self, analysis: Analysis, inputs: str = "") -> None:
+        """Show fresh results; ``inputs`` says which inputs they are for."""
         self.analysis = analysis
         self.state = "current"
         self.problem = ""
+        self.inputs = inputs
         self.set_classes("")
         self.query_one("#banner", Static).update(self._banner())
+        self.query_one("#inputs", Static).update(Text(inputs))
         self.query_one("#body", Static).update(
-            Group(summary(analysis), Text(CAUTION, style="italic"))
+            Group(verdict_line(analysis), summary(analysis), Text(CAUTION, style="italic"))
         )
+        self.query_one(FrequencyMap).show(analysis)
+        for name, lines in answers(analysis).items():
+            widget = self.query_one(f"#{name}", Static)
+            widget.display = bool(lines)
+            widget.update(Text("\n".join(lines), no_wrap=True, overflow="ignore"))
 
     def mark(self, state: str, problem: str = "") -> None:
         """Mark the shown results ``computing``, ``stale`` or ``failed``."""
@@ -68,7 +86,7 @@ class ResultsView(Vertical):
         if self.state == "computing":
             return Text("◌ computing…", style="bold yellow")
         if self.state == "stale":
-            return Text(f"✗ OUT OF DATE: {self.problem}", style="bold red")
+            return Text(f"✗ OUT OF DATE (earlier inputs, below): {self.problem}", style="bold red")
         if self.state == "failed":
             return Text(f"✗ NOT SOLVED: {self.problem}", style="bold red")
         return Text("no results yet", style="dim")
@@ -141,3 +159,51 @@ def _bracket_bar(lower: float | None, fe: float, upper: float) -> str:
     pos = int(round((fe - lower) / span * (width - 1)))
     bar = "".join("◆" if i == pos else "─" for i in range(width))
     return f"{lower:.5g} ├{bar}┤ {upper:.5g} Hz"
+
+
+def verdict_line(analysis: Analysis) -> Text:
+    """The governing mode and its direction, and the excitation verdict, in one or two lines."""
+    out = Text()
+    directions = analysis.directions
+    governing = directions.governing if directions is not None else None
+    if governing is not None:
+        plane = {"depth": "depth plane", "width": "width plane"}.get(
+            governing.direction, governing.direction
+        )
+        out.append("governing ", style="bold")
+        out.append(f"{governing.frequency_hz:.6g} Hz, {plane} mode {governing.number}")
+        missing = [d.name for d in directions.directions if not d.computed]
+        if missing:
+            out.append(f" (not computed: {', '.join(missing)}; may be lower)", style="yellow")
+        out.append("\n")
+    if analysis.margins is not None:
+        verdict = analysis.margins.verdict
+        out.append("verdict   ", style="bold")
+        out.append(verdict.text, style="bold green" if verdict.clear else "bold red")
+        out.append("\n")
+    return out
+
+
+def answers(analysis: Analysis) -> dict[str, list[str]]:
+    """Each further section's lines (empty where the worksheet does not ask for it), drawn by
+    beamtone.render as the command line prints them: every direction's modes, Euler-Bernoulli
+    against Timoshenko where they differ, the excitation margins with the verdict, the bands
+    over the tolerances with the ranked sensitivities."""
+    from beamtone.render.bands import band_lines
+    from beamtone.render.directions import direction_lines, governing_lines
+    from beamtone.render.margins import margin_lines
+    from beamtone.render.text import theory_lines
+
+    out: dict[str, list[str]] = dict.fromkeys(_ANSWERS, [])
+    if analysis.directions is not None:
+        out["directions"] = (
+            governing_lines(analysis.directions) + [""] + direction_lines(analysis.directions)
+        )
+    pair = analysis.theories
+    if pair is not None and (pair.timoshenko is None or pair.shown):
+        out["theories"] = theory_lines(pair)
+    if analysis.margins is not None:
+        out["margins"] = margin_lines(analysis.margins, analysis.sheet.excitations)
+    if analysis.bands is not None:
+        out["bands"] = band_lines(analysis.bands)
+    return out
