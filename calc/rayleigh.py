@@ -53,10 +53,14 @@ __all__ = [
     "bracket",
     "equivalent_system",
     "admissibility",
+    "DUNKERLEY_UNCERTAINTY_LIMIT",
 ]
 
 G0 = 9.80665
 """Standard acceleration of gravity [m/s^2] (ISO 80000-3); it cancels in the quotient."""
+
+DUNKERLEY_UNCERTAINTY_LIMIT = 1e-3
+"""Relative round-off of Dunkerley's sum above which it is given as no bound at all."""
 
 _GAUSS_POINTS = 12
 _SUBDIVISIONS = 24
@@ -138,7 +142,10 @@ class DunkerleyBound:
     uncertainty : float
         Estimated relative round-off in the bound: eps times an estimate of the stiffness
         matrix's condition number; large where the member is nearly free to move as a
-        rigid body (a very soft spring), which makes the flexibility ill-conditioned.
+        rigid body (a very soft spring), which makes the flexibility ill-conditioned.  Above
+        ``DUNKERLEY_UNCERTAINTY_LIMIT`` no bound is given.
+    note : str or None
+        How the bound was obtained where the member carries an axial force (one line).
     """
 
     frequency_hz: float | None
@@ -146,6 +153,7 @@ class DunkerleyBound:
     reason: str | None = None
     exact: bool = True
     uncertainty: float = 0.0
+    note: str | None = None
 
 
 @dataclass(frozen=True)
@@ -159,8 +167,14 @@ class Bracket:
     width : float or None
         (upper - lower) / fe [-].
     inside : bool
-        Whether the FE value lies in the bracket (within its estimated error).
+        Whether the FE value lies within the bounds that exist (within its estimated error
+        and the lower bound's uncertainty); with no lower bound, below the upper one.
     message : str
+    status : str
+        ``"bracketed"`` (both bounds exist and hold), ``"upper bound only"`` (no lower bound
+        exists: ``lower_reason`` says why) or ``"check failed"``.
+    lower_reason : str or None
+        Why there is no lower bound.
     """
 
     lower_hz: float | None
@@ -169,6 +183,8 @@ class Bracket:
     width: float | None
     inside: bool
     message: str
+    status: str = "bracketed"
+    lower_reason: str | None = None
 
 
 @dataclass(frozen=True)
@@ -763,10 +779,60 @@ def dunkerley(member: Member) -> DunkerleyBound:
     each interval between stations a(x, x) is a polynomial of degree at most six, so Gauss
     quadrature with the quadrature points as nodes gives the sum exactly (to round-off).
 
+    With an axial force the elements are no longer exact, so the sum is taken for the member
+    without it, which is still a bound under tension (tension only raises every frequency);
+    under compression no lower bound is given.  Where the sum is too uncertain
+    (``DUNKERLEY_UNCERTAINTY_LIMIT``) no bound is given either; ``reason`` says why.
+
     Returns
     -------
     DunkerleyBound
     """
+    P = member.axial_force
+    if P == 0.0:
+        return _limited(_dunkerley_sum(member))
+    from dataclasses import replace
+
+    unloaded = replace(member, axial_force=0.0)
+    if rigid_body_count(unloaded):
+        return DunkerleyBound(
+            None,
+            None,
+            "without its axial force the member could move as a rigid body, and Dunkerley's "
+            "sum is a bound only for the member without it: no lower bound",
+            exact=False,
+        )
+    base = _limited(_dunkerley_sum(unloaded))
+    if base.frequency_hz is None or base.trace is None:
+        return replace(base, exact=False)
+    if P > 0.0:
+        note = "the bound of the member without its tension, which only raises the frequencies"
+        return replace(base, exact=False, note=note)
+    return DunkerleyBound(
+        None,
+        None,
+        "a compression lowers the frequencies below the sum of the member without it, and "
+        "the sum with it needs a flexibility the elements do not give exactly: no lower bound",
+        exact=False,
+    )
+
+
+def _limited(bound: DunkerleyBound) -> DunkerleyBound:
+    """No bound where the sum's own round-off makes it unreliable."""
+    if bound.frequency_hz is None or bound.uncertainty <= DUNKERLEY_UNCERTAINTY_LIMIT:
+        return bound
+    return DunkerleyBound(
+        None,
+        bound.trace,
+        f"the flexibility is too ill-conditioned here (Dunkerley's sum uncertain by about "
+        f"{bound.uncertainty:.1g}), so it gives no reliable lower bound",
+        bound.exact,
+        bound.uncertainty,
+    )
+
+
+def _dunkerley_sum(member: Member) -> DunkerleyBound:
+    """Dunkerley's sum of a member without axial force, with its round-off uncertainty."""
     if rigid_body_count(member):
         return DunkerleyBound(
             None,
@@ -774,11 +840,11 @@ def dunkerley(member: Member) -> DunkerleyBound:
             "the member can move as a rigid body, so its flexibility is unbounded and "
             "Dunkerley's sum gives no lower bound",
         )
-    exact = member.axial_force == 0.0
-    points, weights = np.polynomial.legendre.leggauss(4 if exact else 8)
+    exact = True
+    points, weights = np.polynomial.legendre.leggauss(4)
     stations = fe.stations(member)
     xs, ws = [], []
-    pieces = 1 if exact else 8
+    pieces = 1
     for a, b in zip(stations[:-1], stations[1:], strict=True):
         edges = np.linspace(a, b, pieces + 1)
         for lo, hi in zip(edges[:-1], edges[1:], strict=True):
@@ -788,45 +854,58 @@ def dunkerley(member: Member) -> DunkerleyBound:
     wq = np.concatenate(ws)
     mesh = fe.mesh_through(member, xq)
     system = fe.assemble(member, mesh)
-    position = {int(i): k for k, i in enumerate(system.free)}
     m_of = np.array([member.segments[member.segment_index(x)].mass_per_length for x in xq])
     # Probes: unit loads whose response, read back the same way, gives each flexibility term.
-    probes: list[dict[int, float]] = []
+    # A node's probe reads its deflection (or slope) from the free DOFs; a quadrature point
+    # inside an element (only inside the short element of a tethered attachment, whose nodes
+    # cannot take more points) reads the element's Hermite interpolation.
+    columns: list[tuple[np.ndarray, np.ndarray]] = []  # (free DOFs, weights): kept sparse
     factors: list[float] = []
     for x, w, m in zip(xq, wq, m_of, strict=True):
-        node = int(np.argmin(np.abs(mesh.x - x)))
-        if 2 * node in position:
-            probes.append({position[2 * node]: 1.0})
+        row = _observe_at(mesh, system, float(x))
+        if np.any(row):
+            columns.append(_sparse(row))
             factors.append(w * m)
-    s = system.scale
     for pm in member.masses:
-        node, e = mesh.carrier(pm.at)
-        wdof, tdof = position.get(2 * node), position.get(2 * node + 1)
-        translation = {k: v for k, v in ((wdof, 1.0), (tdof, e / s)) if k is not None and v}
-        if pm.mass and translation:
-            probes.append(translation)
+        node, _ = mesh.carrier(pm.at)
+        rows = system.observe(node)
+        if pm.mass and np.any(rows[0]):
+            columns.append(_sparse(rows[0]))
             factors.append(pm.mass)
-        if pm.rotary_inertia and tdof is not None:
-            probes.append({tdof: 1.0 / s})
+        if pm.rotary_inertia and np.any(rows[1]):
+            columns.append(_sparse(rows[1]))
             factors.append(pm.rotary_inertia)
-    import scipy.sparse
-    import scipy.sparse.linalg
-
-    n = system.K.shape[0]
-    V = np.zeros((n, len(probes)))
-    for j, probe in enumerate(probes):
-        for k, v in probe.items():
-            V[k, j] = v
-    lu = scipy.sparse.linalg.splu(system.K.tocsc())
-    X = lu.solve(V)
-    diag = np.einsum("ij,ij->j", V, X)
+    # v^T K^-1 v for every probe v, without a dense n x probes array (2,500 point masses
+    # asked for 7.4 GB that way)
+    diag = _flexibilities(system.K, columns)
     trace = float(np.sum(np.asarray(factors) * diag))
     if not trace > 0.0 or not math.isfinite(trace):
         return DunkerleyBound(None, None, "the flexibility could not be computed", exact)
     # cond(K) ~ ||K|| ||K^-1||, both estimated from diagonals (K symmetric positive definite)
-    condition = 2.0 * float(np.max(np.abs(system.K.diagonal()))) * float(np.max(np.abs(diag)))
+    # (the relative unknowns of tethered nodes, stiff by construction, are left out: the short
+    # element's stiffness acts on them alone and costs no accuracy elsewhere)
+    relative = np.isin(system.free // 2, [t.node for t in system.tethers])
+    stiffest = float(np.max(np.abs(system.K.diagonal()[~relative]), initial=0.0))
+    condition = 2.0 * stiffest * float(np.max(np.abs(diag)))
     uncertainty = float(10.0 * np.finfo(float).eps * condition)
     return DunkerleyBound(1.0 / (2.0 * math.pi * math.sqrt(trace)), trace, None, exact, uncertainty)
+
+
+def _observe_at(mesh: fe.Mesh, system: fe.System, x: float) -> np.ndarray:
+    """Row giving the deflection at x [m] from the free DOFs (Hermite interpolation)."""
+    i = int(np.clip(np.searchsorted(mesh.x, x) - 1, 0, len(mesh.x) - 2))
+    for node in (i, i + 1):
+        if mesh.x[node] == x:
+            return system.observe(node)[0]
+    h = mesh.x[i + 1] - mesh.x[i]
+    t = (x - mesh.x[i]) / h
+    left, right = system.observe(i), system.observe(i + 1)
+    return (
+        (1 - 3 * t**2 + 2 * t**3) * left[0]
+        + h * (t - 2 * t**2 + t**3) * left[1]
+        + (3 * t**2 - 2 * t**3) * right[0]
+        + h * (t**3 - t**2) * right[1]
+    )
 
 
 # --- bracket and equivalent model ----------------------------------------------------------------
@@ -835,11 +914,15 @@ def dunkerley(member: Member) -> DunkerleyBound:
 def bracket(lower: DunkerleyBound, result: fe.FEResult, upper: RayleighEstimate) -> Bracket:
     """Place the FE fundamental between Dunkerley's and Rayleigh's bounds.
 
+    Only bounds that exist are used: where Dunkerley's sum gives no lower bound the status
+    says ``"upper bound only"`` and ``lower_reason`` says why.
+
     Returns
     -------
     Bracket
         ``inside`` is False (and the message says so loudly) if the FE value falls outside
-        the bracket by more than its estimated error, which must not happen.
+        a bound by more than its estimated error and the bound's uncertainty, which must not
+        happen.
     """
     mode = result.modes[0]
     f = mode.frequency_hz
@@ -850,20 +933,25 @@ def bracket(lower: DunkerleyBound, result: fe.FEResult, upper: RayleighEstimate)
     )
     width = None if lo is None else (upper.frequency_hz - lo) / f
     if not inside:
+        status = "check failed"
         message = (
             "CHECK FAILED: the finite-element fundamental lies outside the Dunkerley-Rayleigh "
             "bracket; the model or its input is suspect, do not use these results"
         )
     elif lo is None:
+        status = "upper bound only"
         message = (
             f"FE fundamental below the Rayleigh bound by {100 * (upper.frequency_hz - f) / f:.3g} %"
+            " (no lower bound)"
         )
     else:
+        status = "bracketed"
         message = (
             f"lower {lo:.6g} Hz <= FE {f:.6g} Hz <= upper {upper.frequency_hz:.6g} Hz "
             f"(width {100 * width:.3g} % of FE)"
         )
-    return Bracket(lo, f, upper.frequency_hz, width, inside, message)
+    reason = lower.reason if lo is None else None
+    return Bracket(lo, f, upper.frequency_hz, width, inside, message, status, reason)
 
 
 def equivalent_system(
@@ -906,3 +994,88 @@ def equivalent_system(
         raise InputError("estimate.reference", f"{at:.6g} m", "a point on the member")
     mass = 1.0 / phi**2
     return EquivalentSystem(at, mass, mode.omega**2 * mass)
+
+
+# --- flexibility terms without dense arrays ------------------------------------------------------
+
+
+def _sparse(row: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The non-zero entries of a probe row: (indices, values)."""
+    index = np.flatnonzero(row)
+    return index, row[index]
+
+
+def _flexibilities(K: Any, probes: list[tuple[np.ndarray, np.ndarray]]) -> np.ndarray:
+    """v^T K^-1 v for sparse probes v of a symmetric positive definite banded K.
+
+    Each probe touches a few neighbouring unknowns, so only the band of K^-1 is needed:
+    it is found from K's banded Cholesky factor L by the recurrence of the selected
+    inverse (Takahashi, Fagan and Chin, 1973; Z = K^-1 satisfies L^T Z = L^-1, whose upper
+    triangle is diagonal), in O(n p^2) time and O(n p) memory for bandwidth p.  A probe
+    reaching beyond the band, or a K that is not positive definite, takes sparse solves in
+    blocks of columns instead.
+    """
+    import scipy.linalg
+
+    n = K.shape[0]
+    if not probes:
+        return np.zeros(0)
+    coo = K.tocoo()
+    p = int(np.max(np.abs(coo.row - coo.col), initial=0))
+    span = max(int(index.max() - index.min()) for index, _ in probes)
+    if span <= p <= 16:
+        band = np.zeros((p + 1, n))
+        lower = coo.row >= coo.col
+        band[(coo.row - coo.col)[lower], coo.col[lower]] = coo.data[lower]
+        try:
+            factor = scipy.linalg.cholesky_banded(band, lower=True)
+        except np.linalg.LinAlgError:
+            factor = None
+        if factor is not None:
+            Z = _band_of_inverse(factor)
+            out = np.empty(len(probes))
+            for j, (index, values) in enumerate(probes):
+                total = 0.0
+                for a, va in zip(index, values, strict=True):
+                    for b, vb in zip(index, values, strict=True):
+                        total += va * vb * Z[abs(a - b), min(a, b)]
+                out[j] = total
+            return out
+    return _flexibilities_by_solves(K, probes)
+
+
+def _band_of_inverse(factor: np.ndarray) -> np.ndarray:
+    """Z[d, i] = (K^-1)[i + d, i] for d <= p, from K's lower banded Cholesky factor."""
+    p = factor.shape[0] - 1
+    n = factor.shape[1]
+    L = factor.T.tolist()  # L[i][d] = factor L[i + d, i]
+    Z = [[0.0] * (p + 1) for _ in range(n)]  # Z[i][d] = (K^-1)[i + d, i]
+
+    def z(a: int, b: int) -> float:
+        return Z[a][b - a] if a <= b else Z[b][a - b]
+
+    for i in range(n - 1, -1, -1):
+        li = L[i]
+        top = min(p, n - 1 - i)
+        for d in range(top, 0, -1):
+            j = i + d
+            Z[i][d] = -sum(li[k] * z(i + k, j) for k in range(1, top + 1)) / li[0]
+        Z[i][0] = (1.0 / li[0] - sum(li[k] * Z[i][k] for k in range(1, top + 1))) / li[0]
+    return np.array(Z).T
+
+
+def _flexibilities_by_solves(K: Any, probes: list[tuple[np.ndarray, np.ndarray]]) -> np.ndarray:
+    """v^T K^-1 v by sparse solves, a block of columns at a time (bounded memory)."""
+    import scipy.sparse.linalg
+
+    n = K.shape[0]
+    lu = scipy.sparse.linalg.splu(K.tocsc())
+    out = np.empty(len(probes))
+    block = 256
+    for start in range(0, len(probes), block):
+        chunk = probes[start : start + block]
+        V = np.zeros((n, len(chunk)))
+        for j, (index, values) in enumerate(chunk):
+            V[index, j] = values
+        out[start : start + len(chunk)] = np.einsum("ij,ij->j", V, lu.solve(V))
+    return out

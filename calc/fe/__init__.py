@@ -19,6 +19,7 @@ The package is split the way the method is:
 - ``eigen``: the eigen solvers behind one name -> method table;
 - ``adaptive``: the two-mesh solve and its error estimate;
 - ``checks``: soundness checks and the result;
+- ``count``: the independent mode count (inertia of K - omega^2 M);
 - ``buckling``: the lowest buckling load.
 """
 
@@ -28,6 +29,7 @@ from beamtone.calc.fe.adaptive import ACCURACY, shift_below, solve, solve_mesh
 from beamtone.calc.fe.assembly import System, assemble
 from beamtone.calc.fe.buckling import buckling_load, check_buckling
 from beamtone.calc.fe.checks import Solution, wavenumber
+from beamtone.calc.fe.count import ModeCount, count_below
 from beamtone.calc.fe.eigen import (
     DENSE_LIMIT,
     SOLVERS,
@@ -49,10 +51,14 @@ from beamtone.calc.fe.mesh import (
     mesh_through,
     stations,
 )
-from beamtone.calc.fe.result import FEResult, Mode
+from beamtone.calc.fe.result import ASSUMPTIONS, ESTIMATE_MEANING, FEResult, Mode
 
 __all__ = [
     "ACCURACY",
+    "ASSUMPTIONS",
+    "ESTIMATE_MEANING",
+    "ModeCount",
+    "count_below",
     "ATTACHMENT_TOLERANCE",
     "DENSE_LIMIT",
     "SOLVERS",

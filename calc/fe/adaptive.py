@@ -16,7 +16,14 @@ import scipy.sparse.linalg
 from beamtone.calc.errors import InputError
 from beamtone.calc.fe.assembly import assemble
 from beamtone.calc.fe.buckling import check_buckling
-from beamtone.calc.fe.checks import Solution, build_result, check_mass, check_system, wavenumber
+from beamtone.calc.fe.checks import (
+    Solution,
+    build_result,
+    check_mass,
+    check_system,
+    sizing_wavenumber,
+)
+from beamtone.calc.fe.count import check_count
 from beamtone.calc.fe.eigen import (
     Eigensolver,
     default_eigensolver,
@@ -168,7 +175,18 @@ def solve(
             f"the forced mesh of {reported.mesh.elements} elements leaves an estimated "
             f"error of {float(np.max(error)):.1e}, above the {accuracy:.0e} target"
         )
-    result = build_result(member, reported, rigid, modes, error, roundoff_dominated, warnings)
+    count = check_count(reported.system.K, reported.system.M, rigid, reported.lam[:modes])
+    if not count.ok:
+        missing = count.counted - count.found
+        warnings.append(
+            f"the independent mode count finds {count.counted} modes below "
+            f"{count.below_hz:.6g} Hz (rigid-body modes included) where the eigen solver "
+            f"returned {count.found}: "
+            + (f"{missing} mode(s) missing from this list" if missing > 0 else "a spurious mode")
+        )
+    result = build_result(
+        member, reported, rigid, modes, error, roundoff_dominated, warnings, count
+    )
     if extrapolate is not None:
         result = _with_eigenvalues(result, extrapolate[:modes])
     return result
@@ -284,7 +302,7 @@ def _designed_size(member: Member, omega: float, accuracy: float) -> Callable[[i
     # At least _MIN_ELEMENTS over the member keeps the error estimate in its asymptotic range
     # even for modes that barely bend it (a member bouncing on soft springs).
     kh = (1440.0 * accuracy * 0.1 * 16.0) ** 0.25
-    k = wavenumber(member, omega)
+    k = sizing_wavenumber(member, omega)
     longest = member.length / _MIN_ELEMENTS
     return lambda seg: min(kh / max(k[seg], 1e-300), longest)
 

@@ -9,6 +9,7 @@ and no full-size matrix is ever formed.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 import scipy.sparse
@@ -23,7 +24,7 @@ from beamtone.calc.fe.timoshenko import element_shear
 from beamtone.calc.fe.timoshenko import scaled_element_matrices as timoshenko_matrices
 from beamtone.calc.model import Member, holds
 
-__all__ = ["System", "assemble"]
+__all__ = ["System", "Tether", "assemble"]
 
 
 @dataclass(frozen=True)
@@ -63,9 +64,18 @@ class System:
     influence_load: np.ndarray
     total_mass: float
     lambda_max_bound: float
+    T: scipy.sparse.csr_matrix | None = None
+    tethers: tuple[Tether, ...] = ()
+    """``T`` maps all DOFs (scaled) to the physical nodal values where nodes are tethered."""
     shear: tuple[np.ndarray, np.ndarray] | None = None
     """Timoshenko theory: each element's shear parameter phi and rotary inertia per length
     (:func:`calc.fe.timoshenko.element_shear`); None for Euler-Bernoulli."""
+
+    def generalized(self, vectors: np.ndarray) -> np.ndarray:
+        """Vectors on the free DOFs spread over all DOFs (zero where held), scaled form."""
+        out = np.zeros((self.n_full, vectors.shape[1]))
+        out[self.free] = vectors
+        return out
 
     def full(self, vectors: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Nodal deflections and slopes (unscaled) of vectors on the free DOFs.
@@ -79,9 +89,56 @@ class System:
         w, theta : ndarray, shape (nodes, k)
             Deflections and slopes [rad per unit of the vectors' deflection]; zero where held.
         """
-        out = np.zeros((self.n_full, vectors.shape[1]))
-        out[self.free] = vectors
+        out = self.generalized(vectors)
+        if self.T is not None:
+            out = self.T @ out
         return out[0::2], out[1::2] / self.scale
+
+    def observe(self, node: int) -> np.ndarray:
+        """Rows giving the deflection [m] and slope [rad] at a node from the free DOFs.
+
+        Returns
+        -------
+        ndarray, shape (2, free DOFs)
+        """
+        rows = np.zeros((2, self.n_full))
+        if self.T is not None:
+            rows = self.T[2 * node : 2 * node + 2].toarray()
+        else:
+            rows[0, 2 * node] = rows[1, 2 * node + 1] = 1.0
+        rows[1] /= self.scale
+        return rows[:, self.free]
+
+
+@dataclass(frozen=True)
+class Tether:
+    """A node solved for relative to its neighbour: u = rigid extension of the neighbour + r.
+
+    Attributes
+    ----------
+    node, master : int
+        The tethered node and its neighbour.
+    offset : float
+        x[node] - x[master] [m] (either sign).
+    stiffness : ndarray, shape (2, 2)
+        The element's stiffness on (r_w, s*r_theta) [N/m]: its block at the tethered end.  A
+        rigid motion strains no element, so this block is the whole of the element's elastic
+        energy in the relative unknowns (a cantilever from the neighbour), taken straight
+        from the element matrix of the element's own theory, never from differences.
+    geometric : ndarray, shape (2, 2)
+        The same block of the geometric stiffness of a unit tension [1/m] (zero where it was
+        not assembled).
+    """
+
+    node: int
+    master: int
+    offset: float
+    stiffness: np.ndarray
+    geometric: np.ndarray
+
+    def energy_matrix(self, axial_force: float) -> np.ndarray:
+        """Stiffness on r of the element under the axial force [N/m] (scaled form)."""
+        return self.stiffness + axial_force * self.geometric
 
 
 def _block(out: list[tuple[int, int, float]], j: int, a: float, e: float, b: float) -> None:
@@ -213,12 +270,24 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
 
     pk, pm_ = _triplets(point_k), _triplets(point_m)
     no_points = _triplets([])
-    pattern = _pattern(free, number)
-    K_band = _band(ke + P * ge if ge is not None and P else ke, pk, n)
-    M_band = _band(me, pm_, n)
-    K = _reduced(K_band, pattern)
-    M = _reduced(M_band, pattern)
-    G = _reduced(_band(ge, no_points, n), pattern) if ge is not None and geometric else None
+    tethered = mesh.tethered
+    ke_total = ke + P * ge if ge is not None and P else ke
+    if tethered.any():
+        # the elements of tethered nodes enter through their own blocks (see _tethered)
+        ke_total = np.where(tethered[:, None, None], 0.0, ke_total)
+        ge_phys = None if ge is None else np.where(tethered[:, None, None], 0.0, ge)
+        K_band = _band(ke_total, pk, n)
+        M_band = _band(me, pm_, n)
+        G_band = _band(ge_phys, no_points, n) if ge_phys is not None and geometric else None
+        K, M, G, T, tethers = _tethered(member, mesh, free, s, K_band, M_band, G_band, ke, ge)
+    else:
+        pattern = _pattern(free, number)
+        K_band = _band(ke_total, pk, n)
+        M_band = _band(me, pm_, n)
+        K = _reduced(K_band, pattern)
+        M = _reduced(M_band, pattern)
+        G = _reduced(_band(ge, no_points, n), pattern) if ge is not None and geometric else None
+        T, tethers = None, ()
 
     # Mass-weighted rigid translation of member and ground together (all DOFs, held or not):
     # M_full @ 1_w, without the full matrix.  Element rows: consistent mass times [1, 0, 1, 0].
@@ -231,14 +300,15 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
         weights=np.concatenate([element_load.ravel(), pm_[2][w_cols]]),
         minlength=n,
     )
-    load = full_load[free]
+    load = (full_load if T is None else T.T @ full_load)[free]
     total_mass = float(full_load[0::2].sum())
 
     # Largest eigenvalue: bounded by the largest element eigenvalue (element eigenvalue bound,
     # common practice; Weyl's inequality for the axial part), plus what springs add at their
     # degrees of freedom.
-    lam_elem = float(np.max((ELEMENT_LAMBDA_MAX * EI + GEOMETRIC_LAMBDA_MAX * abs(P) * h**2)
-                            / (m * h**4)))  # fmt: skip
+    # (A tethered element's energy comes from its relative unknowns, not from differences.)
+    element_bound = (ELEMENT_LAMBDA_MAX * EI + GEOMETRIC_LAMBDA_MAX * abs(P) * h**2) / (m * h**4)
+    lam_elem = float(np.max(np.where(tethered, 0.0, element_bound)))
     on_diagonal = pk[0] == pk[1]
     diag_k = np.bincount(pk[0][on_diagonal], weights=pk[2][on_diagonal], minlength=n)
     mass_diag = M_band[0]
@@ -254,5 +324,95 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
         influence_load=load,
         total_mass=total_mass,
         lambda_max_bound=lam_elem + lam_spring,
+        T=T,
+        tethers=tethers,
         shear=shear,
     )
+
+
+def _full(band: np.ndarray) -> scipy.sparse.csr_matrix:
+    """The symmetric matrix of upper band storage, on all DOFs."""
+    n = band.shape[1]
+    upper = scipy.sparse.diags(
+        [band[d, : n - d] for d in range(1, _BAND + 1)], list(range(1, _BAND + 1)), shape=(n, n)
+    )
+    return (scipy.sparse.diags(band[0]) + upper + upper.T).tocsr()
+
+
+def _tethered(
+    member: Member,
+    mesh: Mesh,
+    free: np.ndarray,
+    s: float,
+    K_band: np.ndarray,
+    M_band: np.ndarray,
+    G_band: np.ndarray | None,
+    ke: np.ndarray,
+    ge: np.ndarray | None,
+) -> tuple[Any, Any, Any, scipy.sparse.csr_matrix, tuple[Tether, ...]]:
+    """K, M (and G) on the free DOFs where some nodes are tethered to a neighbour.
+
+    A tethered node's unknowns are its deflection and slope relative to the rigid extension
+    of its neighbour: u_node = (w_m + e theta_m, theta_m) + r.  The change of unknowns is exact;
+    the short element between the two contributes its stiffness on r alone (a rigid motion
+    does not strain it), so no entry of size EI/e^3 is ever added to, or subtracted from, the
+    entries of the rest of the member, and the attachment stays where the user put it at any
+    distance from the station, down to zero.
+    """
+    assert mesh.tether is not None
+    n = K_band.shape[1]
+    slaves = [int(j) for j in np.flatnonzero(mesh.tether >= 0)]
+    # masters first: a chain of tethers resolves from the station outwards
+    depth = {}
+    for j in slaves:
+        d, k = 0, j
+        while mesh.tether[k] >= 0:
+            k, d = int(mesh.tether[k]), d + 1
+        depth[j] = d
+    slaves.sort(key=lambda j: depth[j])
+    T = scipy.sparse.lil_matrix(scipy.sparse.identity(n, format="lil"))
+    tethers: list[Tether] = []
+    for j in slaves:
+        master = int(mesh.tether[j])
+        e = float(mesh.x[j] - mesh.x[master])
+        element = min(j, master)
+        end = slice(2, 4) if j > master else slice(0, 2)  # the tethered node's end
+        geo = np.zeros((2, 2)) if ge is None else ge[element, end, end].copy()
+        tethers.append(Tether(j, master, e, ke[element, end, end].copy(), geo))
+        row_w = T[2 * master].toarray()[0] + (e / s) * T[2 * master + 1].toarray()[0]
+        row_t = T[2 * master + 1].toarray()[0]
+        row_w[2 * j] += 1.0
+        row_t[2 * j + 1] += 1.0
+        T[2 * j] = row_w
+        T[2 * j + 1] = row_t
+    Tc = T.tocsr()
+    P = member.axial_force
+
+    def blocks(elastic: bool, tension: float) -> scipy.sparse.csr_matrix:
+        rows, cols, vals = [], [], []
+        for t in tethers:
+            block = (t.stiffness if elastic else 0.0) + tension * t.geometric
+            for a in range(2):
+                for b in range(2):
+                    rows.append(2 * t.node + a)
+                    cols.append(2 * t.node + b)
+                    vals.append(block[a, b])
+        extra = scipy.sparse.csr_matrix((vals, (rows, cols)), shape=(n, n))
+        if tension:
+            # the rigid rotation of the short element under the axial force: tension times
+            # |e| theta_m^2 + 2 sign(e) theta_m r_w (theta_m the neighbour's slope)
+            for t in tethers:
+                theta = Tc[2 * t.master + 1] / s
+                unit = scipy.sparse.csr_matrix(([1.0], ([0], [2 * t.node])), shape=(1, n))
+                sign = 1.0 if t.offset > 0 else -1.0
+                extra = extra + tension * abs(t.offset) * (theta.T @ theta)
+                extra = extra + tension * sign * (theta.T @ unit + unit.T @ theta)
+        return extra
+
+    def reduce(matrix: scipy.sparse.csr_matrix) -> scipy.sparse.csr_matrix:
+        return matrix[free][:, free].tocsr()
+
+    K = reduce(Tc.T @ _full(K_band) @ Tc + blocks(True, P))
+    M = reduce(Tc.T @ _full(M_band) @ Tc)
+    G = None if G_band is None else reduce(Tc.T @ _full(G_band) @ Tc + blocks(False, 1.0))
+    return K, M, G, Tc, tuple(tethers)

@@ -10,7 +10,7 @@ import numpy as np
 from beamtone.calc.errors import InputError
 from beamtone.calc.fe.assembly import assemble
 from beamtone.calc.fe.eigen import largest_eigenvalue
-from beamtone.calc.fe.mesh import build_mesh
+from beamtone.calc.fe.mesh import Mesh, build_mesh
 from beamtone.calc.model import Member, rigid_body_count, rotation_free
 
 __all__ = ["buckling_load", "check_buckling"]
@@ -40,24 +40,27 @@ def buckling_load(member: Member, elements: int | None = None) -> float:
     if rigid and rotation_free(unloaded):
         return 0.0
     mesh = build_mesh(unloaded, elements or max(64, 16 * len(member.segments)))
-    loads = []
-    for msh in (mesh, mesh.refined()):
-        system = assemble(unloaded, msh, geometric=True)
-        G = system.Kg_unit
-        assert G is not None
-        if rigid:
-            # drop one deflection DOF: both K and G vanish on a rigid translation
-            keep = np.arange(1, system.K.shape[0])
-            Ks = system.K[keep][:, keep]
-            Gs = G[keep][:, keep]
-        else:
-            Ks, Gs = system.K, G
-        top = largest_eigenvalue(Gs, Ks, system.K.shape[0])
-        loads.append(1.0 / top if top > 0 else math.inf)
+    loads = [_lowest_load(unloaded, msh, rigid) for msh in (mesh, mesh.refined())]
     coarse, fine = loads
     # Richardson on h^4 (Hermite elements) or h^2 (Timoshenko: constant shear strain)
     rate = 3.0 if member.theory == "timoshenko" else 15.0
     return fine - (coarse - fine) / rate if math.isfinite(fine) else math.inf
+
+
+def _lowest_load(unloaded: Member, mesh: Mesh, rigid: int) -> float:
+    """Lowest buckling load [N] of one mesh (inf where no compression buckles it)."""
+    system = assemble(unloaded, mesh, geometric=True)
+    G = system.Kg_unit
+    assert G is not None
+    if rigid:
+        # drop one deflection DOF: both K and G vanish on a rigid translation
+        keep = np.arange(1, system.K.shape[0])
+        Ks = system.K[keep][:, keep]
+        Gs = G[keep][:, keep]
+    else:
+        Ks, Gs = system.K, G
+    top = largest_eigenvalue(Gs, Ks, system.K.shape[0])
+    return 1.0 / top if top > 0 else math.inf
 
 
 def check_buckling(member: Member) -> None:

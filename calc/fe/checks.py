@@ -14,11 +14,19 @@ import numpy as np
 
 from beamtone.calc.errors import InputError
 from beamtone.calc.fe.assembly import System
+from beamtone.calc.fe.count import ModeCount
 from beamtone.calc.fe.mesh import Mesh
-from beamtone.calc.fe.result import FEResult, Mode
+from beamtone.calc.fe.result import FEResult, Mode, model_assumptions
 from beamtone.calc.model import Member
 
-__all__ = ["Solution", "wavenumber", "check_mass", "check_system", "build_result"]
+__all__ = [
+    "Solution",
+    "wavenumber",
+    "sizing_wavenumber",
+    "check_mass",
+    "check_system",
+    "build_result",
+]
 
 
 @dataclass(frozen=True)
@@ -50,7 +58,24 @@ class Solution:
 
 
 def wavenumber(member: Member, omega: float) -> list[float]:
-    """Bending wavenumber [1/m] of each segment at circular frequency omega [rad/s]."""
+    """Bending wavenumber [1/m] of each segment at circular frequency omega [rad/s].
+
+    The wavenumber k of w = sin(k x) in EI k^4 + P k^2 = m omega^2, with the axial force P
+    (tension positive): tension lengthens the waves, compression shortens them.
+    """
+    out = []
+    for seg in member.segments:
+        EI, m = seg.bending_stiffness, seg.mass_per_length
+        p = -member.axial_force / EI
+        q = omega**2 * m / EI
+        root = math.sqrt(p * p + 4.0 * q)
+        k2 = 0.5 * (p + root) if p >= 0.0 else 2.0 * q / (root - p) if root > p else 0.0
+        out.append(math.sqrt(max(k2, 0.0)))
+    return out
+
+
+def sizing_wavenumber(member: Member, omega: float) -> list[float]:
+    """Wavenumber [1/m] the mesh is sized by: tension left out (a finer mesh, never coarser)."""
     out = []
     for seg in member.segments:
         EI, m = seg.bending_stiffness, seg.mass_per_length
@@ -97,6 +122,7 @@ def build_result(
     error: np.ndarray,
     roundoff_dominated: bool,
     warnings: list[str],
+    mode_count: ModeCount | None = None,
 ) -> FEResult:
     """The result of a solve, with the soundness checks of the reported modes."""
     system = sol.system
@@ -162,22 +188,31 @@ def build_result(
         solver=sol.solver,
         roundoff_dominated=roundoff_dominated,
         warnings=tuple(warnings),
+        mode_count=mode_count,
+        assumptions=model_assumptions(member),
     )
 
 
 def _shear_warnings(member: Member, modes: list[Mode]) -> list[str]:
     # Euler-Bernoulli theory loses accuracy when a half-wavelength is short against the depth:
     # below about ten depths shear and rotary inertia lower the frequency (common practice).
+    # The half-wavelength includes the axial force, and is never taken longer than the member.
+    L = member.length
     for mode in modes:
         k = wavenumber(member, mode.omega)
         for i, seg in enumerate(member.segments):
-            half = math.pi / k[i]
+            half = min(math.pi / k[i], L) if k[i] > 0.0 else L
             depth = seg.section.effective_depth
             if half < 10.0 * depth:
                 where = f" in segment {i}" if len(member.segments) > 1 else ""
+                what = (
+                    f"half-wavelength {half:.3g} m{where}"
+                    if half < L
+                    else f"the member's length {L:.3g} m (shorter than the half-wavelength{where})"
+                )
                 return [
-                    f"mode {mode.number} and above: half-wavelength {half:.3g} m{where} is under "
-                    f"ten section depths ({10 * depth:.3g} m); shear deformation and rotary "
-                    "inertia make the true frequency lower than this bending-only result"
+                    f"mode {mode.number} and above: {what} is under ten section depths "
+                    f"({10 * depth:.3g} m); shear deformation and rotary inertia make the true "
+                    "frequency lower than this bending-only result"
                 ]
     return []

@@ -49,15 +49,27 @@ def strain_energy_quotient(
     k2 = (2.0 * a + 4.0 * b) / h
     P = member.axial_force
     if system.shear is None:
-        energy = (EI * h * (k1 * k1 + k1 * k2 + k2 * k2) / 3.0).sum(axis=0)
+        bending = EI * h * (k1 * k1 + k1 * k2 + k2 * k2) / 3.0
         if P != 0.0:
-            slope2 = h * (d * d + (2.0 * a * a - a * b + 2.0 * b * b) / 15.0)
-            energy = energy + P * slope2.sum(axis=0)
+            bending = bending + P * h * (d * d + (2.0 * a * a - a * b + 2.0 * b * b) / 15.0)
     else:  # Timoshenko: bending and shear energy together, and w'^2 of its deflection shape
         phi = system.shear[0][:, None]
-        energy = (EI / h * element_quotient(a, b, phi)).sum(axis=0)
+        bending = EI / h * element_quotient(a, b, phi)
         if P != 0.0:
-            energy = energy + P * (h * geometric_quotient(d, a, b, phi)).sum(axis=0)
+            bending = bending + P * h * geometric_quotient(d, a, b, phi)
+    tethered = mesh.tethered
+    energy = bending[~tethered].sum(axis=0)
+    if system.tethers:
+        # a tethered element's energy from its relative unknowns r (see assembly._tethered)
+        q = system.generalized(vecs)
+        for t in system.tethers:
+            r = q[2 * t.node : 2 * t.node + 2]
+            block = t.energy_matrix(P)
+            energy = energy + np.einsum("ik,ij,jk->k", r, block, r)
+            if P != 0.0:
+                th = theta[t.master]
+                sign = 1.0 if t.offset > 0 else -1.0
+                energy = energy + P * (abs(t.offset) * th * th + 2.0 * sign * th * r[0])
     for sp in member.springs:
         j, e = mesh.carrier(sp.at)
         at = w[j] + e * theta[j]
@@ -86,6 +98,9 @@ def rigid_vectors(member: Member, mesh: Mesh, system: System) -> np.ndarray:
     for i, (a, b) in enumerate(null):
         full[0::2, i] = a + b * xs
         full[1::2, i] = b / member.length * system.scale
+    if system.tethers:  # a rigid motion leaves a tethered node nothing relative
+        for t in system.tethers:
+            full[2 * t.node : 2 * t.node + 2] = 0.0
     R = full[system.free]
     # M-orthonormalize (Cholesky of the small Gram matrix)
     gram = R.T @ (system.M @ R)

@@ -13,6 +13,7 @@ from beamtone.calc.model import POSITION_TOLERANCE, Member
 
 __all__ = [
     "ATTACHMENT_TOLERANCE",
+    "SAME_POSITION",
     "Mesh",
     "stations",
     "build_mesh",
@@ -20,8 +21,14 @@ __all__ = [
     "interpolate",
 ]
 
-ATTACHMENT_TOLERANCE = 1e-4
-"""Masses and springs closer than this fraction of the length to a station ride on its node."""
+ATTACHMENT_TOLERANCE = 1e-3
+"""An attachment closer than this fraction of the length to its neighbouring station is
+tethered to it: one element between them that is never split, whose nodal values are solved
+for relative to the station (see :mod:`beamtone.calc.fe.assembly`)."""
+
+
+SAME_POSITION = 8.0 * float(np.finfo(float).eps)
+"""Positions closer than this fraction of the length cannot be told apart in floating point."""
 
 
 @dataclass(frozen=True)
@@ -36,16 +43,33 @@ class Mesh:
         Segment index of each element.
     station_nodes : dict of float to int
         Node index of every station (segment ends, attachments, inner supports) by position [m].
+    tether : ndarray of int, shape (n_nodes,), optional
+        For a node tethered to a neighbouring node (an attachment very close to another
+        station) the index of that neighbour, else -1.  The element between the two is
+        never split, and the tethered node's unknowns are its motion relative to the rigid
+        extension of its neighbour.
     """
 
     x: np.ndarray
     segment: np.ndarray
     station_nodes: dict[float, int]
+    tether: np.ndarray | None = None
 
     @property
     def elements(self) -> int:
         """Number of elements."""
         return len(self.segment)
+
+    @property
+    def tethered(self) -> np.ndarray:
+        """Per element: True for an element between a tethered node and its neighbour."""
+        out = np.zeros(self.elements, dtype=bool)
+        if self.tether is None:
+            return out
+        nodes = np.flatnonzero(self.tether >= 0)
+        masters = self.tether[nodes]
+        out[np.minimum(nodes, masters)] = True
+        return out
 
     def node_at(self, position: float) -> int:
         """Node index at a station position [m]."""
@@ -55,27 +79,39 @@ class Mesh:
         return int(np.argmin(np.abs(self.x - position)))
 
     def carrier(self, position: float) -> tuple[int, float]:
-        """Node carrying an attachment at ``position`` [m], and its offset from that node [m]."""
+        """Node carrying an attachment at ``position`` [m], and its offset from that node [m].
+
+        Every attachment is a node of its own, so the offset is zero but for positions
+        given slightly outside the member (clipped onto its ends).
+        """
         j = self.node_at(position)
         return j, float(position - self.x[j])
 
     def refined(self) -> Mesh:
-        """The mesh with every element split in two."""
-        mid = 0.5 * (self.x[:-1] + self.x[1:])
-        x = np.empty(2 * len(self.x) - 1)
-        x[0::2] = self.x
-        x[1::2] = mid
-        station_nodes = {p: 2 * n for p, n in self.station_nodes.items()}
-        return Mesh(x, np.repeat(self.segment, 2), station_nodes)
+        """The mesh with every element split in two (but the tethered ones, kept whole)."""
+        split = ~self.tethered
+        counts = 1 + split.astype(int)
+        new_index = np.concatenate([[0], np.cumsum(counts)])  # old node -> new node
+        x = np.empty(int(new_index[-1]) + 1)
+        x[new_index] = self.x
+        mids = new_index[:-1][split] + 1
+        x[mids] = 0.5 * (self.x[:-1] + self.x[1:])[split]
+        station_nodes = {p: int(new_index[n]) for p, n in self.station_nodes.items()}
+        tether = None
+        if self.tether is not None:
+            tether = np.full(len(x), -1)
+            old = np.flatnonzero(self.tether >= 0)
+            tether[new_index[old]] = new_index[self.tether[old]]
+        return Mesh(x, np.repeat(self.segment, counts), station_nodes, tether)
 
 
 def stations(member: Member) -> list[float]:
     """Positions that are nodes of every mesh [m], ascending, from 0 to L.
 
-    Segment ends and supports always are.  A mass or spring is a station of its own unless
-    it lies within ``ATTACHMENT_TOLERANCE`` of the member length from another station; it
-    is then carried by that station's node through a rigid offset (exact but for the
-    bending of so short a piece), since an element that short would ruin the conditioning.
+    Segment ends, supports and every attachment, at exactly the position given: nothing is
+    moved.  Segment ends and supports closer together than ``POSITION_TOLERANCE`` of the
+    length are one station; an attachment shares a station only where it is there to within
+    ``SAME_POSITION`` of the length (a few units in the last place of the positions).
     """
     L = member.length
     tol = POSITION_TOLERANCE * L
@@ -85,13 +121,12 @@ def stations(member: Member) -> list[float]:
         if not out or p - out[-1] > tol:
             out.append(p)
     out[-1] = L
-    near = ATTACHMENT_TOLERANCE * L
-    attached = sorted({min(max(a, 0.0), L) for a in _attachment_positions(member)})
-    for p in attached:
+    same = SAME_POSITION * L
+    for p in sorted({min(max(a, 0.0), L) for a in _attachment_positions(member)}):
         i = bisect.bisect_left(out, p)
-        gaps = [abs(out[j] - p) for j in (i - 1, i) if 0 <= j < len(out)]
-        if min(gaps) > near:
-            out.insert(i, p)
+        if any(abs(out[j] - p) <= same for j in (i - 1, i) if 0 <= j < len(out)):
+            continue
+        out.insert(i, p)
     return out
 
 
@@ -99,12 +134,46 @@ def _attachment_positions(member: Member) -> list[float]:
     return [m.at for m in member.masses] + [s.at for s in member.springs]
 
 
+def _tethers(member: Member, points: list[float]) -> dict[int, int]:
+    """Station index -> index of the neighbouring station it is tethered to.
+
+    Stations closer than ``ATTACHMENT_TOLERANCE`` of the length form a cluster; its first
+    support or segment end (else its first station) stays as it is, and every attachment of
+    the cluster is tethered to its neighbour on the side of that one.
+    """
+    L = member.length
+    near = ATTACHMENT_TOLERANCE * L
+    fixed = {min(max(p, 0.0), L) for p in member.boundaries}
+    fixed |= {s.at for s in member.inner_supports}
+    attached = {min(max(a, 0.0), L) for a in _attachment_positions(member)}
+    out: dict[int, int] = {}
+    start = 0
+    for end in range(1, len(points) + 1):
+        if end < len(points) and points[end] - points[end - 1] < near:
+            continue
+        cluster = range(start, end)
+        roots = [i for i in cluster if points[i] in fixed or points[i] not in attached]
+        root = roots[0] if roots else start
+        for i in cluster:
+            if i != root and points[i] in attached and points[i] not in fixed:
+                out[i] = i - 1 if i > root else i + 1
+        start = end
+    return out
+
+
+def _tether_array(n_nodes: int, station_index: list[int], links: dict[int, int]) -> np.ndarray:
+    tether = np.full(n_nodes, -1)
+    for i, j in links.items():
+        tether[station_index[i]] = station_index[j]
+    return tether
+
+
 def _map_attachments(member: Member, points: list[float], station_nodes: dict[float, int]) -> None:
     """Map every attachment and support position to the node of its station."""
     arr = np.asarray(points)
     positions = _attachment_positions(member) + [s.at for s in member.inner_supports]
     for p in positions:
-        if p not in station_nodes:  # one riding on a nearby station's node
+        if p not in station_nodes:  # given just outside the member, or merged with a support
             nearest = float(arr[int(np.argmin(np.abs(arr - p)))])
             station_nodes[p] = station_nodes[nearest]
 
@@ -125,14 +194,18 @@ def build_mesh(member: Member, element_size: Callable[[int], float] | int) -> Me
     Mesh
     """
     points = stations(member)
+    links = _tethers(member, points)
     L = member.length
     counts: list[int] = []
     seg_of: list[int] = []
     station_nodes: dict[float, int] = {points[0]: 0}
+    station_index = [0]
     node = 0
-    for a, b in zip(points[:-1], points[1:], strict=True):
+    for i, (a, b) in enumerate(zip(points[:-1], points[1:], strict=True)):
         seg = member.segment_index(0.5 * (a + b))
-        if isinstance(element_size, int):
+        if links.get(i) == i + 1 or links.get(i + 1) == i:
+            n = 1  # a tethered pair: one element, never split
+        elif isinstance(element_size, int):
             n = max(1, round(element_size * (b - a) / L))
         else:
             n = max(1, math.ceil((b - a) / element_size(seg) - 1e-9))
@@ -140,6 +213,7 @@ def build_mesh(member: Member, element_size: Callable[[int], float] | int) -> Me
         seg_of.append(seg)
         node += n
         station_nodes[b] = node
+        station_index.append(node)
     # every interval split evenly, all at once: node k of an interval [a, b] of n elements
     # is at a + (b - a) k / n
     sizes = np.array(counts)
@@ -148,13 +222,17 @@ def build_mesh(member: Member, element_size: Callable[[int], float] | int) -> Me
     first = np.repeat(np.cumsum(sizes) - sizes, sizes)
     k = np.arange(node) - first
     x = np.concatenate([left + width * (k / np.repeat(sizes, sizes)), [L]])
-    mesh = Mesh(x, np.repeat(np.array(seg_of, dtype=int), sizes), station_nodes)
+    tether = _tether_array(len(x), station_index, links) if links else None
+    mesh = Mesh(x, np.repeat(np.array(seg_of, dtype=int), sizes), station_nodes, tether)
     _map_attachments(member, points, station_nodes)
     return mesh
 
 
 def mesh_through(member: Member, points: np.ndarray) -> Mesh:
     """A mesh whose nodes are the stations and the given points, one element between each.
+
+    Every station is kept; a given point closer than ``POSITION_TOLERANCE`` of the length to
+    a node already there is left out.
 
     Parameters
     ----------
@@ -167,22 +245,28 @@ def mesh_through(member: Member, points: np.ndarray) -> Mesh:
     Mesh
     """
     fixed = stations(member)
+    links = _tethers(member, fixed)
     L = member.length
     tol = POSITION_TOLERANCE * L
-    merged: list[float] = []
-    for p in sorted([*fixed, *np.clip(points, 0.0, L).tolist()]):
-        if not merged or p - merged[-1] > tol:
-            merged.append(p)
-        elif p in fixed:
-            merged[-1] = p
-    merged[-1] = L
-    x = np.asarray(merged)
+    tethered_gaps = [(fixed[min(i, j)], fixed[max(i, j)]) for i, j in links.items()]
+    kept = np.asarray(fixed)
+    extra: list[float] = []
+    for p in sorted(np.clip(points, 0.0, L).tolist()):
+        if np.min(np.abs(kept - p)) <= tol or (extra and p - extra[-1] <= tol):
+            continue
+        if any(a < p < b for a, b in tethered_gaps):
+            continue
+        extra.append(p)
+    x = np.asarray(sorted([*fixed, *extra]))
     segment = np.array(
         [member.segment_index(0.5 * (a + b)) for a, b in zip(x[:-1], x[1:], strict=True)]
     )
-    station_nodes = {p: int(np.argmin(np.abs(x - p))) for p in fixed}
+    index = {p: i for i, p in enumerate(x.tolist())}
+    station_nodes = {p: index[p] for p in fixed}
+    station_index = [index[p] for p in fixed]
+    tether = _tether_array(len(x), station_index, links) if links else None
     _map_attachments(member, fixed, station_nodes)
-    return Mesh(x, segment, station_nodes)
+    return Mesh(x, segment, station_nodes, tether)
 
 
 def interpolate(x_nodes: np.ndarray, w: np.ndarray, theta: np.ndarray, at: float) -> float:

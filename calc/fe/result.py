@@ -6,7 +6,36 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-__all__ = ["Mode", "FEResult"]
+from beamtone.calc.fe.count import ModeCount
+
+__all__ = ["ASSUMPTIONS", "ESTIMATE_MEANING", "Mode", "FEResult", "model_assumptions"]
+
+ESTIMATE_MEANING = (
+    "est. error is the numerical error of the solution of the stated model (discretization "
+    "and round-off); it does not include the model assumptions listed"
+)
+"""What a mode's estimated error is, in one line for every output."""
+
+ASSUMPTIONS: tuple[str, ...] = (
+    "bending in one plane (the depth plane of the section), uncoupled from the other plane, "
+    "torsion and axial motion",
+    "Euler-Bernoulli beam: no shear deformation and no rotary inertia of the section",
+    "rigid supports exactly as given: no support compliance unless given as springs",
+    "nominal values: dimensions, material properties, masses and stiffnesses as given, "
+    "without tolerances",
+    "linear, undamped, small vibration about the straight member under a constant axial force",
+    "point masses rigid and acting at a point; springs grounded and massless",
+)
+"""What the finite-element result leaves out (later capabilities remove lines)."""
+
+_SHEAR_LINE = 1
+
+
+def model_assumptions(member: object) -> tuple[str, ...]:
+    """The assumptions that hold for a solve of ``member`` (its beam theory decides one line)."""
+    if getattr(member, "theory", None) == "timoshenko":
+        return ASSUMPTIONS[:_SHEAR_LINE] + ASSUMPTIONS[_SHEAR_LINE + 1 :]
+    return ASSUMPTIONS
 
 
 @dataclass(frozen=True)
@@ -82,6 +111,11 @@ class FEResult:
         True where round-off, not discretization, limits the accuracy.
     warnings : tuple of str
         Things the user should know about this result.
+    mode_count : ModeCount or None
+        The independent count of the modes below the highest reported one (inertia of
+        K - omega^2 M on the reported mesh) against the modes found.
+    assumptions : tuple of str
+        What the model leaves out; the estimated errors do not include these.
     """
 
     modes: tuple[Mode, ...]
@@ -96,6 +130,13 @@ class FEResult:
     solver: str
     roundoff_dominated: bool
     warnings: tuple[str, ...]
+    mode_count: ModeCount | None = None
+    assumptions: tuple[str, ...] = ASSUMPTIONS
+
+    @property
+    def estimate_meaning(self) -> str:
+        """What the per-mode estimated error is (and is not), in one line."""
+        return ESTIMATE_MEANING
 
     @property
     def frequencies_hz(self) -> np.ndarray:
