@@ -3,10 +3,11 @@
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 
-_ROOT = __import__("pathlib").Path(__file__).resolve().parents[2]
+import pytest
+
+from tests.cli.inprocess import run
+
 _SHEET = """format = 1
 title = "mast with a compliant base"
 [member]
@@ -28,23 +29,25 @@ modes = 2
 """
 
 
-def _run(*args: str) -> subprocess.CompletedProcess[str]:
-    code = "import sys; from beamtone.cli.main import main; raise SystemExit(main(sys.argv[1:]))"
-    return subprocess.run(
-        [sys.executable, "-c", code, *args], capture_output=True, text=True, timeout=600
-    )
+class _Done:
+    def __init__(self, status: int, out: str, err: str) -> None:
+        self.returncode, self.stdout, self.stderr = status, out, err
 
 
-def test_scatter_json_and_solve_bands(tmp_path) -> None:  # noqa: ANN001
+def _run(capsys: pytest.CaptureFixture[str], *args: str) -> _Done:
+    return _Done(*run(capsys, *args))
+
+
+def test_scatter_json_and_solve_bands(tmp_path, capsys: pytest.CaptureFixture[str]) -> None:  # noqa: ANN001
     sheet = tmp_path / "mast.toml"
     sheet.write_text(_SHEET)
-    out = _run("scatter", str(sheet), "--samples", "64", "--json")
+    out = _run(capsys, "scatter", str(sheet), "--samples", "64", "--json")
     assert out.returncode == 0, out.stderr
     data = json.loads(out.stdout)
     assert data["samples"] == 64 and len(data["modes"]) == 2
     p = data["modes"][0]["percentiles_hz"]
     assert p["p1"] <= p["p50"] <= p["p99"]
-    solve = json.loads(_run("solve", str(sheet), "--json").stdout)
+    solve = json.loads(_run(capsys, "solve", str(sheet), "--json").stdout)
     first = solve["modes"][0]
     assert set(first["band"]) == {"low_hz", "high_hz", "method"}
     assert first["band"]["low_hz"] <= p["p1"] and p["p99"] <= first["band"]["high_hz"]
@@ -53,28 +56,30 @@ def test_scatter_json_and_solve_bands(tmp_path) -> None:  # noqa: ANN001
     assert sheet.read_text() == _SHEET  # nothing the user wrote is modified
 
 
-def test_batch_table_and_bad_input(tmp_path) -> None:  # noqa: ANN001
+def test_batch_table_and_bad_input(tmp_path, capsys: pytest.CaptureFixture[str]) -> None:  # noqa: ANN001
     sheet = tmp_path / "mast.toml"
     sheet.write_text(_SHEET)
     table = tmp_path / "rows.csv"
     table.write_text("name,member.section.wall [mm]\nthin,2\nthick,4\n")
-    out = _run("batch", str(sheet), "--table", str(table), "--csv")
+    out = _run(capsys, "batch", str(sheet), "--table", str(table), "--csv")
     assert out.returncode == 0, out.stderr
     lines = out.stdout.splitlines()
     assert lines[0].startswith("name,member.section.wall") and len(lines) == 3
-    bad = _run("batch", str(sheet), "--table", str(tmp_path / "missing.csv"))
+    bad = _run(capsys, "batch", str(sheet), "--table", str(tmp_path / "missing.csv"))
     assert bad.returncode == 2 and "--table" in bad.stderr and "Traceback" not in bad.stderr
     plain = tmp_path / "plain.toml"
     plain.write_text(_SHEET.split("[tolerances]")[0].replace(
         'left_rotational_stiffness = ["30 kN*m/rad", "rigid"]\n', ""))  # fmt: skip
-    none = _run("scatter", str(plain), "--samples", "10")
+    none = _run(capsys, "scatter", str(plain), "--samples", "10")
     assert none.returncode == 2 and "tolerances" in none.stderr
 
 
-def test_report_shows_the_bands_and_a_histogram(tmp_path) -> None:  # noqa: ANN001
+def test_report_shows_the_bands_and_a_histogram(
+    tmp_path, capsys: pytest.CaptureFixture[str]
+) -> None:  # noqa: ANN001
     sheet = tmp_path / "mast.toml"
     sheet.write_text(_SHEET)
-    out = _run("report", str(sheet), "-o", str(tmp_path / "mast.md"), "--scatter", "40")
+    out = _run(capsys, "report", str(sheet), "-o", str(tmp_path / "mast.md"), "--scatter", "40")
     assert out.returncode == 0, out.stderr
     text = (tmp_path / "mast.md").read_text()
     assert (
