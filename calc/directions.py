@@ -49,6 +49,8 @@ __all__ = [
     "torsion_problem",
     "axial_problem",
     "solve_directions",
+    "SIZING_DIRECTIONS",
+    "frequencies",
 ]
 
 COUPLING_NOTE = (
@@ -606,6 +608,47 @@ def _model_notes(member: Member) -> tuple[str, ...]:
     if "i-beam" in shapes and member.axial_force < 0.0:
         notes.append("compression in an open section: flexural-torsional effects are not modelled")
     return tuple(notes)
+
+
+SIZING_DIRECTIONS = ("governing", *DIRECTIONS)
+"""What sizing and sweeps may follow: one direction's modes, or ``"governing"``: the lowest
+modes of every direction together, lowest first."""
+
+
+def frequencies(member: Member, modes: int, direction: str, key: str = "--direction") -> np.ndarray:
+    """The natural frequencies [Hz] sizing and sweeps follow, lowest first.
+
+    Parameters
+    ----------
+    member : Member
+    modes : int
+        Modes in each direction (``"governing"``: the ``modes`` lowest of all directions).
+    direction : str
+        One of ``SIZING_DIRECTIONS``.
+    key : str
+        What the direction is called in errors.
+
+    Returns
+    -------
+    ndarray, shape (modes,)
+
+    Raises
+    ------
+    InputError
+        For an unknown direction, or one that is not computed for this member (the reason
+        says why), or fewer modes than asked.
+    """
+    if direction not in SIZING_DIRECTIONS:
+        raise InputError(key, direction, "one of " + ", ".join(SIZING_DIRECTIONS))
+    if direction == "depth":
+        return fe.solve(member, modes).frequencies_hz
+    dirs = solve_directions(member, modes)
+    if direction == "governing":
+        return np.array([m.frequency_hz for m in dirs.all_modes[:modes]])
+    chosen = dirs[direction]
+    if not chosen.computed:
+        raise InputError(key, direction, "a direction computed for this member", chosen.reason)
+    return np.array([m.frequency_hz for m in chosen.modes])
 
 
 def solve_directions(

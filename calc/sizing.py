@@ -26,8 +26,16 @@ from beamtone.calc.design_values import (
     read_sizes,
     read_step,
 )
+from beamtone.calc.directions import LABELS, SIZING_DIRECTIONS, frequencies, solve_directions
 from beamtone.calc.errors import InputError
-from beamtone.calc.excitation import Excitation, MarginTable, lines, margin_table, mode_refs
+from beamtone.calc.excitation import (
+    Excitation,
+    MarginTable,
+    ModeRef,
+    lines,
+    margin_table,
+    mode_refs,
+)
 from beamtone.calc.model import Member, Segment
 from beamtone.calc.sections import build_section
 from beamtone.calc.units import (
@@ -448,9 +456,10 @@ class SweepResult:
 class _Evaluator:
     """Solves the member at values of the variable, remembering what it solved."""
 
-    def __init__(self, var: Variation, modes: int) -> None:
+    def __init__(self, var: Variation, modes: int, direction: str = "depth") -> None:
         self.var = var
         self.modes = modes
+        self.direction = direction
         self.cache: dict[float, tuple[np.ndarray, float]] = {}
         self.solved = 0
         self._reference: tuple[similitude.MemberGroups, np.ndarray] | None = None
@@ -460,9 +469,9 @@ class _Evaluator:
         if hit is not None:
             return hit
         member = self.var.member(value)
-        freqs = self._scaled(member)
+        freqs = self._scaled(member) if self.direction == "depth" else None
         if freqs is None:
-            freqs = fe.solve(member, self.modes).frequencies_hz
+            freqs = frequencies(member, self.modes, self.direction)
             self.solved += 1
             if self._reference is None:
                 self._reference = (similitude.member_groups(member), freqs)
@@ -482,6 +491,13 @@ class _Evaluator:
             if a.variable != b.variable or not math.isclose(a.value, b.value, rel_tol=1e-13):
                 return None
         return freqs * (mine.frequency_scale / groups.frequency_scale)
+
+
+def _mode_words(mode: int, direction: str) -> str:
+    """How messages name the mode sizing follows."""
+    if direction == "governing":
+        return f"mode {mode} of all directions"
+    return f"mode {mode}" if direction == "depth" else f"{LABELS[direction]} mode {mode}"
 
 
 def _check_range(var: Variation, low: float, high: float) -> tuple[float, float]:
@@ -525,7 +541,14 @@ def _roots(g: Any, grid: np.ndarray, values: np.ndarray) -> list[float]:
 
 
 def size_for_target(
-    sheet: Worksheet, key: str, low: float, high: float, target_hz: float, mode: int = 1
+    sheet: Worksheet,
+    key: str,
+    low: float,
+    high: float,
+    target_hz: float,
+    mode: int = 1,
+    *,
+    direction: str = "depth",
 ) -> SizingResult:
     """Every value of ``key`` in [low, high] at which mode ``mode`` has frequency ``target_hz``.
 
@@ -540,6 +563,10 @@ def size_for_target(
         Target frequency [Hz].
     mode : int
         Which flexible mode (1 = fundamental).
+    direction : str
+        Whose mode ``mode`` is: ``"depth"`` (default, the plane as drawn, as before every
+        direction was solved), ``"width"``, ``"torsion"``, ``"axial"``, or ``"governing"``
+        (the lowest modes of every direction together).
 
     Returns
     -------
@@ -549,7 +576,8 @@ def size_for_target(
     """
     var = variation(sheet, key)
     low, high = _check_range(var, low, high)
-    ev = _Evaluator(var, mode)
+    ev = _Evaluator(var, mode, direction)
+    named = _mode_words(mode, direction)
 
     def g(v: float) -> float:
         return float(ev(v)[0][mode - 1] - target_hz)
@@ -568,10 +596,11 @@ def size_for_target(
         s = solutions[best]
         where = "larger" if s.above == "above" else "smaller"
         message = (
-            f"mode {mode} equals {target_hz:.6g} Hz at {len(solutions)} value"
+            f"{named} equals {target_hz:.6g} Hz at {len(solutions)} value"
             f"{'s' if len(solutions) > 1 else ''} of {key}; least member mass at {s.value} "
             f"({s.member_mass_kg:.4g} kg); {where} values give a higher frequency"
         )
+        message += _target_note(direction)
         return SizingResult(key, var.unit, target_hz, mode, tuple(solutions), best, message)
     # no crossing: the best value in range
     acceptable = values >= 0.0
@@ -579,19 +608,26 @@ def size_for_target(
         masses = [ev(v)[1] for v in grid]
         i = int(np.argmin(masses))
         message = (
-            f"mode {mode} stays above {target_hz:.6g} Hz over the whole range; least member "
+            f"{named} stays above {target_hz:.6g} Hz over the whole range; least member "
             f"mass at {var.text(float(grid[i]))}"
         )
     else:
         i = int(np.argmax(values))
         message = (
-            f"mode {mode} stays below {target_hz:.6g} Hz over the whole range; the highest is "
+            f"{named} stays below {target_hz:.6g} Hz over the whole range; the highest is "
             f"{values[i] + target_hz:.6g} Hz at {var.text(float(grid[i]))}"
         )
     v = float(grid[i])
     freqs, mass = ev(v)
     best_in_range = Solution(var.text(v), v, float(freqs[mode - 1]), mass, "none")
+    message += _target_note(direction)
     return SizingResult(key, var.unit, target_hz, mode, (best_in_range,), None, message)
+
+
+def _target_note(direction: str) -> str:
+    if direction != "depth":
+        return ""
+    return "; depth-plane bending only (--direction governing follows every direction)"
 
 
 def margins(
@@ -632,6 +668,7 @@ def size_for_excitation(
     excitations: tuple[Excitation, ...] | None = None,
     step: float | None = None,
     sizes: tuple[float, ...] | None = None,
+    direction: str = "depth",
 ) -> SizingResult:
     """Values of ``key`` that keep every computed mode outside every excitation band, and a
     practical (rounded) value that keeps its margin.
@@ -675,7 +712,7 @@ def size_for_excitation(
     var = variation(sheet, key)
     low, high = _check_range(var, low, high)
     count = modes or sheet.modes
-    ev = _Evaluator(var, count)
+    ev = _Evaluator(var, count, direction)
     bands = tuple(
         ExcitationLine(int(line.order or 0), line.low_hz, line.band_low_hz, line.band_high_hz)
         for e in excitations
@@ -717,8 +754,7 @@ def size_for_excitation(
 
     def evaluate(value: float) -> tuple[MarginTable, float]:
         member = var.member(value / per_unit)
-        solved = fe.solve(member, count)
-        return margin_table(excitations, mode_refs(solved)), member.member_mass
+        return margin_table(excitations, _refs(member, count, direction)), member.member_mass
 
     practical = practical_values(
         evaluate, [(a * per_unit, b * per_unit) for a, b in spans_si], low * per_unit,
@@ -726,7 +762,7 @@ def size_for_excitation(
     )  # fmt: skip
     spans = ", ".join(f"{a} to {b}" for a, b in intervals) or "isolated values only"
     message = f"every mode clears the bands for {key} in: {spans}; {practical.message}"
-    message += "; only the depth-plane bending modes were checked"
+    message += _checked_words(direction)
     chosen = practical.recommended
     if chosen is None:
         return SizingResult(
@@ -746,6 +782,23 @@ def size_for_excitation(
     )  # fmt: skip
 
 
+def _refs(member: Member, count: int, direction: str) -> tuple[ModeRef, ...]:
+    """The modes an excitation sizing checks, each named by its direction."""
+    if direction == "depth":
+        return mode_refs(fe.solve(member, count))
+    dirs = solve_directions(member, count)
+    chosen = dirs.all_modes if direction == "governing" else dirs[direction].modes
+    return tuple(ModeRef(m.direction, m.number, m.frequency_hz, m.estimated_error) for m in chosen)
+
+
+def _checked_words(direction: str) -> str:
+    if direction == "depth":
+        return "; only the depth-plane bending modes were checked"
+    if direction == "governing":
+        return "; every mode of every direction computed was checked"
+    return f"; only the {LABELS[direction]} modes were checked"
+
+
 def _clear(freqs: np.ndarray, lines: tuple[ExcitationLine, ...], tolerance: float) -> bool:
     for f in freqs:
         for line in lines:
@@ -755,7 +808,14 @@ def _clear(freqs: np.ndarray, lines: tuple[ExcitationLine, ...], tolerance: floa
 
 
 def sweep(
-    sheet: Worksheet, key: str, low: float, high: float, points: int, modes: int | None = None
+    sheet: Worksheet,
+    key: str,
+    low: float,
+    high: float,
+    points: int,
+    modes: int | None = None,
+    *,
+    direction: str = "depth",
 ) -> SweepResult:
     """Tabulate the first modes and the member mass against one quantity.
 
@@ -763,7 +823,9 @@ def sweep(
     exactly instead of solved again (a uniform member without attachments, varied in length
     or material, needs one solve in all).  Sweeps of more than 64 points interpolate between
     solves at Chebyshev points, each interval verified by direct solves to a tenth of the
-    finite-element accuracy and halved where it misses.
+    finite-element accuracy and halved where it misses.  ``direction`` chooses whose modes are
+    tabulated: ``"depth"`` (default), another direction, or ``"governing"`` (the lowest modes
+    of every direction together); scaling by similitude applies to the depth plane alone.
 
     Returns
     -------
@@ -774,7 +836,7 @@ def sweep(
     var = variation(sheet, key)
     low, high = _check_range(var, low, high)
     count = modes or sheet.modes
-    ev = _Evaluator(var, count)
+    ev = _Evaluator(var, count, direction)
     grid = np.linspace(low, high, points)
     freqs = np.empty((points, count))
     mass = np.empty(points)
@@ -864,6 +926,8 @@ def sweep2(
     first: tuple[str, float, float, int],
     second: tuple[str, float, float, int],
     modes: int | None = None,
+    *,
+    direction: str = "depth",
 ) -> Sweep2Result:
     """Tabulate the first modes and the member mass over two quantities at once.
 
@@ -898,7 +962,7 @@ def sweep2(
         hit = cache.get((a, b))
         if hit is None:
             member = var1.member(a, (var2, b))
-            hit = (fe.solve(member, count).frequencies_hz, member.member_mass)
+            hit = (frequencies(member, count, direction), member.member_mass)
             cache[(a, b)] = hit
         return hit
 
@@ -1034,6 +1098,8 @@ class SizingRequest:
         Rounding step of an excitation sizing, in the worksheet's unit of the key.
     sizes : tuple of float or None
         Available sizes, in the worksheet's unit of the key.
+    direction : str
+        Whose modes to follow: one direction (``calc.directions``) or ``"governing"``.
     """
 
     variation: Variation
@@ -1047,6 +1113,7 @@ class SizingRequest:
     excitations: tuple[Excitation, ...] | None = None
     step: float | None = None
     sizes: tuple[float, ...] | None = None
+    direction: str = "depth"
 
 
 def read_value(var: Variation, text: str, name: str) -> float:
@@ -1070,6 +1137,7 @@ def read_request(
     names: dict[str, str] | None = None,
     step: str | None = None,
     sizes: str | None = None,
+    direction: str = "depth",
 ) -> SizingRequest:
     """Check a sizing request as the user wrote it (the command line's options, the app's
     fields) and return it in SI.
@@ -1093,6 +1161,8 @@ def read_request(
     step, sizes : str or None
         For an excitation: a rounding step (``"1 mm"``) or available sizes (``"150, 160 mm"``
         or ``"@FILE"``), at most one (see :mod:`calc.design_values`).
+    direction : str
+        Whose modes to follow: ``"depth"`` (default), another direction, or ``"governing"``.
 
     Raises
     ------
@@ -1100,6 +1170,10 @@ def read_request(
         Keyed by the offending input's name, for the first input that is wrong.
     """
     name = {**_CLI_NAMES, **(names or {})}
+    if direction not in SIZING_DIRECTIONS:
+        what = name.get("direction", "--direction")
+        hint = schema.hint(str(direction), SIZING_DIRECTIONS)
+        raise InputError(what, direction, "one of " + ", ".join(SIZING_DIRECTIONS), hint)
     var = variation(sheet, key)
     bounds = [read_value(var, text, name[which]) for which, text in (("low", low), ("high", high))]
     if target is not None and excitation is not None:
@@ -1128,11 +1202,13 @@ def read_request(
                 raise InputError(name["mode"], mode, "a mode number, 1 or more") from None
         if not 1 <= mode <= MAX_MODES:
             raise InputError(name["mode"], mode, f"a mode number from 1 to {MAX_MODES}")
-        return SizingRequest(var, bounds[0], bounds[1], target_hz, None, mode)
+        return SizingRequest(var, bounds[0], bounds[1], target_hz, None, mode,
+                             direction=direction)  # fmt: skip
     if excitation is None:
         return SizingRequest(
-            var, bounds[0], bounds[1], None, None, excitations=sheet.excitations, **rounding
-        )
+            var, bounds[0], bounds[1], None, None, excitations=sheet.excitations,
+            direction=direction, **rounding,
+        )  # fmt: skip
     excitation_hz = parse_frequency(excitation, name["excitation"])
     try:
         orders = parse_harmonics(harmonics)
@@ -1140,8 +1216,9 @@ def read_request(
     except InputError as exc:
         raise InputError(name[exc.key.lstrip("-")], exc.value, exc.expected, exc.hint) from None
     return SizingRequest(
-        var, bounds[0], bounds[1], None, excitation_hz, 1, orders, fraction, **rounding
-    )
+        var, bounds[0], bounds[1], None, excitation_hz, 1, orders, fraction,
+        direction=direction, **rounding,
+    )  # fmt: skip
 
 
 def run_request(request: SizingRequest) -> SizingResult:
@@ -1149,10 +1226,11 @@ def run_request(request: SizingRequest) -> SizingResult:
     var = request.variation
     if request.target_hz is not None:
         return size_for_target(
-            var.sheet, var.key, request.low, request.high, request.target_hz, request.mode
-        )
+            var.sheet, var.key, request.low, request.high, request.target_hz, request.mode,
+            direction=request.direction,
+        )  # fmt: skip
     return size_for_excitation(
         var.sheet, var.key, request.low, request.high, request.excitation_hz,
         request.harmonics, request.margin, excitations=request.excitations,
-        step=request.step, sizes=request.sizes,
+        step=request.step, sizes=request.sizes, direction=request.direction,
     )  # fmt: skip

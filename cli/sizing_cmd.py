@@ -39,7 +39,7 @@ def size(args: argparse.Namespace) -> int:
     request = sizing.read_request(
         sheet, args.vary, *args.between, target=args.target, excitation=args.excitation,
         mode=args.mode, harmonics=args.harmonics, margin=args.margin, step=args.step,
-        sizes=args.sizes,
+        sizes=args.sizes, direction=args.direction,
     )  # fmt: skip
     var = request.variation
     result = sizing.run_request(request)
@@ -56,6 +56,7 @@ def size(args: argparse.Namespace) -> int:
             "variable": result.variable,
             "target_hz": result.target_hz,
             "mode": result.mode,
+            "direction": request.direction,
             "solutions": [
                 {
                     "value": s.value,
@@ -148,11 +149,14 @@ def sweep(args: argparse.Namespace) -> int:
         return _sweep2(args, sheet, var, low, high)
     if args.between2 is not None:
         raise InputError("--between2", " ".join(args.between2), "--vary2 KEY as well")
-    result = sizing.sweep(sheet, args.vary, low, high, args.points, args.modes)
+    result = sizing.sweep(
+        sheet, args.vary, low, high, args.points, args.modes, direction=args.direction
+    )
     if args.json:
         write_json(
             {
                 "variable": result.variable,
+                "direction": args.direction,
                 "unit": result.unit,
                 "points": [
                     {
@@ -202,7 +206,7 @@ def _sweep2(args: argparse.Namespace, sheet: Any, var: Any, low: float, high: fl
     low2, high2 = (sizing.read_value(var2, t, "--between2") for t in args.between2)
     result = sizing.sweep2(
         sheet, (args.vary, low, high, args.points), (args.vary2, low2, high2, args.points2),
-        args.modes,
+        args.modes, direction=args.direction,
     )  # fmt: skip
     g1, g2 = result.values_si
     modes = result.frequencies_hz.shape[2]

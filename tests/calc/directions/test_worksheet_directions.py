@@ -11,12 +11,15 @@ from beamtone.calc.errors import InputError
 from beamtone.calc.worksheet import loads
 from tests.cli.inprocess import run
 
+# The issue's figures were measured when beamtone solved Euler-Bernoulli bending only: these
+# worksheets ask for that theory to reproduce them.
 BRACKET = """
 format = 1
 title = "Flat bracket drawn deep"
 [member]
 length = "0.5 m"
 material = "steel"
+theory = "euler-bernoulli"
 section = { shape = "rectangle", width = "8 mm", depth = "40 mm" }
 [supports]
 left = "clamped"
@@ -29,6 +32,7 @@ title = "Pump span"
 [member]
 length = "6 m"
 material = "steel"
+theory = "euler-bernoulli"
 section = { shape = "i-beam", width = "215 mm", depth = "162 mm", flange = "10 mm", web = "7 mm" }
 added_mass = "100 kg/m"
 [supports]
@@ -54,7 +58,7 @@ def test_bracket_json_keeps_modes_and_adds_every_direction(capsys, tmp_path):
     assert status == 0
     data = json.loads(out)
     assert round(data["modes"][0]["frequency_hz"], 1) == 130.5  # "modes": the depth plane
-    assert set(data["modes"][0]) == {
+    assert set(data["modes"][0]) >= {  # the keys modes had before every direction
         "number", "frequency_hz", "omega_rad_s", "estimated_error", "effective_mass_kg",
         "effective_mass_fraction", "cumulative_mass_fraction",
     }  # fmt: skip
