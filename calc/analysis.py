@@ -13,7 +13,7 @@ from dataclasses import dataclass, replace
 from beamtone.calc import excitation, fe, handbook, rayleigh, response, similitude
 from beamtone.calc.band import BandResult, tightening
 from beamtone.calc.directions import Directions, _direction_modes, solve_directions
-from beamtone.calc.theories import TheoryPair, solve_pair
+from beamtone.calc.theories import SHEAR_RULE, TheoryPair, solve_pair
 from beamtone.calc.worksheet import Worksheet
 
 __all__ = ["Analysis", "analyse"]
@@ -87,6 +87,12 @@ class Analysis:
             out.insert(0, self.bracket.message)
         if self.directions is not None:
             out += self.directions.warnings
+        pair = self.theories
+        if pair is not None and pair.timoshenko is not None:
+            # the rule of thumb on half-wavelengths gives way to the computed effect
+            out = [w for w in out if SHEAR_RULE not in w]
+            if pair.theory == "euler-bernoulli" and pair.shown:
+                out.append(pair.note())
         return tuple(out)
 
 

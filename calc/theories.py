@@ -17,10 +17,14 @@ from beamtone.calc.errors import InputError
 from beamtone.calc.model import Member
 from beamtone.calc.shear import EULER_BERNOULLI, TIMOSHENKO, segment_shear
 
-__all__ = ["SHOWN_ABOVE", "TheoryPair", "solve_pair", "shear_reasons"]
+__all__ = ["SHEAR_RULE", "SHOWN_ABOVE", "TheoryPair", "solve_pair", "shear_reasons"]
 
 SHOWN_ABOVE = 0.01
 """Relative difference between the theories above which a mode shows both [-]."""
+
+SHEAR_RULE = "is under ten section depths"
+"""Words of the Euler-Bernoulli solve's rule-of-thumb warning (:mod:`calc.fe.checks`), which
+gives way to the computed effect where both theories were solved."""
 
 
 def shear_reasons(member: Member) -> tuple[str, ...]:
@@ -97,9 +101,16 @@ class TheoryPair:
         low, high = min(diffs), max(diffs)
         span = _span(low, high)
         if self.theory == EULER_BERNOULLI:
+            shown = self.shown
+            which = ""
+            if shown:
+                run = list(shown) == list(range(shown[0], shown[-1] + 1))
+                listed = f"{shown[0]}-{shown[-1]}" if run else ", ".join(map(str, shown))
+                which = f"; modes {listed}" if len(shown) > 1 else f"; mode {shown[0]}"
+                which += " differ by more than 1 %"
             return (
                 "Euler-Bernoulli theory chosen: shear deformation and the section's rotary "
-                f"inertia ignored (with them the modes would be {span})"
+                f"inertia ignored (with them the modes would be {span}{which})"
             )
         text = (
             "Timoshenko theory: shear deformation (Cowper's shear coefficients) and the "

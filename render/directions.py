@@ -162,6 +162,17 @@ def all_modes_json(directions: Directions) -> list[dict[str, Any]]:
     return [_mode_json(m) for m in directions.all_modes]
 
 
+def _theories_json(direction: Direction, i: int) -> dict[str, float]:
+    """A bending plane's mode by each beam theory solved [Hz] (issue 17)."""
+    pair = direction.theories
+    if pair is None:
+        return {}
+    out = {"euler_bernoulli_hz": pair.euler_bernoulli.modes[i].frequency_hz}
+    if pair.timoshenko is not None:
+        out["timoshenko_hz"] = pair.timoshenko.modes[i].frequency_hz
+    return out
+
+
 def directions_json(directions: Directions) -> dict[str, Any]:
     """``directions``: per direction its modes and handbook (or closed-form) values, or why it
     was not computed; what each support holds there; its notes."""
@@ -178,8 +189,9 @@ def directions_json(directions: Directions) -> dict[str, Any]:
                     "effective": m.effective,
                     "effective_unit": _UNITS[d.name],
                     "effective_fraction": m.effective_fraction,
+                    **_theories_json(d, i),
                 }
-                for m in d.modes
+                for i, m in enumerate(d.modes)
             ],
             "handbook": None,
             "same_as": d.same_as or None,

@@ -310,3 +310,35 @@ def test_direct_properties_without_shear_area_say_so():
     sec = build_section("properties", {"area": 0.005, "second_moment": 4e-6})
     reasons = shear_reasons(_member(1.0, sec, "clamped", "free"))
     assert reasons and "shear_area" in reasons[0]
+
+
+def test_euler_bernoulli_chosen_shows_the_computed_effect_not_the_rule():
+    """Under Euler-Bernoulli the rule-of-thumb warning gives way to the computed effect."""
+    from beamtone.calc import analyse
+
+    text = (_BRACKET % "1 kg").replace("[member]", '[member]\ntheory = "euler-bernoulli"')
+    analysis = analyse(loads(text))
+    assert any("ten section depths" in w for w in analysis.modes.warnings)  # fe's own rule
+    assert not any("ten section depths" in w for w in analysis.warnings)
+    assert any("Euler-Bernoulli theory chosen" in w for w in analysis.warnings)
+
+
+def test_record_keeps_its_theory_and_an_old_one_verifies_under_euler_bernoulli():
+    """A record stores the theory; one without it (written before the choice) is verified
+    under Euler-Bernoulli, the theory it was made with, and says so."""
+    import tomlkit
+
+    from beamtone.calc import analyse, record
+
+    text = _BRACKET % "1 kg"
+    recorded = record.with_record(text, record.build_record(analyse(loads(text))))
+    assert tomlkit.parse(recorded)["record"]["theory"] == "timoshenko"
+    assert record.verify(loads(recorded)).passed
+    # as an older beamtone wrote it: the same inputs, Euler-Bernoulli numbers, no theory key
+    sheet = loads(text)
+    eb = replace(sheet, member=replace(sheet.member, theory="euler-bernoulli"))
+    old = tomlkit.parse(record.with_record(text, record.build_record(analyse(eb))))
+    del old["record"]["theory"]
+    result = record.verify(loads(tomlkit.dumps(old)))
+    assert result.passed
+    assert "euler-bernoulli theory the record was made with" in result.message
