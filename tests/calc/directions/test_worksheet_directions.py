@@ -3,12 +3,14 @@
 from __future__ import annotations
 
 import json
+import math
 from pathlib import Path
 
 import pytest
 
 from beamtone.calc.errors import InputError
 from beamtone.calc.worksheet import loads
+from tests.calc.directions.exact import rectangle_j_series, tip_inertia_betas
 from tests.cli.inprocess import run
 
 # The issue's figures were measured when beamtone solved Euler-Bernoulli bending only: these
@@ -192,3 +194,41 @@ def test_shear_modulus_from_the_material():
         'material = { youngs_modulus = "200 GPa", density = "7850 kg/m^3", poisson_ratio = 0.25 }',
     ))  # fmt: skip
     assert inline.member.segments[0].material.shear_modulus_or_none == pytest.approx(80e9)
+
+
+SQUARE_SHAFT = """
+format = 1
+title = "Square shaft with a ring"
+[member]
+length = "0.4 m"
+material = "steel"
+theory = "euler-bernoulli"
+section = { shape = "rectangle", width = "30 mm", depth = "30 mm" }
+[supports]
+left = "clamped"
+right = "free"
+[[mass]]
+at = "0.4 m"
+mass = "5 kg"
+rotary_inertia = "0.625 kg*m^2"   # a thin ring of 0.5 m radius: m r^2/2 about a diameter
+polar_inertia = "1.25 kg*m^2"     # and m r^2 about its axis
+"""
+
+
+def test_square_shaft_with_a_ring_governs_in_torsion(capsys, tmp_path):
+    # Torsion with the exact J of the square (0.1406 a^4, Timoshenko and Goodier, section 109)
+    # and the ring at the tip: omega = beta c / L with beta tan(beta) = mu = rho Ip L / J_ring
+    # (Thomson, section 9.2, from memory); the two bending planes coincide, both reported.
+    status, out, _ = _solve(capsys, tmp_path, SQUARE_SHAFT, "--json")
+    data = json.loads(out)
+    assert status == 0
+    assert data["governing"]["direction"] == "torsion"
+    torsion = data["directions"]["torsion"]
+    assert "tip inertia" in torsion["handbook"]["case"]
+    a, L, rho, G = 0.03, 0.4, 7850.0, 200e9 / 2.6
+    J, Ip = rectangle_j_series(a, a), a**4 / 6
+    beta = tip_inertia_betas(rho * Ip * L / 1.25, 1)[0]
+    exact = beta * math.sqrt(G * J / (rho * Ip)) / L / (2 * math.pi)
+    assert torsion["modes"][0]["frequency_hz"] == pytest.approx(exact, rel=1e-6)
+    assert J / a**4 == pytest.approx(0.1406, abs=5e-5)
+    assert data["directions"]["width"]["same_as"] == "depth"
