@@ -144,6 +144,15 @@ def blocks(analysis: Analysis) -> tuple[Block, ...]:
                    else f"no Dunkerley bound: {d.lower_bound.reason}")
                 + f"; {d.bracket.message}"
             )  # fmt: skip
+        pair = d.theories
+        if pair is not None and pair.timoshenko is not None and not d.same_as:
+            items.append(
+                f"{'Timoshenko' if pair.theory == 'timoshenko' else 'Euler-Bernoulli'} theory; "
+                "Euler-Bernoulli [Hz] (what the reference and the bounds check): "
+                + ", ".join(number(m.frequency_hz) for m in pair.euler_bernoulli.modes)
+                + "; shear and rotary inertia: "
+                + ", ".join(f"{100 * x:+.2f} %" for x in pair.differences)
+            )
         items += list(d.notes)
         if items:
             out.append(Bullets(tuple(items)))

@@ -812,6 +812,7 @@ def _results(analysis: Analysis) -> tuple[Block, ...]:
             ),
         ),
     ]
+    blocks += _theory_blocks(analysis)
     if analysis.ritz is not None:
         ritz = analysis.ritz
         count = len(ritz.frequencies_hz)
@@ -828,6 +829,33 @@ def _results(analysis: Analysis) -> tuple[Block, ...]:
     return tuple(blocks)
 
 
+def _theory_blocks(analysis: Analysis) -> list[Block]:
+    """Both beam theories per mode, with the effect of shear and rotary inertia (issue 17)."""
+    pair = analysis.theories
+    if pair is None:
+        return []
+    chosen = "Timoshenko" if pair.theory == "timoshenko" else "Euler-Bernoulli"
+    blocks: list[Block] = [
+        Paragraph(
+            f"Beam theory: {chosen} (the table above). Shear deformation and the section's "
+            "rotary inertia, mode by mode (Rayleigh, Dunkerley, the bracket and the handbook "
+            "are Euler-Bernoulli results and are checked against the Euler-Bernoulli solve):"
+        )
+    ]
+    if pair.timoshenko is None:
+        return [*blocks, Paragraph(pair.note() + ".")]
+    rows = tuple(
+        (str(e.number), number(e.frequency_hz), number(t.frequency_hz), f"{100 * d:+.2f} %")
+        for e, t, d in zip(
+            pair.euler_bernoulli.modes, pair.timoshenko.modes, pair.differences, strict=False
+        )
+    )
+    blocks.append(
+        Table(("mode", "Euler-Bernoulli [Hz]", "Timoshenko [Hz]", "shear and rotary inertia"), rows)
+    )
+    return blocks
+
+
 def _checks(analysis: Analysis, verification: Verification | None) -> tuple[Block, ...]:
     blocks: list[Block] = []
     check = analysis.handbook
@@ -841,8 +869,11 @@ def _checks(analysis: Analysis, verification: Verification | None) -> tuple[Bloc
         )
     else:
         rows = []
+        # the handbook is Euler-Bernoulli: compared with the Euler-Bernoulli solve
+        pair = analysis.theories
+        compared = analysis.modes if pair is None else pair.euler_bernoulli
         for mode, lam, ref in zip(
-            analysis.modes.modes, check.parameters, check.frequencies_hz, strict=False
+            compared.modes, check.parameters, check.frequencies_hz, strict=False
         ):
             diff = (mode.frequency_hz - ref) / ref
             rows.append(
@@ -855,8 +886,9 @@ def _checks(analysis: Analysis, verification: Verification | None) -> tuple[Bloc
                 )
             )
         blocks.append(Paragraph(f"Handbook case: {check.case} (source: {check.source})."))
+        fe_label = "FE [Hz]" if compared is analysis.modes else "E-B FE [Hz]"
         blocks.append(
-            Table(("mode", "FE [Hz]", "handbook [Hz]", "\u03bb_i", "FE vs handbook"), tuple(rows))
+            Table(("mode", fe_label, "handbook [Hz]", "\u03bb_i", "FE vs handbook"), tuple(rows))
         )
     br = analysis.bracket
     blocks.append(
