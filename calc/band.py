@@ -55,6 +55,7 @@ SAMPLED = "corners and sampling"
 _BAND_TOLERANCE = 0.01  # of the first-order width
 _SEED = 20261202
 EULER_BERNOULLI = "euler-bernoulli"
+FIRST_ORDER_THEORIES = (EULER_BERNOULLI, "timoshenko")
 
 
 @dataclass(frozen=True)
@@ -138,8 +139,8 @@ class BandResult:
         Depth-plane modes first, then every other computed direction's.
     tolerances : tuple of Tolerance
     sensitivities : Sensitivities or None
-        First-order sensitivities of the depth plane (None for a bending theory other than
-        Euler-Bernoulli: its bands come from the check solves).
+        First-order sensitivities of the depth plane (None for a bending theory without
+        them: its bands come from the check solves).
     solves : int
         Full finite-element solves made by the check (0 when not checked).
     notes : tuple of str
@@ -285,9 +286,9 @@ def band(
     high = np.array([t.high for t in tolerances])
     nominal = np.array([t.nominal for t in tolerances])
     n_modes = len(result.modes)
-    # First-order sensitivities are those of Euler-Bernoulli elements; a member solved with
-    # another bending theory gets its depth-plane bands from the check solves as well.
-    first_order = getattr(design.solved_member(), "theory", EULER_BERNOULLI) == EULER_BERNOULLI
+    # First-order sensitivities exist for the Euler-Bernoulli and Timoshenko elements; a
+    # member solved by any other theory gets its depth-plane bands from the check solves.
+    first_order = getattr(design.solved_member(), "theory", EULER_BERNOULLI) in FIRST_ORDER_THEORIES
     sens = sensitivities(design, result, tolerances) if first_order else None
     fitted: list[tuple[str, tuple]] = [] if first_order else [("depth", result.modes)]
     fitted += [(d.name, d.modes) for d in _other_directions(directions)]
@@ -357,9 +358,9 @@ def band(
             )
     if not first_order:
         notes.append(
-            "first-order sensitivities are those of Euler-Bernoulli bending: with the shear "
-            "(Timoshenko) model every band comes from the check solves, elasticities and "
-            "contributions from the least-squares plane through them"
+            "no first-order sensitivities for this bending theory: every band comes from the "
+            "check solves, elasticities and contributions from the least-squares plane "
+            "through them"
         )
     others = [name for name, _ in fitted if name != "depth"]
     if others:

@@ -54,11 +54,11 @@ def band_blocks(bands: BandResult, study: object | None = None) -> tuple[Block, 
         )  # fmt: skip
     blocks: list[Block] = [
         Paragraph(
-            "Each mode's band over the tolerances below. Depth-plane bands of Euler-Bernoulli "
-            "bending are first order (eigenvalue derivatives of the computed modes, Fox and "
-            "Kapoor 1968), checked by full solves at the corners of the tolerance box (or "
-            "sampled); the other directions' bands come from those solves. The contribution "
-            "of an input is the change of the frequency across its range."
+            "Each mode's band over the tolerances below. Depth-plane bands are first order "
+            "(eigenvalue derivatives of the computed modes, Fox and Kapoor 1968), checked by "
+            "full solves at the corners of the tolerance box (or sampled); the other "
+            "directions' bands come from those solves. The contribution of an input is the "
+            "change of the frequency across its range."
         ),
         tolerances,
         Table(

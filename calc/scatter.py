@@ -229,9 +229,9 @@ def _solve_chunk(template: _Template, points: np.ndarray) -> tuple[np.ndarray, i
     out = np.empty((len(points), template.modes))
     batch: list[tuple[int, Member]] = []
     alone = 0
-    # The stacked solver assembles Euler-Bernoulli elements; another bending theory is
-    # solved sample by sample by the full solver.
-    stacked = template.signature[0] == "euler-bernoulli"
+    # The stacked solver assembles Euler-Bernoulli or Timoshenko elements; another bending
+    # theory is solved sample by sample by the full solver.
+    stacked = template.signature[0] in ("euler-bernoulli", "timoshenko")
     for i, point in enumerate(points):
         member = vary_within(template.design, template.tolerances, point)
         if stacked and _signature(member) == template.signature:
@@ -273,7 +273,18 @@ def _batched(template: _Template, members: list[Member]) -> tuple[np.ndarray, np
     P = np.array([c.P for c in coef])
     s = template.scale
     geometric = bool(np.any(P != 0.0))
-    k, g, mm = scaled_element_matrices(h.ravel(), EI.ravel(), m.ravel(), s, geometric)
+    if template.signature[0] == "timoshenko":  # the element of calc.fe.timoshenko
+        from beamtone.calc.fe import timoshenko
+
+        kga = np.array([c.shear_stiffness for c in coef])
+        rotary = np.array([c.rho_i for c in coef]).ravel()
+        finite = np.isfinite(kga)
+        phi = np.where(finite, 12.0 * EI / (np.where(finite, kga, 1.0) * h * h), 0.0)
+        k, g, mm = timoshenko.scaled_element_matrices(
+            h.ravel(), EI.ravel(), m.ravel(), s, geometric, phi.ravel(), rotary
+        )
+    else:
+        k, g, mm = scaled_element_matrices(h.ravel(), EI.ravel(), m.ravel(), s, geometric)
     E = nodes - 1
     k = k.reshape(B, E, 4, 4)
     mm = mm.reshape(B, E, 4, 4)

@@ -30,6 +30,11 @@ mode (the first-order term of lambda(k) = lambda_rigid - r^2/k + ...).
 
 Derivatives of repeated eigenvalues are not defined; beamtone's one-plane modes are
 simple.
+
+Both bending theories are covered: Euler-Bernoulli (Hermite cubic elements) and Timoshenko
+(the interdependent-interpolation element of :mod:`calc.fe.timoshenko`, whose stiffness form
+is summed from its own difference quotients and whose mass form from its consistent mass
+matrix; the shear stiffness kappa G A and the rotary inertia rho I enter like EI and m).
 """
 
 from __future__ import annotations
@@ -57,6 +62,7 @@ __all__ = [
     "coefficients",
 ]
 
+EULER_BERNOULLI = "euler-bernoulli"
 _STEP = 1e-6  # relative central-difference step on the inputs (property formulas only)
 _COMPLEX_STEP = 1e-20  # relative complex step on the mesh and the coefficients
 
@@ -120,6 +126,9 @@ class Coefficients:
     points : dict
         Position [m] of every placed thing by label: ``("b", k)`` segment boundaries,
         ``("s", i)`` inner supports, ``("m", i)`` masses, ``("k", i)`` springs.
+    shear_stiffness, rho_i : ndarray or None
+        Shear stiffness kappa G A [N] (inf: none known) and rotary inertia rho I [kg*m] of
+        each element where the member is solved by the Timoshenko theory, else None.
     """
 
     EI: np.ndarray  # per element
@@ -132,6 +141,10 @@ class Coefficients:
     mass_j: np.ndarray
     mass_at: np.ndarray
     points: dict[tuple[str, int], float]  # boundaries, inner supports, masses, springs
+    shear_stiffness: np.ndarray | None = (
+        None  # kappa G A per element, Timoshenko theory (inf: no shear flexibility)
+    )
+    rho_i: np.ndarray | None = None  # per element, Timoshenko theory
 
 
 def coefficients(member: Member, element_segment: np.ndarray) -> Coefficients:
@@ -141,6 +154,7 @@ def coefficients(member: Member, element_segment: np.ndarray) -> Coefficients:
     points.update({("s", i): s.at for i, s in enumerate(member.inner_supports)})
     points.update({("m", i): p.at for i, p in enumerate(member.masses)})
     points.update({("k", i): s.at for i, s in enumerate(member.springs)})
+    shear = _shear(member)
     return Coefficients(
         EI=np.array([s.bending_stiffness for s in segs])[element_segment],
         m=np.array([s.mass_per_length for s in segs])[element_segment],
@@ -152,7 +166,18 @@ def coefficients(member: Member, element_segment: np.ndarray) -> Coefficients:
         mass_j=np.array([p.rotary_inertia for p in member.masses], dtype=float),
         mass_at=np.array([p.at for p in member.masses], dtype=float),
         points=points,
+        shear_stiffness=None if shear is None else shear[0][element_segment],
+        rho_i=None if shear is None else shear[1][element_segment],
     )
+
+
+def _shear(member: Member) -> tuple[np.ndarray, np.ndarray] | None:
+    """Each segment's kappa G A [N] and rho I [kg*m] under the Timoshenko theory, else None."""
+    if getattr(member, "theory", EULER_BERNOULLI) == EULER_BERNOULLI:
+        return None
+    from beamtone.calc.fe.timoshenko import segment_properties
+
+    return segment_properties(member)
 
 
 def element_forms(
@@ -162,6 +187,8 @@ def element_forms(
     P: float | complex,
     w: np.ndarray,
     theta: np.ndarray,
+    kGA: np.ndarray | None = None,
+    rho_i: np.ndarray | None = None,
 ) -> tuple[np.ndarray, np.ndarray]:
     """phi^T K phi and phi^T M phi of the beam elements, summed element by element.
 
@@ -174,13 +201,18 @@ def element_forms(
     P : float
         Axial force [N], tension positive.
     w, theta : ndarray, shape (nodes, modes)
-        Nodal deflections and slopes of the modes.
+        Nodal deflections and slopes (section rotations for the Timoshenko theory).
+    kGA, rho_i : ndarray, shape (elements,), optional
+        Shear stiffness kappa G A [N] (inf: none) and rotary inertia rho I [kg*m]: the
+        Timoshenko element of :mod:`calc.fe.timoshenko` (its quotient forms and mass).
 
     Returns
     -------
     stiffness, mass : ndarray, shape (modes,)
         Elastic plus geometric stiffness form and consistent mass form.
     """
+    if kGA is not None:
+        return _timoshenko_forms(x, EI, m, P, w, theta, kGA, rho_i)
     h = np.diff(x)[:, None]
     EI = np.asarray(EI)[:, None]
     m = np.asarray(m)[:, None]
@@ -209,6 +241,43 @@ def element_forms(
     return stiffness, mass
 
 
+def _timoshenko_forms(
+    x: np.ndarray,
+    EI: np.ndarray,
+    m: np.ndarray,
+    P: float | complex,
+    w: np.ndarray,
+    theta: np.ndarray,
+    kGA: np.ndarray,
+    rho_i: np.ndarray | None,
+) -> tuple[np.ndarray, np.ndarray]:
+    """The forms of the Timoshenko element (interdependent interpolation, calc.fe.timoshenko):
+    stiffness from its difference quotients, mass from its consistent mass matrix."""
+    from beamtone.calc.fe.timoshenko import (
+        element_quotient,
+        geometric_quotient,
+        scaled_element_matrices,
+    )
+
+    h1 = np.diff(x)
+    EI1 = np.asarray(EI)
+    finite = np.isfinite(np.real(kGA))
+    safe = np.where(finite, kGA, 1.0)
+    phi = np.where(finite, 12.0 * EI1 / (safe * h1 * h1), 0.0)
+    h = h1[:, None]
+    d = (w[1:] - w[:-1]) / h
+    a = theta[:-1] - d
+    b = theta[1:] - d
+    stiffness = ((EI1 / h1)[:, None] * element_quotient(a, b, phi[:, None])).sum(axis=0)
+    if P != 0.0:
+        stiffness = stiffness + P * (h * geometric_quotient(d, a, b, phi[:, None])).sum(axis=0)
+    rotary = np.zeros_like(h1) if rho_i is None else np.asarray(rho_i)
+    _, _, mm = scaled_element_matrices(h1, EI1, np.asarray(m), 1.0, False, phi, rotary)
+    u = np.stack([w[:-1], theta[:-1], w[1:], theta[1:]], axis=1)  # (elements, 4, modes)
+    mass = np.einsum("eim,eij,ejm->m", u, mm, u)
+    return stiffness, mass
+
+
 def _forms(
     x: np.ndarray,
     model: Coefficients,
@@ -223,7 +292,9 @@ def _forms(
     An attachment at an offset e from its node sees w + e theta and, given the nodal
     curvatures ``kappa``, the slope theta + e kappa (to first order in e).
     """
-    U, T = element_forms(x, model.EI, model.m, model.P, w, theta)
+    U, T = element_forms(
+        x, model.EI, model.m, model.P, w, theta, model.shear_stiffness, model.rho_i
+    )
     for (j, e), (a, b), is_mass in (
         (spring_node, (model.spring_k, model.spring_kr), False),
         (mass_node, (model.mass_m, model.mass_j), True),
@@ -338,12 +409,6 @@ def sensitivities(
         For a key the design has no quantity at.
     """
     member = design.solved_member()
-    theory = getattr(member, "theory", "euler-bernoulli")
-    if theory != "euler-bernoulli":
-        raise InputError(
-            "member.theory", theory, "Euler-Bernoulli bending for first-order sensitivities "
-            "(calc.band takes other theories' bands from full solves)",
-        )  # fmt: skip
     modes = result.modes
     x = modes[0].x
     w = np.column_stack([md.w_modal for md in modes])
@@ -425,6 +490,10 @@ def _derivative(design: Design, tol: Tolerance, nom: _Nominal) -> np.ndarray:
         mass_j=cx(model.mass_j, hi.mass_j, lo.mass_j),
         mass_at=model.mass_at,
         points=model.points,
+        shear_stiffness=None
+        if model.shear_stiffness is None
+        else _finite_step(model.shear_stiffness, hi.shear_stiffness, lo.shear_stiffness, eps, span),
+        rho_i=None if model.rho_i is None else cx(model.rho_i, hi.rho_i, lo.rho_i),
     )
     x = topo.x + 1j * eps * v_nodes
     # an attachment riding on a node keeps its offset only as far as both move alike
@@ -443,6 +512,16 @@ def _derivative(design: Design, tol: Tolerance, nom: _Nominal) -> np.ndarray:
     return (U.imag - lam * Tm.imag) / eps / T
 
 
+def _finite_step(
+    value: np.ndarray, hi: np.ndarray | None, lo: np.ndarray | None, eps: float, span: float
+) -> np.ndarray:
+    """value + i eps d(value)/dp where finite; an infinite shear stiffness stays as it is."""
+    assert hi is not None and lo is not None
+    finite = np.isfinite(value) & np.isfinite(hi) & np.isfinite(lo)
+    rate = np.where(finite, (np.where(finite, hi, 0.0) - np.where(finite, lo, 0.0)) / span, 0.0)
+    return value + 1j * eps * rate
+
+
 def _reaction_squared(design: Design, key: str, nom: _Nominal) -> np.ndarray:
     """r^2 / T for the support's held DOF named by ``key`` (d lambda/dc = -r^2 at c = 0)."""
     topo, model, w, theta, lam, T = nom.topo, nom.model, nom.w, nom.theta, nom.lam, nom.T
@@ -458,7 +537,15 @@ def _reaction_squared(design: Design, key: str, nom: _Nominal) -> np.ndarray:
         if not 0 <= e < len(x) - 1:
             continue
         h = x[e + 1] - x[e]
-        K, KG, Me = fe.element_matrices(h, model.EI[e], model.m[e], model.P)
+        if model.shear_stiffness is None:
+            K, KG, Me = fe.element_matrices(h, model.EI[e], model.m[e], model.P)
+        else:
+            from beamtone.calc.fe.timoshenko import element_matrices
+
+            rho_i = 0.0 if model.rho_i is None else float(model.rho_i[e])
+            K, KG, Me = element_matrices(
+                h, model.EI[e], model.m[e], model.shear_stiffness[e], rho_i, model.P
+            )
         Ke = K + KG
         u = np.vstack([w[e], theta[e], w[e + 1], theta[e + 1]])
         r += Ke[2 * local + dof] @ u - lam * (Me[2 * local + dof] @ u)
