@@ -138,7 +138,8 @@ class BeamtoneApp(App[None]):
             self.notify(
                 f"saved {saved} as a draft: {count} {entries} to fix "
                 f"({', '.join(p.key for p in problems[:3])}{', ...' if count > 3 else ''}); "
-                "beamtone solve refuses it until they are fixed",
+                "beamtone solve refuses it until they are fixed. First: "
+                f"{problems[0].message}",
                 severity="warning",
                 timeout=10,
                 markup=False,

@@ -281,6 +281,27 @@ class Document:
         member["segment"].append(segment)
         self.modified = True
 
+    def tolerances(self) -> dict[str, Any]:
+        """The ``[tolerances]`` table: key path -> tolerance as written."""
+        value = self.get("tolerances", {})
+        return dict(value) if isinstance(value, dict) else {}
+
+    def set_tolerance(self, key: str, value: Any) -> None:
+        """Set (or, with None, remove) the tolerance of a key path (a quoted TOML key)."""
+        table = self.doc.get("tolerances")
+        if value is None:
+            if isinstance(table, dict) and key in table:
+                del table[key]
+                if not table:
+                    del self.doc["tolerances"]
+                self.modified = True
+            return
+        if not isinstance(table, dict):
+            self.doc["tolerances"] = table = tomlkit.table()
+        if table.get(key) != value:
+            table[key] = value
+            self.modified = True
+
     def inner_supports(self) -> list[dict[str, Any]]:
         """The inner supports ``[{at, kind}]``."""
         value = self.get("supports.inner", [])
@@ -448,7 +469,7 @@ def _orphan() -> Path | None:
         return None
     for candidate in reversed(kept):
         pid = candidate.stem.rsplit("-", 1)[-1]
-        if pid.isdigit() and (int(pid) == os.getpid() or not _alive(int(pid))):
+        if pid.isdigit() and not _alive(int(pid)):
             return candidate
     return None
 

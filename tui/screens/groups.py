@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import asyncio
+
 from rich.text import Text
 from textual import on, work
 from textual.app import ComposeResult
@@ -28,6 +30,7 @@ class GroupsScreen(Screen[None]):
         self.asked = ""  # the variable list as typed
         self.shown = ""  # the variable list whose answer is on screen
         self._timer: Timer | None = None
+        self.answered = asyncio.Event()  # set each time an answer is shown
 
     def compose(self) -> ComposeResult:
         yield Header()
@@ -109,6 +112,7 @@ class GroupsScreen(Screen[None]):
         if text != self.asked:
             return  # typed on meanwhile: a newer answer is on its way
         self.shown = text
+        self.answered.set()
         out = self.query_one("#calculator", Static)
         # the user's own text may come back in a message: never read as markup
         out.update(Text(shown, style="bold red" if error else ""))

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from typing import Any
 
+import tomlkit
+import tomlkit.exceptions
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
@@ -158,6 +160,43 @@ class WorksheetForm(VerticalScroll):
             "check.modes", _text(doc.get("check.modes")), f"{modes.default} (default)"
         )
 
+        yield Static("5  What excites it", classes="step")
+        for i, row in enumerate(doc.rows("excitation")):
+            with Horizontal(classes="rowhead"):
+                yield Label(f"excitation {i}", classes="rowtitle")
+                yield Button("remove", id=f"remove-excitation-{i}", classes="small")
+            yield from self._excitation(i, row)
+        yield Button("+ excitation", id="add-excitation", classes="small")
+
+        yield Static("6  Tolerances (bands and what moves them most)", classes="step")
+        for i, (key, value) in enumerate(doc.tolerances().items()):
+            with Horizontal(classes="rowhead"):
+                yield Label(Text(key), classes="rowtitle")
+                yield Button("remove", id=f"remove-tolerance-{i}", classes="small")
+            yield _text_field(f"tolerances.{key}", _written(value), '"5 %", "0.3 mm"')
+        with Horizontal(classes="pair"):
+            yield Select(
+                [(k, k) for k in _tolerable(doc) if k not in doc.tolerances()],
+                prompt="a quantity to tolerance",
+                id="tolerance-key",
+                compact=True,
+            )
+            yield Button("+ tolerance", id="add-tolerance", classes="small")
+
+    def _excitation(self, i: int, row: dict[str, Any]) -> ComposeResult:
+        """An excitation's fields, each from its schema entry (only the keys it needs)."""
+        key = f"excitation[{i}]"
+        given = "frequency" if "frequency" in row else "speed"
+        shown = ["name", given, "orders", "criterion" if "criterion" in row else "margin"]
+        shown += [n for n in ("force", "force_at") if n in row]
+        for name in shown:
+            entry = schema.entry(f"{key}.{name}")
+            value = row.get(name)
+            if entry.kind == schema.QUANTITY and not isinstance(value, list):
+                yield _field(f"{key}.{name}", value, optional=False)
+            else:
+                yield _text_field(f"{key}.{name}", _written(value), entry.help[:40])
+
     def _rows(self, table: str) -> ComposeResult:
         """The entries of ``[[mass]]`` or ``[[spring]]``, each with a remove button."""
         for i, row in enumerate(self.document.rows(table)):
@@ -211,7 +250,13 @@ class WorksheetForm(VerticalScroll):
         event.stop()
         key, text = event.key, event.text
         entry = schema.find(key)
-        if entry is not None and entry.kind == schema.INTEGER:
+        if key.startswith("tolerances."):  # a quoted key path: the table's own key
+            self.document.set_tolerance(key.removeprefix("tolerances."), _value(text))
+        elif entry is not None and (
+            entry.kind == schema.NUMBER or isinstance(self.document.get(key), list)
+        ):  # orders, a range of speeds: numbers and lists as TOML reads them
+            self.document.set(key, _value(text))
+        elif entry is not None and entry.kind == schema.INTEGER:
             self._set_integer(key, text)
         elif not text.strip() and _removable(entry):
             self.document.delete(key)
@@ -290,14 +335,29 @@ class WorksheetForm(VerticalScroll):
             rows = doc.rows("member.segment")
             last = dict(rows[-1]) if rows else {"length": "0.5 m"}
             doc.add_row("member.segment", last)
+        elif button == "add-excitation":
+            n = len(doc.rows("excitation"))
+            doc.add_row(
+                "excitation",
+                {"name": f"source {n + 1}", "speed": "1480 rpm", "orders": 1, "margin": "20 %"},
+            )
+        elif button == "add-tolerance":
+            chosen = self.query_one("#tolerance-key", Select).value
+            if chosen is Select.NULL:
+                self.app.notify("pick the quantity to tolerance first", severity="warning")
+                return
+            doc.set_tolerance(str(chosen), "5 %")
         elif button.startswith("remove-"):
             _, what, index = button.split("-")
             i = int(index)
-            if what == "inner":
+            if what == "tolerance":
+                doc.set_tolerance(list(doc.tolerances())[i], None)
+            elif what == "inner":
                 supports = [dict(s) for n, s in enumerate(doc.inner_supports()) if n != i]
                 doc.set_inner_supports(supports)
             else:
-                table = {"mass": "mass", "spring": "spring", "segment": "member.segment"}[what]
+                table = {"mass": "mass", "spring": "spring", "segment": "member.segment",
+                         "excitation": "excitation"}[what]  # fmt: skip
                 doc.remove_row(table, i)
         else:
             return
@@ -374,6 +434,34 @@ class WorksheetForm(VerticalScroll):
 
 def _text(value: Any) -> str:
     return "" if value is None else str(value)
+
+
+def _written(value: Any) -> str:
+    """A value as the user would write it: text as is, numbers and lists in TOML."""
+    if value is None:
+        return ""
+    if isinstance(value, str):
+        return value
+    return tomlkit.item(value).as_string()
+
+
+def _value(text: str) -> Any:
+    """Typed text as TOML reads it where it is a number or a list (``2``, ``[1, 2]``,
+    ``["900 rpm", "1800 rpm"]``), else the text itself (the loader names what is wrong)."""
+    try:
+        return tomlkit.parse(f"v = {text}")["v"].unwrap()
+    except (tomlkit.exceptions.TOMLKitError, ValueError, RecursionError):
+        return text
+
+
+def _tolerable(doc: Document) -> list[str]:
+    """The key paths a tolerance may name: the worksheet's quantities sizing may vary."""
+    from beamtone.calc.sizing import quantity_keys
+
+    try:
+        return list(quantity_keys(doc.plain()))
+    except InputError:
+        return []
 
 
 def _choice(value: Any, options: tuple[str, ...]) -> str:

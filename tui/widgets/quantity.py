@@ -11,7 +11,7 @@ from textual.widgets import Input, Label, Static
 
 from beamtone.calc.errors import InputError
 from beamtone.calc.positions import from_right, resolve
-from beamtone.calc.units import Dimension, parse_quantity
+from beamtone.calc.units import FREQUENCY, Dimension, parse_frequency, parse_quantity
 
 __all__ = ["QuantityField", "TextField"]
 
@@ -104,14 +104,17 @@ class QuantityField(Vertical):
             si.update(f"L\u2212{inward:.5g}\u00a0m")
             return
         try:
-            value = parse_quantity(
-                text,
-                self.dimension,
-                self.key,
-                allow_zero=self.allow_zero or self.position,
-                allow_negative=self.allow_negative,
-                minimum=not self.position,
-            )
+            if self.dimension == FREQUENCY:  # cycles per second: 1480 rpm is 24.67 Hz
+                value = parse_frequency(text, self.key)
+            else:
+                value = parse_quantity(
+                    text,
+                    self.dimension,
+                    self.key,
+                    allow_zero=self.allow_zero or self.position,
+                    allow_negative=self.allow_negative,
+                    minimum=not self.position,
+                )
         except InputError as exc:
             self._invalid(exc)
             return
