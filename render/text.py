@@ -123,6 +123,14 @@ def solve_text(analysis: Analysis) -> str:
         f"M {result.mass_definiteness}"
     )
     lines.append("            modes normalized to unit modal mass; effective mass in the plane")
+    if result.mode_count is not None:
+        lines += textwrap.wrap(result.mode_count.describe(), 92, initial_indent=" " * 12,
+                               subsequent_indent=" " * 12)  # fmt: skip
+    lines += textwrap.wrap(result.estimate_meaning, 92, initial_indent=" " * 12,
+                           subsequent_indent=" " * 12)  # fmt: skip
+    if result.assumptions:
+        lines.append(f"  assumes   {result.assumptions[0]}")
+        lines += [f"            {a}" for a in result.assumptions[1:]]
     lines.append("")
     if pair is not None:
         lines += theory_lines(pair)
@@ -166,6 +174,10 @@ def theory_lines(pair: TheoryPair) -> list[str]:
             f"  mode {e.number:<4} Timoshenko {_fmt(t.frequency_hz)} Hz, Euler-Bernoulli "
             f"{_fmt(e.frequency_hz)} Hz, shear and rotary inertia {100 * d:+.2f} %{flag}"
         )
+    if pair.closed_form_hz is not None:
+        exact = ", ".join(_fmt(f) for f in pair.closed_form_hz)
+        lines.append(f"            Timoshenko closed form, pinned-pinned [Hz]: {exact}")
+        lines.append("            (Timoshenko, Phil. Mag. 41, 1921; both branches, lowest first)")
     lines += [f"            no shear flexibility: {why}" for why in pair.without_shear]
     lines.append("            Rayleigh, Dunkerley, the bracket and the handbook: Euler-Bernoulli")
     return lines
@@ -187,6 +199,8 @@ def _estimate_lines(analysis: Analysis) -> list[str]:
     lines += [f"            {note}" for note in est.notes]
     if low.frequency_hz is not None:
         lines.append(f"  Dunkerley {_fmt(low.frequency_hz)} Hz (lower bound)")
+        if low.note:
+            lines.append(f"            {low.note}")
     else:
         lines.append(f"  Dunkerley no lower bound: {low.reason}")
     lines.append(f"  bracket   {br.message}")
@@ -244,13 +258,15 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
         },
         "lower_bound": None
         if low.frequency_hz is None
-        else {"method": "dunkerley", "frequency_hz": low.frequency_hz},
+        else {"method": "dunkerley", "frequency_hz": low.frequency_hz, "note": low.note},
         "bracket": {
             "lower_hz": analysis.bracket.lower_hz,
             "fe_hz": analysis.bracket.fe_hz,
             "upper_hz": analysis.bracket.upper_hz,
             "width": analysis.bracket.width,
             "inside": analysis.bracket.inside,
+            "status": analysis.bracket.status,
+            "lower_reason": analysis.bracket.lower_reason,
         },
         "ritz": None
         if analysis.ritz is None
@@ -280,7 +296,15 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
             "stiffness_matrix": result.stiffness_definiteness,
             "mass_matrix": result.mass_definiteness,
             "roundoff_dominated": result.roundoff_dominated,
+            "mode_count": None if result.mode_count is None else {
+                "below_hz": result.mode_count.below_hz,
+                "counted": result.mode_count.counted,
+                "found": result.mode_count.found,
+                "ok": result.mode_count.ok,
+            },
         },
+        "estimate_meaning": result.estimate_meaning,
+        "model_assumptions": list(result.assumptions),
         "caution": CAUTION,
         **_excitation_json(analysis),
         **_directions_json(analysis),

@@ -35,11 +35,15 @@ class ModeCount:
         Eigenvalues below it by the inertia of K - omega^2 M (rigid-body modes included).
     found : int
         Modes the eigen solver returned below it (rigid-body modes included).
+    mode : int
+        The highest reported flexible mode, on the reported mesh, which the count is just
+        below (with a Richardson-extrapolated frequency the mode's value may be lower).
     """
 
     below_hz: float
     counted: int
     found: int
+    mode: int = 0
 
     @property
     def ok(self) -> bool:
@@ -56,8 +60,9 @@ class ModeCount:
             else ("MORE FOUND THAN COUNTED")
         )
         return (
-            f"mode count (inertia of K - omega^2 M, LDL^T) below {self.below_hz:.6g} Hz: "
-            f"{self.counted}, solver found {self.found}: {verdict}"
+            f"mode count just below mode {self.mode} of the final mesh ({self.below_hz:.6g} Hz) "
+            f"by the inertia of K - omega^2 M (LDL^T): {self.counted}, solver found "
+            f"{self.found} (rigid-body modes included): {verdict}"
         )
 
 
@@ -112,4 +117,4 @@ def check_count(
         sigma = 0.5 * (floor + float(np.min(lam[close])))
     found = rigid + int(np.count_nonzero(lam < sigma))
     counted = count_below(K, M, sigma)
-    return ModeCount(math.sqrt(max(sigma, 0.0)) / (2.0 * math.pi), counted, found)
+    return ModeCount(math.sqrt(max(sigma, 0.0)) / (2.0 * math.pi), counted, found, len(lam))
