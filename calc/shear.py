@@ -42,6 +42,7 @@ __all__ = [
     "cowper_coefficient",
     "segment_shear",
     "pinned_timoshenko_hz",
+    "pinned_timoshenko_spectrum",
     "engesser_load",
 ]
 
@@ -224,6 +225,30 @@ def pinned_timoshenko_hz(
     disc = math.sqrt(max(b * b - 4.0 * a * c, 0.0))
     omega2 = 2.0 * c / (b + disc)  # the smaller root, without cancellation
     return math.sqrt(omega2) / (2.0 * math.pi)
+
+
+def pinned_timoshenko_spectrum(
+    L: float, EI: float, rho_A: float, rho_I: float, kGA: float, count: int, P: float = 0.0
+) -> tuple[float, ...]:
+    """The lowest ``count`` natural frequencies of a pinned-pinned uniform Timoshenko beam [Hz].
+
+    Both roots of the quadratic of :func:`pinned_timoshenko_hz` for each n, sorted: on a deep
+    member the upper (shear) branch of a low n can fall among the bending modes, and the
+    finite elements find it there too.
+    """
+    out = []
+    for n in range(1, count + 1):
+        k = n * math.pi / L
+        A1 = (kGA + P) * k * k
+        B1 = kGA + EI * k * k
+        a = rho_A * rho_I
+        b = A1 * rho_I + B1 * rho_A
+        c = EI * kGA * k**4 + P * k * k * (kGA + EI * k * k)
+        disc = math.sqrt(max(b * b - 4.0 * a * c, 0.0))
+        out.append(math.sqrt(2.0 * c / (b + disc)) / (2.0 * math.pi))
+        if a > 0.0:
+            out.append(math.sqrt((b + disc) / (2.0 * a)) / (2.0 * math.pi))
+    return tuple(sorted(out)[:count])
 
 
 def engesser_load(euler_load: float, kGA: float) -> float:

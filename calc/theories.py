@@ -15,7 +15,12 @@ from dataclasses import dataclass, replace
 from beamtone.calc import fe
 from beamtone.calc.errors import InputError
 from beamtone.calc.model import Member
-from beamtone.calc.shear import EULER_BERNOULLI, TIMOSHENKO, segment_shear
+from beamtone.calc.shear import (
+    EULER_BERNOULLI,
+    TIMOSHENKO,
+    pinned_timoshenko_spectrum,
+    segment_shear,
+)
 
 __all__ = ["SHEAR_RULE", "SHOWN_ABOVE", "TheoryPair", "solve_pair", "shear_reasons"]
 
@@ -55,6 +60,11 @@ class TheoryPair:
     without_shear : tuple of str
         Segments solved under Timoshenko without shear flexibility (rotary inertia only),
         each with the reason (no shear modulus, no shear area).
+    refused : str
+        Why the Timoshenko model was not solved ("" where it was).
+    closed_form_hz : tuple of float or None
+        Timoshenko's closed-form frequencies where the plane is a uniform pinned-pinned member
+        with nothing attached (:func:`calc.shear.pinned_timoshenko_spectrum`), else None.
     """
 
     theory: str
@@ -62,6 +72,7 @@ class TheoryPair:
     timoshenko: fe.FEResult | None
     without_shear: tuple[str, ...] = ()
     refused: str = ""
+    closed_form_hz: tuple[float, ...] | None = None
 
     @property
     def chosen(self) -> fe.FEResult:
@@ -158,4 +169,31 @@ def solve_pair(
         refused = f"the member is not stable ({exc.expected})"
         return TheoryPair(member.theory, chosen, None, shear_reasons(member), refused)
     eb, timo = (chosen, other) if member.theory == EULER_BERNOULLI else (other, chosen)
-    return TheoryPair(member.theory, eb, timo, shear_reasons(member))
+    return TheoryPair(
+        member.theory, eb, timo, shear_reasons(member), closed_form_hz=_closed_form(member, modes)
+    )
+
+
+def _closed_form(member: Member, modes: int) -> tuple[float, ...] | None:
+    """Timoshenko's pinned-pinned frequencies, where the member is that case."""
+    if (
+        len(member.segments) != 1
+        or (member.left, member.right) != ("pinned", "pinned")
+        or member.masses
+        or member.springs
+        or member.inner_supports
+    ):
+        return None
+    seg = member.segments[0]
+    found = segment_shear(seg.material, seg.section, seg.section.plane)
+    if found.reason or seg.added_mass:
+        return None
+    return pinned_timoshenko_spectrum(
+        member.length,
+        seg.bending_stiffness,
+        seg.mass_per_length,
+        found.rotary_inertia,
+        found.shear_stiffness,
+        modes,
+        member.axial_force,
+    )

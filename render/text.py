@@ -237,6 +237,9 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
             for i, m in enumerate(result.modes)
         ],
         "theory": analysis.theory,
+        "timoshenko_closed_form_hz": None
+        if analysis.theories is None or analysis.theories.closed_form_hz is None
+        else list(analysis.theories.closed_form_hz),
         "rigid_body_modes": result.rigid_body_modes,
         "handbook": None
         if check is None

@@ -342,3 +342,30 @@ def test_record_keeps_its_theory_and_an_old_one_verifies_under_euler_bernoulli()
     result = record.verify(loads(tomlkit.dumps(old)))
     assert result.passed
     assert "euler-bernoulli theory the record was made with" in result.message
+
+
+def test_pinned_pinned_worksheet_shows_the_closed_form():
+    """The solve of a uniform pinned-pinned member names Timoshenko's closed form beside the FE
+    modes (Phil. Mag. 41, 1921, as written in Han, Benaroya & Wei 1999), equal to 1e-6."""
+    from beamtone.calc import analyse
+    from beamtone.render.text import solve_json
+
+    text = """
+format = 1
+[member]
+length = "10 m"
+material = { youngs_modulus = "200 GPa", density = "8000 kg/m^3", poisson_ratio = 0.3 }
+section = { shape = "rectangle", width = "2 m", depth = "2 m" }
+[supports]
+left = "pinned"
+right = "pinned"
+[check]
+modes = 3
+"""
+    data = solve_json(analyse(loads(text)))
+    assert data["theory"] == "timoshenko"
+    exact = data["timoshenko_closed_form_hz"]
+    for mode, f in zip(data["modes"], exact, strict=True):
+        assert mode["frequency_hz"] == pytest.approx(f, rel=1e-6)
+        assert mode["timoshenko_hz"] == mode["frequency_hz"]
+    assert data["modes"][0]["euler_bernoulli_hz"] == pytest.approx(45.35, abs=0.01)
