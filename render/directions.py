@@ -159,7 +159,10 @@ def _mode_json(m: DirectionMode) -> dict[str, Any]:
 
 def all_modes_json(directions: Directions) -> list[dict[str, Any]]:
     """``all_modes``: every computed mode of every direction, lowest frequency first."""
-    return [_mode_json(m) for m in directions.all_modes]
+    return [
+        {**_mode_json(m), **_theories_json(directions[m.direction], m.number - 1)}
+        for m in directions.all_modes
+    ]
 
 
 def _theories_json(direction: Direction, i: int) -> dict[str, float]:
