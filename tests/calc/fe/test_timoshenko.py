@@ -369,3 +369,26 @@ modes = 3
         assert mode["frequency_hz"] == pytest.approx(f, rel=1e-6)
         assert mode["timoshenko_hz"] == mode["frequency_hz"]
     assert data["modes"][0]["euler_bernoulli_hz"] == pytest.approx(45.35, abs=0.01)
+
+
+def test_excitation_margins_use_the_timoshenko_modes():
+    """Under either theory the margins check the more accurate, Timoshenko, frequencies."""
+    from beamtone.calc import analyse
+    from beamtone.calc.worksheet import load
+
+    from pathlib import Path
+
+    sheet = load(Path(__file__).parents[3] / "worksheets" / "excitations" / "pump-span.toml")
+    for theory in ("timoshenko", "euler-bernoulli"):
+        chosen = replace(sheet, member=replace(sheet.member, theory=theory))
+        analysis = analyse(chosen)
+        timo = {
+            (d.name, m.number): m.frequency_hz
+            for d in analysis.directions.directions
+            if d.theories is not None
+            for m in d.theories.timoshenko.modes
+        }
+        rows = [r for r in analysis.margins.rows if r.direction in ("depth", "width")]
+        assert rows
+        for r in rows:
+            assert r.frequency_hz in {f for (name, _), f in timo.items() if name == r.direction}
