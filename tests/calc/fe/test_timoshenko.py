@@ -373,10 +373,10 @@ modes = 3
 
 def test_excitation_margins_use_the_timoshenko_modes():
     """Under either theory the margins check the more accurate, Timoshenko, frequencies."""
+    from pathlib import Path
+
     from beamtone.calc import analyse
     from beamtone.calc.worksheet import load
-
-    from pathlib import Path
 
     sheet = load(Path(__file__).parents[3] / "worksheets" / "excitations" / "pump-span.toml")
     for theory in ("timoshenko", "euler-bernoulli"):
