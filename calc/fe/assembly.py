@@ -20,7 +20,7 @@ from beamtone.calc.fe.elements import (
     scaled_element_matrices,
 )
 from beamtone.calc.fe.mesh import Mesh
-from beamtone.calc.fe.timoshenko import element_shear
+from beamtone.calc.fe.timoshenko import element_shear, largest_element_eigenvalues
 from beamtone.calc.fe.timoshenko import scaled_element_matrices as timoshenko_matrices
 from beamtone.calc.model import Member, holds
 
@@ -308,6 +308,8 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
     # degrees of freedom.
     # (A tethered element's energy comes from its relative unknowns, not from differences.)
     element_bound = (ELEMENT_LAMBDA_MAX * EI + GEOMETRIC_LAMBDA_MAX * abs(P) * h**2) / (m * h**4)
+    if shear is not None:  # the Timoshenko element's own, computed (see largest_element_...)
+        element_bound = largest_element_eigenvalues(ke, ge, me, P)
     lam_elem = float(np.max(np.where(tethered, 0.0, element_bound)))
     on_diagonal = pk[0] == pk[1]
     diag_k = np.bincount(pk[0][on_diagonal], weights=pk[2][on_diagonal], minlength=n)

@@ -30,6 +30,7 @@ import numpy as np
 from beamtone.calc.model import Member
 
 __all__ = [
+    "largest_element_eigenvalues",
     "element_shear",
     "segment_properties",
     "element_quotient",
@@ -268,3 +269,33 @@ def element_shear(
     kGA, rotary = props
     phi = 12.0 * EI / (kGA[segment] * h * h)  # zero where kGA is inf
     return phi, rotary[segment]
+
+
+def largest_element_eigenvalues(
+    k: np.ndarray, g: np.ndarray | None, mm: np.ndarray, P: float
+) -> np.ndarray:
+    """An upper bound on the largest eigenvalue of each element [rad^2/s^2].
+
+    The Euler-Bernoulli element's closed bound (``ELEMENT_LAMBDA_MAX``) does not hold here:
+    shear flexibility and rotary inertia give the element a shear mode of its own.  So each
+    element's largest eigenvalue of (k, m) is computed (4 x 4, all elements at once), plus,
+    for a tension, that of (P g, m) (Weyl's inequality; a compression only lowers it).
+
+    Parameters
+    ----------
+    k, g, mm : ndarray, shape (elements, 4, 4)
+        Stiffness, geometric stiffness of a unit tension (or None), mass (scaled DOFs).
+    P : float
+        Axial force [N], tension positive.
+    """
+    chol = np.linalg.cholesky(mm)
+
+    def top(matrix: np.ndarray) -> np.ndarray:
+        left = np.linalg.solve(chol, matrix)
+        both = np.linalg.solve(chol, np.swapaxes(left, 1, 2))
+        return np.linalg.eigvalsh(0.5 * (both + np.swapaxes(both, 1, 2)))[:, -1]
+
+    bound = top(k)
+    if g is not None and P > 0.0:
+        bound = bound + P * np.maximum(top(g), 0.0)
+    return bound * (1.0 + 1e-12)
