@@ -427,7 +427,8 @@ class WorksheetForm(VerticalScroll):
         """Mark the field the error names; False where no field shows that key."""
         for field in self.query(".quantity, .text"):
             if getattr(field, "key", None) == exc.key:
-                field.show_error(f"expected {exc.expected}")  # type: ignore[attr-defined]
+                hint = f" ({exc.hint})" if exc.hint else ""
+                field.show_error(f"expected {exc.expected}{hint}")  # type: ignore[attr-defined]
                 return True
         return False
 

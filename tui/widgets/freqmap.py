@@ -22,6 +22,7 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = ["FrequencyMap", "frequency_map"]
 
 _LABEL = 14  # characters of each row's label
+_ABOVE = 9  # characters kept at the right for "+N above"
 _PLANES = {"depth": "depth plane", "width": "width plane"}
 
 
@@ -53,7 +54,7 @@ def frequency_map(analysis: Analysis, width: int) -> Text:
     """The map, ``width`` characters wide (at least 34)."""
     table = analysis.margins
     assert table is not None
-    plot = max(width - _LABEL - 1, 20)
+    plot = max(width - _LABEL - 1 - _ABOVE, 20)
     modes: dict[str, list[tuple[int, float, bool]]] = {}
     for row in table.rows:
         found = modes.setdefault(row.direction, [])
@@ -121,7 +122,7 @@ def frequency_map(analysis: Analysis, width: int) -> Text:
         out.append_text(line)
         above = sum(1 for _, f, _ in found if col(f) is None)
         if above:
-            out.append(f" +{above} above", "dim")
+            out.append(f" +{above} above"[:_ABOVE], "dim")
         out.append("\n")
     axis = [" "] * plot
     ticks = Text(" " * (_LABEL + 1))

@@ -14,6 +14,7 @@ __all__ = ["PlotData", "ModePlot"]
 _COLOURS = ("dodger_blue2", "dark_orange3", "medium_purple3")
 _BRAILLE = 0x2800
 _DOTS = ((0x01, 0x08), (0x02, 0x10), (0x04, 0x20), (0x40, 0x80))  # [row][column]
+_HEIGHT = 9  # lines of the plot and its markers, above the legend
 _SUPPORT_GLYPH = {"clamped": "▮", "pinned": "▲", "guided": "═", "free": "·"}
 
 
@@ -50,7 +51,7 @@ class ModePlot(Widget):
     """A braille plot of the first mode shapes along the member."""
 
     DEFAULT_CSS = """
-    ModePlot { height: 9; min-width: 30; }
+    ModePlot { height: auto; min-width: 30; }
     """
 
     def __init__(self, id: str | None = None) -> None:  # noqa: A002 - textual's name
@@ -62,11 +63,11 @@ class ModePlot(Widget):
         """Draw new data (None clears), marked stale when it no longer matches the inputs."""
         self.data = data
         self.stale = stale
-        self.refresh()
+        self.refresh(layout=True)  # the legend's lines may change
 
     def render(self) -> Text:
         width = max(10, self.size.width)
-        height = max(4, self.size.height)
+        height = _HEIGHT  # the legend below wraps to the width (never cut)
         if self.data is None:
             return Text("no mode shapes yet", style="dim")
         return render_plot(self.data, width, height, self.stale)
@@ -117,7 +118,7 @@ def render_plot(data: PlotData, width: int, height: int, stale: bool = False) ->
     for k, label in enumerate(data.labels):
         text.append("━━ ", style="dim" if stale else _COLOURS[k % len(_COLOURS)])
         text.append(label + "   ")
-    text.append("▮ clamped ▲ pinned ═ guided ● mass ⌇ spring", style="dim")
+    text.append("depth plane; ▮ clamped ▲ pinned ═ guided ● mass ⌇ spring", style="dim")
     if stale:
         text.append("  (out of date)", style="bold")
     return text

@@ -26,10 +26,10 @@ class QuantityField(Vertical):
     DEFAULT_CSS = """
     QuantityField { height: auto; margin: 0 0 0 1; }
     QuantityField > Horizontal { height: 1; }
-    QuantityField Label { width: 13; color: $text-muted; }
-    QuantityField Input { width: 14; height: 1; border: none; padding: 0 1; }
+    QuantityField Label { width: 14; padding: 0 1 0 0; color: $text-muted; }
+    QuantityField Input { width: 12; height: 1; border: none; padding: 0 1; }
     QuantityField .si { width: 1fr; padding: 0 0 0 1; color: $text-muted; }
-    QuantityField > .problem { display: none; color: $error; padding: 0 0 0 2; }
+    QuantityField > .problem { display: none; color: $error; padding: 0 0 0 2; height: auto; }
     QuantityField.-invalid > .problem { display: block; }
     QuantityField.-invalid .si { color: $error; text-style: bold; }
     QuantityField.-invalid Input { background: $error 20%; }
@@ -127,6 +127,7 @@ class QuantityField(Vertical):
         hint = f" ({exc.hint})" if exc.hint else ""
         # the message quotes what the user typed: never read as markup
         self.query_one(".problem", Static).update(Text(f"expected {exc.expected}{hint}"))
+        self.refresh(layout=True)  # the message may need more lines than the last one
 
     def recheck(self) -> None:
         """Show this field's own reading again (drop a mark of an earlier solve)."""

@@ -8,7 +8,7 @@ from rich.console import Group, RenderableType
 from rich.table import Table
 from rich.text import Text
 from textual.app import ComposeResult
-from textual.containers import Vertical
+from textual.containers import HorizontalScroll, Vertical
 from textual.widgets import Static
 
 from beamtone.calc.caution import CAUTION
@@ -35,9 +35,11 @@ class ResultsView(Vertical):
     ResultsView { height: auto; padding: 0 1; }
     ResultsView > #banner, ResultsView > #inputs { height: auto; }
     ResultsView > #inputs { color: $text-muted; }
-    ResultsView > #body, ResultsView > .answer { height: auto; width: auto; }
+    ResultsView > #body { height: auto; }
+    ResultsView > .answer-box { height: auto; margin: 1 0 0 0; }
+    ResultsView .answer { height: auto; width: auto; }
     ResultsView.-stale > #body, ResultsView.-failed > #body,
-    ResultsView.-stale > .answer, ResultsView.-failed > .answer { color: $text-disabled; }
+    ResultsView.-stale .answer, ResultsView.-failed .answer { color: $text-disabled; }
     """
 
     def __init__(self, id: str | None = None) -> None:  # noqa: A002 - textual's name
@@ -52,8 +54,9 @@ class ResultsView(Vertical):
         yield Static("", id="inputs")
         yield Static(Text(CAUTION, style="italic"), id="body")
         yield FrequencyMap(id="map")
-        for name in _ANSWERS:
-            yield Static("", id=name, classes="answer")
+        for name in _ANSWERS:  # wide tables scroll sideways in their own box, never cut
+            with HorizontalScroll(id=f"{name}-box", classes="answer-box"):
+                yield Static("", id=name, classes="answer")
 
     def show(self, analysis: Analysis, inputs: str = "") -> None:
         """Show fresh results; ``inputs`` says which inputs they are for."""
@@ -70,7 +73,7 @@ class ResultsView(Vertical):
         self.query_one(FrequencyMap).show(analysis)
         for name, lines in answers(analysis).items():
             widget = self.query_one(f"#{name}", Static)
-            widget.display = bool(lines)
+            self.query_one(f"#{name}-box").display = bool(lines)
             widget.update(Text("\n".join(lines), no_wrap=True, overflow="ignore"))
 
     def mark(self, state: str, problem: str = "") -> None:
