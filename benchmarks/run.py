@@ -385,6 +385,39 @@ def bench_growth(sizes: list[int]) -> list[tuple[str, float, float | None, str]]
     return rows
 
 
+def bench_whole_analysis(sizes: list[int]) -> list[tuple[str, float, float | None, str]]:
+    """The whole analysis (every method and direction) against the finite-element solve alone.
+
+    A 10 m steel tube, pinned at both ends, with n attachments (masses and springs in turn),
+    written as a worksheet and analysed with ``analyse``; its member solved with ``fe.solve``
+    for the same modes in the same run is the baseline.  Issue 21: the Rayleigh/Dunkerley
+    path built a dense array of unknowns x probes (2,500 point masses: 59 s and 7.4 GB).
+    Goal: the analysis stays within 10x the solve it is built on.
+    """
+    from beamtone.calc import fe
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.worksheet import loads
+
+    rows = []
+    for n in sizes:
+        parts = ['format = 1\ntitle = "bench"\n[member]\nlength = "10 m"\nmaterial = "steel"\n'
+                 'section = { shape = "round-tube", outside_diameter = "60 mm", wall = "4 mm" }\n'
+                 '[supports]\nleft = "pinned"\nright = "pinned"\n']  # fmt: skip
+        for k in range(n):
+            at = 10.0 * (k + 1) / (n + 1)
+            if k % 2 == 0:
+                parts.append(f'[[mass]]\nat = "{at:.9g} m"\nmass = "0.05 kg"\n')
+            else:
+                parts.append(f'[[spring]]\nat = "{at:.9g} m"\nstiffness = "500 N/m"\n')
+        sheet = loads("".join(parts))
+        t_fe, t_all = interleaved_medians(
+            [lambda s=sheet: fe.solve(s.member, s.modes), lambda s=sheet: analyse(s)], 1
+        )
+        rows.append((f"whole analysis / fe.solve alone, {n} attachments "
+                     f"(fe.solve {t_fe:.2f} s)", t_all / t_fe, 10.0, "ratio"))  # fmt: skip
+    return rows
+
+
 def bench_sizing(repeat: int, sweep_points: int) -> list[tuple[str, float, float | None]]:
     from beamtone.calc import sizing
     from beamtone.calc.worksheet import load
@@ -526,8 +559,10 @@ def main() -> int:
     rows += bench_excitations(repeat)
     rows += bench_tolerances(repeat, 500 if args.quick else 10_000, not args.quick)
     rows += bench_growth([10, 30, 100] if args.quick else [10, 30, 100, 300, 1000, 3000, 5000])
+    rows += bench_whole_analysis([100, 300] if args.quick else [1000, 5000])
     rows += [(*r, "s") for r in bench_sizing(repeat, 100 if args.quick else 2000)]
     rows += [(*r, "s") for r in bench_app(3 if args.quick else 15)]
+    rows += bench_app_ratios(1 if args.quick else 5, 3 if args.quick else 9)
     rows += import_times()
     lines = [
         "# beamtone benchmark results",
