@@ -29,9 +29,11 @@ from beamtone.calc.design_values import (
 from beamtone.calc.directions import LABELS, SIZING_DIRECTIONS, frequencies, solve_directions
 from beamtone.calc.errors import InputError
 from beamtone.calc.excitation import (
+    DIRECTIONS,
     Excitation,
     MarginTable,
     ModeRef,
+    Verdict,
     lines,
     margin_table,
     mode_refs,
@@ -776,9 +778,15 @@ def size_for_excitation(
         bands, tuple(float(f) for f in freqs),
         tuple(tuple(bool(b.low_hz < f < b.high_hz) for b in bands) for f in freqs),
     )  # fmt: skip
+    table = chosen.table
+    if direction != "governing":  # the displayed verdict names what this sizing left out
+        others = ", ".join(LABELS.get(d, d) for d in DIRECTIONS if d != direction)
+        note = f"{others} modes were not checked (--direction governing checks them)"
+        verdict = Verdict(False, table.verdict.governing, (*table.verdict.unchecked, note))
+        table = MarginTable(table.lines, table.rows, verdict)
     return SizingResult(
         key, var.unit, None, 1, tuple(solutions), len(solutions) - 1, message, check,
-        intervals, chosen.table, practical,
+        intervals, table, practical,
     )  # fmt: skip
 
 
