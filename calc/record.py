@@ -390,8 +390,9 @@ class Record:
         The forced mesh (``solve --elements``), None for the automatic one.
     results : StoredResults
     theory : str
-        The beam theory the results were solved with; ``"euler-bernoulli"`` for a record
-        written before beamtone had a choice (it has no ``theory`` key).
+        The beam theory the results were solved with.  The table states it where it is
+        ``"timoshenko"``; a record without a ``theory`` key is Euler-Bernoulli (every record
+        written before beamtone had the choice is).
     """
 
     version: str
@@ -527,10 +528,11 @@ def _table(record: Record) -> Any:
         _dt.datetime.strptime(record.written, "%Y-%m-%dT%H:%M:%SZ").replace(tzinfo=_dt.UTC),
     )
     table.add("inputs_sha256", record.inputs_sha256)
+    if record.theory != "euler-bernoulli":  # no theory key: Euler-Bernoulli, as ever since
+        table.add("theory", record.theory)
     table.add("modes", record.modes)
     if record.elements is not None:
         table.add("elements", record.elements)
-    table.add("theory", record.theory)
     table.add("results", _results_table(record.results))
     return table
 

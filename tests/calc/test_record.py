@@ -29,6 +29,7 @@ title = "bare cantilever"   # trailing comment on a value
 length = "1 m"
 material = { youngs_modulus = "200 GPa", density = "7850 kg/m^3" }
 section = { shape = "rectangle", width = "40 mm", depth = "8 mm" }
+theory = "euler-bernoulli"   # the published answer is Euler-Bernoulli's
 
 # the supports
 [supports]
