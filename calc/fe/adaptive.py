@@ -313,7 +313,15 @@ def _roundoff_estimate(sol: Solution) -> np.ndarray:
     # bounded by the largest element eigenvalue (element eigenvalue bound, common practice)
     # plus what springs add.  The frequency error is half the eigenvalue error; the factor
     # keeps the estimate above what is observed against exact roots.
-    return _ROUNDOFF_FACTOR * _EPS * np.sqrt(sol.system.lambda_max_bound / sol.lam)
+    #
+    # A spring's energy k w^2 is evaluated directly, not from differences: the round-off of w
+    # at its node (eps times the largest deflection) enters squared, about eps^2 times
+    # lambda_spring / lambda_i, so a very stiff spring does not make the element bound's
+    # sqrt(lambda_max) grow (which overstated the error of such members by up to 1e4).
+    system = sol.system
+    elements = max(system.lambda_max_bound - system.spring_lambda, 0.0)
+    springs = _EPS * _EPS * system.spring_lambda / sol.lam
+    return _ROUNDOFF_FACTOR * (_EPS * np.sqrt(elements / sol.lam) + springs)
 
 
 def _trial_omega(

@@ -53,6 +53,9 @@ class System:
         Member plus point masses [kg].
     lambda_max_bound : float
         Upper bound on the largest eigenvalue [rad^2/s^2].
+    spring_lambda : float
+        The part of ``lambda_max_bound`` that springs add [rad^2/s^2] (their energy is
+        evaluated directly, so it enters the round-off differently; see ``fe.adaptive``).
     """
 
     K: scipy.sparse.csr_matrix
@@ -66,6 +69,7 @@ class System:
     lambda_max_bound: float
     T: scipy.sparse.csr_matrix | None = None
     tethers: tuple[Tether, ...] = ()
+    spring_lambda: float = 0.0
     """``T`` maps all DOFs (scaled) to the physical nodal values where nodes are tethered."""
     shear: tuple[np.ndarray, np.ndarray] | None = None
     """Timoshenko theory: each element's shear parameter phi and rotary inertia per length
@@ -326,6 +330,7 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
         influence_load=load,
         total_mass=total_mass,
         lambda_max_bound=lam_elem + lam_spring,
+        spring_lambda=lam_spring,
         T=T,
         tethers=tethers,
         shear=shear,
