@@ -490,8 +490,8 @@ def tightening(result: BandResult, table: object | None) -> tuple[str, ...]:
             continue
         seen.add((row.direction, row.mode))
         toward_up = line.order is not None and line.band_low_hz > f
-        movers = [e for e in b.effects if e.contribution_hz != 0.0]
-        first = movers[0] if movers else None
+        reach = _excursions(result.tolerances, b, toward_up)
+        first = max(reach, key=lambda kv: kv[1])[0] if reach else None
         where = (
             f"{row.direction} mode {row.mode} ({f:.4g} Hz, band {b.low_hz:.4g}-{b.high_hz:.4g} Hz)"
         )
@@ -502,9 +502,31 @@ def tightening(result: BandResult, table: object | None) -> tuple[str, ...]:
             out.append(f"{where} reaches {what} within its tolerances")
             continue
         side = "up" if toward_up else "down"
+        moves = dict(reach)[first]
         out.append(
             f"{where} reaches {what} within its tolerances; tighten {first.key} first "
-            f"(it moves this mode {abs(first.contribution_hz):.3g} Hz across its range; the band "
-            f"reaches {side} toward the line)"
+            f"(it moves this mode {side} toward the line by about {moves:.3g} Hz within its "
+            "range)"
         )
     return tuple(out)
+
+
+def _excursions(
+    tolerances: tuple[Tolerance, ...], band: ModeBand, up: bool
+) -> list[tuple[InputEffect, float]]:
+    """Each input's move of the mode toward a line above (``up``) or below, from its nominal
+    value to the end of its range that moves the mode that way [Hz], where positive."""
+    by_key = {t.key: t for t in tolerances}
+    out = []
+    for e in band.effects:
+        t = by_key.get(e.key)
+        if t is None or e.contribution_hz == 0.0 or t.high == t.low:
+            continue
+        above = (t.high - t.nominal) / (t.high - t.low)  # share of the range above nominal
+        below = 1.0 - above
+        raising = e.contribution_hz > 0.0
+        share = (above if raising else below) if up else (below if raising else above)
+        move = abs(e.contribution_hz) * share
+        if move > 0.0:
+            out.append((e, move))
+    return out
