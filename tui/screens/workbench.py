@@ -17,6 +17,7 @@ from beamtone.tui.document import Document
 from beamtone.tui.widgets.debounce import DEBOUNCE
 from beamtone.tui.widgets.form import WorksheetForm
 from beamtone.tui.widgets.modeplot import ModePlot, PlotData
+from beamtone.tui.widgets.quantity import QuantityField
 from beamtone.tui.widgets.results import ResultsView
 
 __all__ = ["Workbench"]
@@ -125,6 +126,7 @@ class Workbench(Screen[None]):
         self.finished += 1
         self.solved = self._solving
         self.solve_finished.set()
+        QuantityField.checking = True  # the unit registry is built: fields read at once now
         results = self.query_one(ResultsView)
         results.show(analysis, self._for_text())  # type: ignore[arg-type]
         self.query_one(ModePlot).show(_plot_data(analysis))
@@ -140,6 +142,7 @@ class Workbench(Screen[None]):
         self.solved = self._solving
         self.solve_finished.set()
         results = self.query_one(ResultsView)
+        QuantityField.checking = True
         results.mark("stale" if results.analysis is not None else "failed", exc.message)
         form = self.query_one(WorksheetForm)
         form.clear_solve_errors()

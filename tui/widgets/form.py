@@ -457,10 +457,8 @@ def _value(text: str) -> Any:
 
 def _tolerable(doc: Document) -> list[str]:
     """The key paths a tolerance may name: the worksheet's quantities sizing may vary."""
-    from beamtone.calc.sizing import quantity_keys
-
     try:
-        return list(quantity_keys(doc.plain()))
+        return list(schema.quantity_keys(doc.plain()))
     except InputError:
         return []
 

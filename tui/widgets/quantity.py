@@ -77,12 +77,21 @@ class QuantityField(Vertical):
         yield Static("", classes="problem")
 
     def on_mount(self) -> None:
-        self._check(self.value)
+        if QuantityField.checking:
+            self._check(self.value)
+        else:  # the app's first solve builds the unit registry in its worker, then checks
+            self.query_one(".si", Static).update("…")
+
+    checking = False
+    """Whether fields read their text when mounted; off until the app's first solve has
+    built the unit registry in its worker (the screen comes up without waiting for it)."""
 
     @on(Input.Changed)
     def _changed(self, event: Input.Changed) -> None:
         event.stop()
         self.value = event.value
+        if event.value == self._posted and not QuantityField.checking:
+            return  # the text it was built with, before the first solve: read then
         self._check(event.value)
         if event.value != self._posted:  # not for the value the field was built with
             self._posted = event.value
