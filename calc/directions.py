@@ -506,6 +506,29 @@ def _bounds(turned: Member, result: fe.FEResult) -> dict[str, object]:
     }
 
 
+_THICK_WALL = 0.1  # wall over the smaller side above which Bredt's thin-wall J is said rough
+
+
+def _torsion_constant_notes(member: Member) -> list[str]:
+    """Where a section's torsion constant is rougher than its formula suggests."""
+    out = []
+    for i, seg in enumerate(member.segments):
+        sec, where = seg.section, f" (segment {i})" if len(member.segments) > 1 else ""
+        d = sec.dimensions
+        if sec.shape == "box" and d["wall"] > _THICK_WALL * min(d["width"], d["depth"]):
+            out.append(
+                f"box wall{where} {100 * d['wall'] / min(d['width'], d['depth']):.0f} % of the "
+                "smaller side: Bredt's thin-walled J leaves out the walls' own torsional "
+                "stiffness and is low, so the torsional frequencies shown tend to be low"
+            )
+        if sec.shape == "i-beam":
+            out.append(
+                f"i-beam J{where} without root fillets: a rolled section's fillets raise J, "
+                "so for a rolled section J and the torsional frequencies are higher than shown"
+            )
+    return out
+
+
 def _torsion(member: Member, count: int) -> Direction:
     supports = _support_words(member, "torsion")
     problem = torsion_problem(member)
@@ -523,6 +546,7 @@ def _torsion(member: Member, count: int) -> Direction:
         )
     if member.axial_force != 0.0:
         notes.append("the axial force's effect on torsion (Wagner term) is not modelled")
+    notes += _torsion_constant_notes(member)
     if isinstance(problem, RodProblem):
         if any((s.section.warping_constant or 0.0) > 0.0 for s in member.segments):
             notes.append(

@@ -271,3 +271,16 @@ def test_directions_not_computed_say_why():
     rect = build_section("rectangle", {"width": 0.05, "depth": 0.1})
     problem = torsion_problem(Member((Segment(1.0, timber_like, rect),)))
     assert isinstance(problem, str) and "poisson_ratio or shear_modulus" in problem
+
+
+def test_rough_torsion_constants_are_said():
+    # Bredt's thin-walled J leaves out the walls' own stiffness (Timoshenko and Goodier,
+    # section 115): a thick-walled box says so; the solid square is the limit it misses most
+    thick = build_section("box", {"width": 0.05, "depth": 0.05, "wall": 0.01})
+    thin = build_section("box", {"width": 0.05, "depth": 0.05, "wall": 0.002})
+    notes = solve_directions(Member((Segment(1.0, STEEL, thick),)), 1)["torsion"].notes
+    assert any("Bredt" in n and "20 %" in n for n in notes)
+    notes = solve_directions(Member((Segment(1.0, STEEL, thin),)), 1)["torsion"].notes
+    assert not any("Bredt" in n for n in notes)
+    solid = build_section("box", {"width": 0.05, "depth": 0.05, "wall": 0.025})
+    assert solid.torsion_constant < rectangle_j_series(0.05, 0.05)
