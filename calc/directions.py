@@ -456,11 +456,20 @@ def _width(
     depth_handbook: handbook.HandbookCheck | None,
     elements: int | None,
     depth_theories: TheoryPair | None = None,
+    checks: bool = True,
 ) -> Direction:
     supports = _support_words(member, "width")
     turned = width_member(member)
     if isinstance(turned, str):
         return Direction("width", (), reason=turned, supports=supports)
+    if not checks:  # the modes alone, by the member's theory (sizing, bands)
+        if _same_bending(turned, _plain(member)):
+            result = depth
+        else:
+            result = fe.solve(turned, count, elements=elements)
+        modes = _direction_modes("width", result)
+        return Direction("width", modes, result.rigid_body_modes, solution=result,
+                         supports=supports, warnings=result.warnings)  # fmt: skip
     if _same_bending(turned, _plain(member)):
         return Direction(
             "width",
@@ -666,7 +675,7 @@ def frequencies(member: Member, modes: int, direction: str, key: str = "--direct
         raise InputError(key, direction, "one of " + ", ".join(SIZING_DIRECTIONS))
     if direction == "depth":
         return fe.solve(member, modes).frequencies_hz
-    dirs = solve_directions(member, modes)
+    dirs = solve_directions(member, modes, checks=False)
     if direction == "governing":
         return np.array([m.frequency_hz for m in dirs.all_modes[:modes]])
     chosen = dirs[direction]
@@ -683,6 +692,7 @@ def solve_directions(
     depth_handbook: handbook.HandbookCheck | None | str = "",
     elements: int | None = None,
     depth_theories: TheoryPair | None = None,
+    checks: bool = True,
 ) -> Directions:
     """Solve every direction of a member.
 
@@ -699,6 +709,9 @@ def solve_directions(
         Force the bending meshes (see :func:`calc.fe.solve`).
     depth_theories : theories.TheoryPair, optional
         The depth plane solved by both beam theories, where already done.
+    checks : bool
+        False gives the modes alone (no handbook values, bounds or second theory for the
+        width plane): what sizing and sweeps need at every trial value.
 
     Returns
     -------
@@ -714,7 +727,7 @@ def solve_directions(
     if depth is None:
         depth = fe.solve(member, modes, elements=elements)
     if isinstance(depth_handbook, str):
-        depth_handbook = handbook.check(_plain(member), modes)
+        depth_handbook = handbook.check(_plain(member), modes) if checks else None
     results = (
         Direction(
             "depth",
@@ -726,7 +739,7 @@ def solve_directions(
             warnings=depth.warnings,
             theories=depth_theories,
         ),
-        _width(member, modes, depth, depth_handbook, elements, depth_theories),
+        _width(member, modes, depth, depth_handbook, elements, depth_theories, checks),
         _torsion(member, modes),
         _axial(member, modes),
     )

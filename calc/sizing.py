@@ -794,7 +794,7 @@ def _refs(member: Member, count: int, direction: str) -> tuple[ModeRef, ...]:
     """The modes an excitation sizing checks, each named by its direction."""
     if direction == "depth":
         return mode_refs(fe.solve(member, count))
-    dirs = solve_directions(member, count)
+    dirs = solve_directions(member, count, checks=False)
     chosen = dirs.all_modes if direction == "governing" else dirs[direction].modes
     return tuple(ModeRef(m.direction, m.number, m.frequency_hz, m.estimated_error) for m in chosen)
 
