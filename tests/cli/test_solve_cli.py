@@ -359,6 +359,7 @@ title = "Uniform steel cantilever"
 length = "1 m"
 material = { youngs_modulus = "200 GPa", density = "7850 kg/m^3" }
 section = { shape = "rectangle", width = "50 mm", depth = "10 mm" }
+theory = "euler-bernoulli"   # the published roots are Euler-Bernoulli's
 
 [supports]
 left = "clamped"
