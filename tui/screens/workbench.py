@@ -51,10 +51,18 @@ class Workbench(Screen[None]):
         # time a solve of the latest inputs finishes: scripts and tests wait on these
         self.solved: dict | None = None
         self.solve_finished = asyncio.Event()
+        self._mounted = False
         self.last_edit = ""  # the latest edit, "key = text": what the results are for
         self._solving_edit = ""
 
     def compose(self) -> ComposeResult:
+        # the first solve starts before the form is built: the worker imports the numerical
+        # libraries and builds the unit registry while textual lays out the screen
+        self._version += 1
+        self.pending = True
+        self._solving = self.document.plain()
+        self._early: tuple[str, object, int] | None = None
+        self._run(self._solving, self._version)
         yield Header()
         with Horizontal(id="split"):
             yield WorksheetForm(self.document, id="form")
@@ -65,7 +73,11 @@ class Workbench(Screen[None]):
 
     def on_mount(self) -> None:
         self.app.refresh_title()  # type: ignore[attr-defined]
-        self.schedule(now=True)
+        self._mounted = True
+        if self._early is not None:  # the first solve ended before the screen was up
+            how, outcome, version = self._early
+            self._early = None
+            (self._done if how == "done" else self._failed)(outcome, version)  # type: ignore[arg-type]
 
     # --- solving ---------------------------------------------------------------------------
 
@@ -121,6 +133,9 @@ class Workbench(Screen[None]):
     def _done(self, analysis: object, version: int) -> None:
         if version != self._version:
             return  # the inputs changed again meanwhile; a newer solve is on its way
+        if not self._mounted:
+            self._early = ("done", analysis, version)
+            return
         self.pending = False
         self.solves += 1
         self.finished += 1
@@ -136,6 +151,9 @@ class Workbench(Screen[None]):
 
     def _failed(self, exc: InputError, version: int) -> None:
         if version != self._version:
+            return
+        if not self._mounted:
+            self._early = ("failed", exc, version)
             return
         self.pending = False
         self.finished += 1
