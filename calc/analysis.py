@@ -93,6 +93,8 @@ class Analysis:
             out = [w for w in out if SHEAR_RULE not in w]
             if pair.theory == "euler-bernoulli" and pair.shown:
                 out.append(pair.note())
+        if pair is not None and pair.refused:  # it would buckle once shear is counted
+            out.insert(0, pair.note())
         return tuple(out)
 
 

@@ -166,7 +166,7 @@ def solve_pair(
     except InputError as exc:
         if other_theory != TIMOSHENKO:
             raise
-        refused = f"the member is not stable ({exc.expected})"
+        refused = f"the member would not be stable: that theory needs {exc.expected}"
         return TheoryPair(member.theory, chosen, None, shear_reasons(member), refused)
     eb, timo = (chosen, other) if member.theory == EULER_BERNOULLI else (other, chosen)
     return TheoryPair(

@@ -392,3 +392,27 @@ def test_excitation_margins_use_the_timoshenko_modes():
         assert rows
         for r in rows:
             assert r.frequency_hz in {f for (name, _), f in timo.items() if name == r.direction}
+
+
+def test_euler_bernoulli_choice_warns_where_timoshenko_would_buckle():
+    """A compression between Engesser's and Euler's loads: solved under Euler-Bernoulli, with a
+    warning first that with shear flexibility the member would buckle."""
+    from beamtone.calc import analyse
+
+    text = """
+format = 1
+[member]
+length = "0.5 m"
+material = "steel"
+theory = "euler-bernoulli"
+section = { shape = "rectangle", width = "100 mm", depth = "100 mm" }
+axial_force = "-62 MN"
+[supports]
+left = "pinned"
+right = "pinned"
+"""
+    analysis = analyse(loads(text))
+    assert analysis.theories.timoshenko is None
+    assert "would not be stable" in analysis.warnings[0]
+    with pytest.raises(InputError):
+        analyse(loads(text.replace('theory = "euler-bernoulli"\n', "")))
