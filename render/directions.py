@@ -11,6 +11,7 @@ from beamtone.calc.directions import LABELS
 
 if TYPE_CHECKING:  # pragma: no cover
     from beamtone.calc.directions import Direction, DirectionMode, Directions
+    from beamtone.calc.theories import TheoryPair
 
 __all__ = [
     "governing_lines",
@@ -19,6 +20,7 @@ __all__ = [
     "assumption_lines",
     "directions_json",
     "all_modes_json",
+    "theory_json",
 ]
 
 _UNITS = {"depth": "kg", "width": "kg", "torsion": "kg*m^2", "axial": "kg"}
@@ -160,14 +162,14 @@ def _mode_json(m: DirectionMode) -> dict[str, Any]:
 def all_modes_json(directions: Directions) -> list[dict[str, Any]]:
     """``all_modes``: every computed mode of every direction, lowest frequency first."""
     return [
-        {**_mode_json(m), **_theories_json(directions[m.direction], m.number - 1)}
+        {**_mode_json(m), **theory_json(directions[m.direction].theories, m.number - 1)}
         for m in directions.all_modes
     ]
 
 
-def _theories_json(direction: Direction, i: int) -> dict[str, float]:
-    """A bending plane's mode by each beam theory solved [Hz] (issue 17)."""
-    pair = direction.theories
+def theory_json(pair: TheoryPair | None, i: int) -> dict[str, float]:
+    """Mode ``i`` (from 0) of a bending plane by each beam theory solved [Hz] (issue 17): the
+    ``euler_bernoulli_hz`` and ``timoshenko_hz`` of the JSON modes."""
     if pair is None:
         return {}
     out = {"euler_bernoulli_hz": pair.euler_bernoulli.modes[i].frequency_hz}
@@ -192,7 +194,7 @@ def directions_json(directions: Directions) -> dict[str, Any]:
                     "effective": m.effective,
                     "effective_unit": _UNITS[d.name],
                     "effective_fraction": m.effective_fraction,
-                    **_theories_json(d, i),
+                    **theory_json(d.theories, i),
                 }
                 for i, m in enumerate(d.modes)
             ],

@@ -16,6 +16,7 @@ from beamtone.render.directions import (
     direction_lines,
     directions_json,
     governing_lines,
+    theory_json,
 )
 from beamtone.render.groups import member_groups_json
 from beamtone.render.margins import (
@@ -232,7 +233,7 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
                 "effective_mass_kg": m.effective_mass,
                 "effective_mass_fraction": m.effective_mass_fraction,
                 "cumulative_mass_fraction": m.cumulative_mass_fraction,
-                **_theory_json(analysis.theories, i),
+                **theory_json(analysis.theories, i),
             }
             for i, m in enumerate(result.modes)
         ],
@@ -312,16 +313,6 @@ def solve_json(analysis: Analysis) -> dict[str, Any]:
         **_excitation_json(analysis),
         **_directions_json(analysis),
     })  # fmt: skip
-
-
-def _theory_json(pair: TheoryPair | None, i: int) -> dict[str, float]:
-    """A bending mode's frequency by each theory that was solved [Hz]."""
-    if pair is None:
-        return {}
-    out = {"euler_bernoulli_hz": pair.euler_bernoulli.modes[i].frequency_hz}
-    if pair.timoshenko is not None:
-        out["timoshenko_hz"] = pair.timoshenko.modes[i].frequency_hz
-    return out
 
 
 def _directions_json(analysis: Analysis) -> dict[str, Any]:
