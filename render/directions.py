@@ -130,9 +130,27 @@ def direction_lines(directions: Directions) -> list[str]:
                    f"no Dunkerley bound: {d.lower_bound.reason}")
             )  # fmt: skip
             lines.append(f"            bracket {d.bracket.message}")
+        if d.theories is not None and not d.same_as:
+            lines += _theory_lines(d.theories)
         for note in d.notes:
             lines += _wrapped("note", note)
         lines.append("")
+    return lines
+
+
+def _theory_lines(pair: TheoryPair) -> list[str]:
+    """A bending plane's modes whose two beam theories differ by more than 1 %, both shown."""
+    if pair.timoshenko is None:
+        return _wrapped("theory", pair.note())
+    chosen = "Timoshenko" if pair.theory == "timoshenko" else "Euler-Bernoulli"
+    lines = [f"            theory {chosen}; Euler-Bernoulli is what the reference and bounds check"]
+    for n in pair.shown:
+        e, t = pair.euler_bernoulli.modes[n - 1], pair.timoshenko.modes[n - 1]
+        lines.append(
+            f"            mode {n}: Timoshenko {_fmt(t.frequency_hz)} Hz, Euler-Bernoulli "
+            f"{_fmt(e.frequency_hz)} Hz, shear and rotary inertia "
+            f"{100 * pair.differences[n - 1]:+.2f} %"
+        )
     return lines
 
 
