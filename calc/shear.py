@@ -22,7 +22,9 @@ The shear coefficient in Timoshenko's beam theory, J. Appl. Mech. 33 (1966) 335-
 A section given by its properties has shear flexibility only where the worksheet gives its
 shear area (``shear_area``, and ``shear_area_width`` for the width plane); without it the
 Timoshenko solve keeps its rotary inertia but no shear flexibility, and says so.  G comes from
-the material (``Material.shear_modulus_or_none``: as given, or E / (2 (1 + nu))).
+the material (``Material.shear_modulus_or_none``: as given, or E / (2 (1 + nu))); a material
+that gives G without nu is read as isotropic where E / (2 G) - 1 lies in [0, 0.5), else (an
+orthotropic material such as timber) Cowper's coefficients are taken at nu = 0.
 """
 
 from __future__ import annotations
@@ -172,8 +174,11 @@ def segment_shear(material: Material, section: Section, plane: str = "depth") ->
             return SegmentShear(math.inf, rotary, f"the section gives no {key}")
         return SegmentShear(G * area, rotary)
     nu = material.poisson_ratio
-    if nu is None:  # G given alone: Poisson's ratio of that E and G (isotropic reading)
-        nu = min(max(material.youngs_modulus / (2.0 * G) - 1.0, -0.99), 0.49)
+    if nu is None:  # G given alone: Poisson's ratio of that E and G where it is isotropic,
+        # else (timber: E/G near 16) Cowper's coefficient at nu = 0 (5/6 for a rectangle)
+        nu = material.youngs_modulus / (2.0 * G) - 1.0
+        if not 0.0 <= nu < 0.5:
+            nu = 0.0
     kappa = cowper_coefficient(section, nu, plane)
     assert kappa is not None
     return SegmentShear(kappa * G * section.area, rotary)

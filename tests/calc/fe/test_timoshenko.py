@@ -416,3 +416,19 @@ right = "pinned"
     assert "would not be stable" in analysis.warnings[0]
     with pytest.raises(InputError):
         analyse(loads(text.replace('theory = "euler-bernoulli"\n', "")))
+
+
+def test_shear_modulus_without_poissons_ratio():
+    """G alone: isotropic where E/(2G) - 1 is a Poisson's ratio, else (timber, E/G near 16,
+    EN 338 C24) Cowper at nu = 0, the classical 5/6 of a rectangle (common practice)."""
+    from beamtone.calc.shear import segment_shear
+
+    sec = build_section("rectangle", {"width": 0.1, "depth": 0.2})
+    steel_g = Material("s", 200e9, 7850.0, None, shear_modulus=200e9 / 2.6)
+    timber = Material("t", 11.0e9, 420.0, None, shear_modulus=0.69e9)
+    assert segment_shear(steel_g, sec).shear_stiffness == pytest.approx(
+        cowper_coefficient(sec, 0.3) * 200e9 / 2.6 * sec.area, rel=1e-12
+    )
+    assert segment_shear(timber, sec).shear_stiffness == pytest.approx(
+        5 / 6 * 0.69e9 * sec.area, rel=1e-12
+    )
