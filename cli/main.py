@@ -216,10 +216,17 @@ def _finite_float(what: str) -> Callable[[str], float]:
 
 def _solve(args: argparse.Namespace) -> int:
     from beamtone.calc import analyse, load
+    from beamtone.calc.errors import InputError
     from beamtone.cli.output import write_json
     from beamtone.render.text import solve_json, solve_text
 
-    analysis = analyse(load(args.file), args.modes, args.elements)
+    try:
+        analysis = analyse(load(args.file), args.modes, args.elements)
+    except InputError as exc:
+        if args.elements is not None and "on the forced mesh" in exc.expected:
+            # the forced mesh, not the worksheet's mode count, is what the user set here
+            raise InputError("--elements", args.elements, exc.expected, exc.hint) from None
+        raise
     note = None
     if args.record:
         from beamtone.cli import record_cmd

@@ -261,10 +261,10 @@ def _with_eigenvalues(result: FEResult, lam: np.ndarray) -> FEResult:
 def _need_modes(available: int, modes: int, elements: int | None = None) -> None:
     if available < modes and elements is not None:  # the forced mesh is too coarse
         raise InputError(
-            "--elements",
-            elements,
-            f"a mesh fine enough for {modes} modes (this one gives {available}); "
-            "give more elements or ask for fewer modes",
+            "check.modes",
+            modes,
+            f"at most {available} modes on the forced mesh of {elements} elements",
+            "give more elements (--elements) or ask for fewer modes",
         )
     if available < modes:
         raise InputError(
