@@ -297,7 +297,8 @@ class Document:
                 self.modified = True
             return
         if not isinstance(table, dict):
-            self.doc["tolerances"] = table = tomlkit.table()
+            self.doc["tolerances"] = tomlkit.table()
+            table = self.doc["tolerances"]  # the table as the document holds it
         if table.get(key) != value:
             table[key] = value
             self.modified = True

@@ -287,3 +287,38 @@ async def test_an_excitation_entry_shows_the_verdict_margins_and_map(bar: Path) 
         view = await edit(pilot, app, "excitation[0].speed", "1500 rpm")
         assert all(r.clear for r in view.analysis.margins.rows)
         assert "◆" not in str(chart.render()).rsplit("\n", 1)[0]
+
+
+@sync
+async def test_a_tolerance_entry_shows_bands_and_what_moves_them(bar: Path) -> None:
+    """A tolerance picked from the worksheet's quantities and typed: the bands of every mode
+    and the inputs ranked by how much they move it (calc.band, drawn by render.bands)."""
+    app = BeamtoneApp(bar)
+    async with app.run_test(size=(100, 60)) as pilot:
+        await settled(pilot, app)
+        picker = app.workbench.query_one("#tolerance-key", Select)
+        picker.scroll_visible(animate=False)
+        await pilot.pause()  # flush: the scroll lands before the click
+        await pilot.click(picker)  # opens the list of the worksheet's quantities
+        await pilot.pause()  # flush: the list is up
+        assert picker.expanded
+        await pilot.press("down", "down", "enter")  # below the blank row, the first: member.length
+        await pilot.pause()  # flush
+        assert picker.value == "member.length", picker.value
+        await press(pilot, app, "#add-tolerance")
+        view = await settled(pilot, app, until=lambda: "member.length" in app.document.tolerances())
+        assert app.document.tolerances() == {"member.length": "5 %"}
+        await type_into(pilot, field_of(app, "tolerances.member.length"), "2 %")
+        view = await settled(
+            pilot, app, until=lambda: app.document.tolerances() == {"member.length": "2 %"}
+        )
+        bands = view.analysis.bands
+        assert bands is not None
+        depth1 = next(b for b in bands.modes if b.direction == "depth" and b.number == 1)
+        f1 = view.analysis.modes.modes[0].frequency_hz
+        # f1 goes as 1/L^2 (Euler-Bernoulli, common practice): +-2 % in L is about -+4 % in f1
+        assert depth1.low_hz == pytest.approx(f1 / 1.02**2, rel=2e-3)
+        assert depth1.high_hz == pytest.approx(f1 / 0.98**2, rel=2e-3)
+        shown = str(view.query_one("#bands", Static).render())
+        assert "member.length" in shown and "first to pin down" in shown
+    assert "tolerances" not in bar.read_text()  # nothing written until saved
