@@ -510,8 +510,8 @@ def find(key: str) -> Entry | None:
         target = _entries().get(pattern(key[len("tolerances.") :]))
         if target is None or target.kind != QUANTITY:
             return None
-        return Entry(pattern(key), TEXT, f"tolerance of {target.label}",
-                     f'the range of {target.label}: "5 %", plus or minus, or [low, high]')  # fmt: skip
+        what = f'the range of {target.label}: "5 %", plus or minus, or [low, high]'
+        return Entry(pattern(key), TEXT, f"tolerance of {target.label}", what)
     return _entries().get(pattern(key))
 
 
