@@ -105,13 +105,20 @@ class System:
         -------
         ndarray, shape (2, free DOFs)
         """
-        rows = np.zeros((2, self.n_full))
-        if self.T is not None:
-            rows = self.T[2 * node : 2 * node + 2].toarray()
-        else:
-            rows[0, 2 * node] = rows[1, 2 * node + 1] = 1.0
+        number = np.full(self.n_full, -1)
+        number[self.free] = np.arange(len(self.free))
+        rows = np.zeros((2, len(self.free)))
+        for k in range(2):
+            dof = 2 * node + k
+            if self.T is None:
+                cols, vals = np.array([dof]), np.array([1.0])
+            else:  # the row's few entries, read straight from the compressed rows
+                span = slice(self.T.indptr[dof], self.T.indptr[dof + 1])
+                cols, vals = self.T.indices[span], self.T.data[span]
+            keep = number[cols] >= 0
+            np.add.at(rows[k], number[cols[keep]], vals[keep])
         rows[1] /= self.scale
-        return rows[:, self.free]
+        return rows
 
 
 @dataclass(frozen=True)
@@ -377,7 +384,14 @@ def _tethered(
             k, d = int(mesh.tether[k]), d + 1
         depth[j] = d
     slaves.sort(key=lambda j: depth[j])
-    T = scipy.sparse.lil_matrix(scipy.sparse.identity(n, format="lil"))
+    # Rows of T as (columns, values), built from the master's rows: a tethered node's row has
+    # the entries of its chain only (a chain is at most CHAIN_STATIONS long, see fe.mesh), so
+    # T is built from triplets in O(n), never from full-length rows.
+    rows: dict[int, tuple[np.ndarray, np.ndarray]] = {}
+
+    def row(dof: int) -> tuple[np.ndarray, np.ndarray]:
+        return rows.get(dof, (np.array([dof]), np.array([1.0])))
+
     tethers: list[Tether] = []
     for j in slaves:
         master = int(mesh.tether[j])
@@ -386,35 +400,49 @@ def _tethered(
         end = slice(2, 4) if j > master else slice(0, 2)  # the tethered node's end
         geo = np.zeros((2, 2)) if ge is None else ge[element, end, end].copy()
         tethers.append(Tether(j, master, e, ke[element, end, end].copy(), geo))
-        row_w = T[2 * master].toarray()[0] + (e / s) * T[2 * master + 1].toarray()[0]
-        row_t = T[2 * master + 1].toarray()[0]
-        row_w[2 * j] += 1.0
-        row_t[2 * j + 1] += 1.0
-        T[2 * j] = row_w
-        T[2 * j + 1] = row_t
-    Tc = T.tocsr()
+        (cw, vw), (ct, vt) = row(2 * master), row(2 * master + 1)
+        rows[2 * j] = (np.concatenate([cw, ct, [2 * j]]), np.concatenate([vw, (e / s) * vt, [1.0]]))
+        rows[2 * j + 1] = (np.concatenate([ct, [2 * j + 1]]), np.concatenate([vt, [1.0]]))
+    untouched = np.setdiff1d(np.arange(n), np.fromiter(rows, dtype=int, count=len(rows)))
+    all_rows = [untouched] + [np.full(len(c), d) for d, (c, _) in rows.items()]
+    all_cols = [untouched] + [c for c, _ in rows.values()]
+    all_vals = [np.ones(len(untouched))] + [v for _, v in rows.values()]
+    Tc = scipy.sparse.csr_matrix(
+        (np.concatenate(all_vals), (np.concatenate(all_rows), np.concatenate(all_cols))),
+        shape=(n, n),
+    )  # duplicates (a chain through both slots of a node) are summed, as the rows were
     P = member.axial_force
 
     def blocks(elastic: bool, tension: float) -> scipy.sparse.csr_matrix:
-        rows, cols, vals = [], [], []
+        ri: list[np.ndarray] = []
+        ci: list[np.ndarray] = []
+        vals: list[np.ndarray] = []
+        local = np.array([0, 0, 1, 1]), np.array([0, 1, 0, 1])
         for t in tethers:
             block = (t.stiffness if elastic else 0.0) + tension * t.geometric
-            for a in range(2):
-                for b in range(2):
-                    rows.append(2 * t.node + a)
-                    cols.append(2 * t.node + b)
-                    vals.append(block[a, b])
-        extra = scipy.sparse.csr_matrix((vals, (rows, cols)), shape=(n, n))
+            ri.append(2 * t.node + local[0])
+            ci.append(2 * t.node + local[1])
+            vals.append(np.asarray(block, dtype=float)[local])
         if tension:
             # the rigid rotation of the short element under the axial force: tension times
-            # |e| theta_m^2 + 2 sign(e) theta_m r_w (theta_m the neighbour's slope)
+            # |e| theta_m^2 + 2 sign(e) theta_m r_w (theta_m the neighbour's slope); the
+            # triplets of theta^T theta and theta^T unit + unit^T theta, summed on conversion
             for t in tethers:
-                theta = Tc[2 * t.master + 1] / s
-                unit = scipy.sparse.csr_matrix(([1.0], ([0], [2 * t.node])), shape=(1, n))
+                cols, theta = row(2 * t.master + 1)
+                theta = theta / s
                 sign = 1.0 if t.offset > 0 else -1.0
-                extra = extra + tension * abs(t.offset) * (theta.T @ theta)
-                extra = extra + tension * sign * (theta.T @ unit + unit.T @ theta)
-        return extra
+                ri += [np.repeat(cols, len(cols)), cols, np.full(len(cols), 2 * t.node)]
+                ci += [np.tile(cols, len(cols)), np.full(len(cols), 2 * t.node), cols]
+                vals += [
+                    tension * abs(t.offset) * np.outer(theta, theta).ravel(),
+                    tension * sign * theta,
+                    tension * sign * theta,
+                ]
+        if not ri:
+            return scipy.sparse.csr_matrix((n, n))
+        return scipy.sparse.csr_matrix(
+            (np.concatenate(vals), (np.concatenate(ri), np.concatenate(ci))), shape=(n, n)
+        )
 
     def reduce(matrix: scipy.sparse.csr_matrix) -> scipy.sparse.csr_matrix:
         return matrix[free][:, free].tocsr()

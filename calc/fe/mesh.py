@@ -13,6 +13,7 @@ from beamtone.calc.model import POSITION_TOLERANCE, Member
 
 __all__ = [
     "ATTACHMENT_TOLERANCE",
+    "CHAIN_STATIONS",
     "SAME_POSITION",
     "Mesh",
     "stations",
@@ -25,6 +26,8 @@ ATTACHMENT_TOLERANCE = 1e-3
 """An attachment closer than this fraction of the length to its neighbouring station is
 tethered to it: one element between them that is never split, whose nodal values are solved
 for relative to the station (see :mod:`beamtone.calc.fe.assembly`)."""
+CHAIN_STATIONS = 8
+"""Most stations in one chain of tethers (a longer cluster is cut at its widest gaps)."""
 
 
 SAME_POSITION = 8.0 * float(np.finfo(float).eps)
@@ -139,7 +142,10 @@ def _tethers(member: Member, points: list[float]) -> dict[int, int]:
 
     Stations closer than ``ATTACHMENT_TOLERANCE`` of the length form a cluster; its first
     support or segment end (else its first station) stays as it is, and every attachment of
-    the cluster is tethered to its neighbour on the side of that one.
+    the cluster is tethered to its neighbour on the side of that one.  A cluster of more than
+    ``CHAIN_STATIONS`` stations (a long run of closely spaced attachments) is first cut at its
+    widest gaps into pieces of at most that many (see :func:`_pieces`), so a chain of tethers
+    is never longer than ``CHAIN_STATIONS - 1`` links and the tie matrix stays O(n).
     """
     L = member.length
     near = ATTACHMENT_TOLERANCE * L
@@ -151,14 +157,32 @@ def _tethers(member: Member, points: list[float]) -> dict[int, int]:
     for end in range(1, len(points) + 1):
         if end < len(points) and points[end] - points[end - 1] < near:
             continue
-        cluster = range(start, end)
-        roots = [i for i in cluster if points[i] in fixed or points[i] not in attached]
-        root = roots[0] if roots else start
-        for i in cluster:
-            if i != root and points[i] in attached and points[i] not in fixed:
-                out[i] = i - 1 if i > root else i + 1
+        for cluster in _pieces(points, start, end):
+            roots = [i for i in cluster if points[i] in fixed or points[i] not in attached]
+            root = roots[0] if roots else cluster.start
+            for i in cluster:
+                if i != root and points[i] in attached and points[i] not in fixed:
+                    out[i] = i - 1 if i > root else i + 1
         start = end
     return out
+
+
+def _pieces(points: list[float], start: int, end: int) -> list[range]:
+    """Stations ``start:end`` of one cluster in pieces of at most ``CHAIN_STATIONS``.
+
+    A cluster that short is one piece (so every tether of it is as before).  A longer one is
+    cut, left to right, at the widest gap among the next ``CHAIN_STATIONS`` stations: the
+    element across a cut is an ordinary element, and the widest gap keeps it as long as the
+    run allows (a run of evenly spaced attachments gives ordinary elements of its spacing).
+    """
+    pieces: list[range] = []
+    while end - start > CHAIN_STATIONS:
+        window = np.diff(np.asarray(points[start : start + CHAIN_STATIONS + 1]))
+        cut = start + int(np.argmax(window)) + 1  # first station after the widest gap
+        pieces.append(range(start, cut))
+        start = cut
+    pieces.append(range(start, end))
+    return pieces
 
 
 def _tether_array(n_nodes: int, station_index: list[int], links: dict[int, int]) -> np.ndarray:
