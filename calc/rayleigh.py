@@ -863,17 +863,17 @@ def _dunkerley_sum(member: Member) -> DunkerleyBound:
     factors: list[float] = []
     for x, w, m in zip(xq, wq, m_of, strict=True):
         row = _observe_at(mesh, system, float(x))
-        if np.any(row):
-            columns.append(_sparse(row))
+        if row[0].size:
+            columns.append(row)
             factors.append(w * m)
     for pm in member.masses:
         node, _ = mesh.carrier(pm.at)
-        rows = system.observe(node)
-        if pm.mass and np.any(rows[0]):
-            columns.append(_sparse(rows[0]))
+        deflection, slope = system.observe_entries(node)
+        if pm.mass and deflection[0].size:
+            columns.append(deflection)
             factors.append(pm.mass)
-        if pm.rotary_inertia and np.any(rows[1]):
-            columns.append(_sparse(rows[1]))
+        if pm.rotary_inertia and slope[0].size:
+            columns.append(slope)
             factors.append(pm.rotary_inertia)
     # v^T K^-1 v for every probe v, without a dense n x probes array (2,500 point masses
     # asked for 7.4 GB that way)
@@ -891,21 +891,30 @@ def _dunkerley_sum(member: Member) -> DunkerleyBound:
     return DunkerleyBound(1.0 / (2.0 * math.pi * math.sqrt(trace)), trace, None, exact, uncertainty)
 
 
-def _observe_at(mesh: fe.Mesh, system: fe.System, x: float) -> np.ndarray:
-    """Row giving the deflection at x [m] from the free DOFs (Hermite interpolation)."""
+def _observe_at(mesh: fe.Mesh, system: fe.System, x: float) -> tuple[np.ndarray, np.ndarray]:
+    """Entries (free DOFs, values) of the row giving the deflection at x [m] (Hermite
+    interpolation), kept sparse: a row touches a node's chain of tethers only."""
     i = int(np.clip(np.searchsorted(mesh.x, x) - 1, 0, len(mesh.x) - 2))
     for node in (i, i + 1):
         if mesh.x[node] == x:
-            return system.observe(node)[0]
+            return system.observe_entries(node)[0]
     h = mesh.x[i + 1] - mesh.x[i]
     t = (x - mesh.x[i]) / h
-    left, right = system.observe(i), system.observe(i + 1)
-    return (
-        (1 - 3 * t**2 + 2 * t**3) * left[0]
-        + h * (t - 2 * t**2 + t**3) * left[1]
-        + (3 * t**2 - 2 * t**3) * right[0]
-        + h * (t**3 - t**2) * right[1]
+    left, right = system.observe_entries(i), system.observe_entries(i + 1)
+    weights = (
+        1 - 3 * t**2 + 2 * t**3,
+        h * (t - 2 * t**2 + t**3),
+        3 * t**2 - 2 * t**3,
+        h * (t**3 - t**2),
     )
+    parts = (left[0], left[1], right[0], right[1])
+    index, where = np.unique(np.concatenate([p[0] for p in parts]), return_inverse=True)
+    values = np.zeros(len(index))
+    np.add.at(
+        values, where, np.concatenate([c * p[1] for c, p in zip(weights, parts, strict=True)])
+    )
+    nonzero = values != 0.0
+    return index[nonzero], values[nonzero]
 
 
 # --- bracket and equivalent model ----------------------------------------------------------------

@@ -105,9 +105,25 @@ class System:
         -------
         ndarray, shape (2, free DOFs)
         """
-        number = np.full(self.n_full, -1)
-        number[self.free] = np.arange(len(self.free))
         rows = np.zeros((2, len(self.free)))
+        for k, (index, values) in enumerate(self.observe_entries(node)):
+            rows[k, index] = values
+        return rows
+
+    def observe_entries(self, node: int) -> tuple[tuple[np.ndarray, np.ndarray], ...]:
+        """The non-zero entries of :meth:`observe`'s two rows, without full-length rows.
+
+        A node's rows touch its own DOFs and those of its chain of tethers only, so this
+        costs O(chain) rather than O(free DOFs) a call (what probes at thousands of
+        attachments need).
+
+        Returns
+        -------
+        ((index, values), (index, values))
+            Free-DOF indices (sorted) and values of the deflection row [m] and the slope row
+            [rad].
+        """
+        out = []
         for k in range(2):
             dof = 2 * node + k
             if self.T is None:
@@ -115,10 +131,16 @@ class System:
             else:  # the row's few entries, read straight from the compressed rows
                 span = slice(self.T.indptr[dof], self.T.indptr[dof + 1])
                 cols, vals = self.T.indices[span], self.T.data[span]
-            keep = number[cols] >= 0
-            np.add.at(rows[k], number[cols[keep]], vals[keep])
-        rows[1] /= self.scale
-        return rows
+            at = np.minimum(np.searchsorted(self.free, cols), len(self.free) - 1)
+            keep = self.free[at] == cols  # held DOFs read zero
+            index, where = np.unique(at[keep], return_inverse=True)
+            values = np.zeros(len(index))
+            np.add.at(values, where, vals[keep])
+            if k == 1:
+                values /= self.scale
+            nonzero = values != 0.0
+            out.append((index[nonzero], values[nonzero]))
+        return tuple(out)
 
 
 @dataclass(frozen=True)

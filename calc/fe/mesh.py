@@ -26,7 +26,7 @@ ATTACHMENT_TOLERANCE = 1e-3
 """An attachment closer than this fraction of the length to its neighbouring station is
 tethered to it: one element between them that is never split, whose nodal values are solved
 for relative to the station (see :mod:`beamtone.calc.fe.assembly`)."""
-CHAIN_STATIONS = 8
+CHAIN_STATIONS = 4
 """Most stations in one chain of tethers (a longer cluster is cut at its widest gaps)."""
 
 
@@ -272,13 +272,22 @@ def mesh_through(member: Member, points: np.ndarray) -> Mesh:
     links = _tethers(member, fixed)
     L = member.length
     tol = POSITION_TOLERANCE * L
-    tethered_gaps = [(fixed[min(i, j)], fixed[max(i, j)]) for i, j in links.items()]
     kept = np.asarray(fixed)
+    # interval k = (fixed[k], fixed[k + 1]) of each point, found by bisection (O(log n) a point)
+    tethered_gap = np.zeros(len(fixed), dtype=bool)
+    tethered_gap[[min(i, j) for i, j in links.items()]] = True
+    sorted_points = np.sort(np.clip(np.asarray(points, dtype=float), 0.0, L))
+    interval = np.clip(np.searchsorted(kept, sorted_points, side="right") - 1, 0, len(kept) - 1)
+    after = np.minimum(interval + 1, len(kept) - 1)
+    nearest = np.minimum(
+        np.abs(sorted_points - kept[interval]), np.abs(kept[after] - sorted_points)
+    )
+    inside = (sorted_points > kept[interval]) & (sorted_points < kept[after])
     extra: list[float] = []
-    for p in sorted(np.clip(points, 0.0, L).tolist()):
-        if np.min(np.abs(kept - p)) <= tol or (extra and p - extra[-1] <= tol):
+    for p, near, k, strictly in zip(sorted_points.tolist(), nearest, interval, inside, strict=True):
+        if near <= tol or (extra and p - extra[-1] <= tol):
             continue
-        if any(a < p < b for a, b in tethered_gaps):
+        if strictly and tethered_gap[k]:
             continue
         extra.append(p)
     x = np.asarray(sorted([*fixed, *extra]))
