@@ -1007,7 +1007,18 @@ def _excitation_blocks(analysis: Analysis, margins: MarginCheck | None) -> tuple
     )  # fmt: skip
     bands = tuple(
         f"{ln.excitation} {'lower limit' if ln.order is None else f'order {ln.order:g}'}: "
-        f"no mode in {number(ln.band_low_hz)} to {number(ln.band_high_hz)} Hz"
+        f"band to keep clear {number(ln.band_low_hz)} to {number(ln.band_high_hz)} Hz, "
+        + (
+            f"{n} mode(s) INSIDE"
+            if (
+                n := sum(
+                    1
+                    for r in table.rows
+                    if not r.clear and r.excitation == ln.excitation and r.order == ln.order
+                )
+            )
+            else "every computed mode clear of it"
+        )  # fmt: skip
         for ln in table.lines
     )
     blocks: list[Block] = [

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from beamtone.calc.excitation import CAUTION, CRITERIA, Excitation, MarginRow, MarginTable
+from beamtone.calc.excitation import CAUTION, CRITERIA, Excitation, Line, MarginRow, MarginTable
 from beamtone.calc.response import DAMPING_CAUTION, ForcedResponse
 
 __all__ = [
@@ -63,8 +63,8 @@ def margin_lines(table: MarginTable, excitations: tuple[Excitation, ...] = ()) -
         )
         what = "lower limit" if ln.order is None else f"order {ln.order:g}"
         out.append(
-            f"  {ln.excitation} {what} at {at}: no mode in {ln.band_low_hz:.4g}-"
-            f"{ln.band_high_hz:.4g} Hz"
+            f"  {ln.excitation} {what} at {at}: band to keep clear {ln.band_low_hz:.4g}-"
+            f"{ln.band_high_hz:.4g} Hz, {_inside(table, ln)}"
         )
     for row in rows:
         cells = [row[0].ljust(widths[0])] + [row[c].rjust(widths[c]) for c in range(1, 7)]
@@ -212,3 +212,13 @@ def practical_json(result: Any) -> dict[str, Any]:
         out["margin_table"] = margins_json(result.table)
         out["verdict"] = verdict_json(result.table)
     return out
+
+
+def _inside(table: MarginTable, line: Line) -> str:
+    """How many computed modes lie inside one line's band, in words."""
+    count = sum(
+        1
+        for r in table.rows
+        if not r.clear and r.excitation == line.excitation and r.order == line.order
+    )
+    return "every computed mode clear of it" if count == 0 else f"{count} mode(s) INSIDE"
