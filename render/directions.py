@@ -123,10 +123,13 @@ def direction_lines(directions: Directions) -> list[str]:
             lines += _wrapped("reference", f"{ref.case}: {ref.source}")
         if d.estimate is not None and d.lower_bound is not None and d.bracket is not None:
             low = d.lower_bound.frequency_hz
+            # bounds of the Euler-Bernoulli fundamental; say so where the table is Timoshenko
+            eb = d.theories is not None and d.theories.theory != "euler-bernoulli"
+            of = " of the Euler-Bernoulli f1" if eb else ""
             lines.append(
-                f"            Rayleigh {_fmt(d.estimate.frequency_hz)} Hz (upper bound, static "
-                "deflection shape); "
-                + (f"Dunkerley {_fmt(low)} Hz (lower bound)" if low is not None else
+                f"            Rayleigh {_fmt(d.estimate.frequency_hz)} Hz (upper bound{of}, "
+                "static deflection shape); "
+                + (f"Dunkerley {_fmt(low)} Hz (lower bound{of})" if low is not None else
                    f"no Dunkerley bound: {d.lower_bound.reason}")
             )  # fmt: skip
             lines.append(f"            bracket {d.bracket.message}")

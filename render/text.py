@@ -192,14 +192,16 @@ def _estimate_lines(analysis: Analysis) -> list[str]:
         analysis.equivalent,
     )
     shape = "static deflection" if est.shape == "static" else est.shape
-    lines = [f"  Rayleigh  {_fmt(est.frequency_hz)} Hz (upper bound), shape: {shape}"]
+    # The bounds are of the Euler-Bernoulli fundamental; say so where the table is another theory.
+    of = " of the Euler-Bernoulli f1" if analysis.theory == "timoshenko" else ""
+    lines = [f"  Rayleigh  {_fmt(est.frequency_hz)} Hz (upper bound{of}), shape: {shape}"]
     if est.expression and est.expression != est.shape:
         lines.append(f"            w(x) = {est.expression}")
     if est.formula:
         lines.append(f"            {est.formula}")
     lines += [f"            {note}" for note in est.notes]
     if low.frequency_hz is not None:
-        lines.append(f"  Dunkerley {_fmt(low.frequency_hz)} Hz (lower bound)")
+        lines.append(f"  Dunkerley {_fmt(low.frequency_hz)} Hz (lower bound{of})")
         if low.note:
             lines.append(f"            {low.note}")
     else:
