@@ -123,21 +123,6 @@ def test_the_registry_keeps_no_pint_cache_folder() -> None:
     assert getattr(units.registry(), "_diskcache", None) is None
 
 
-def test_no_home_folder_means_no_cache(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
-    from beamtone.calc import diskcache
-
-    monkeypatch.delenv("BEAMTONE_CACHE", raising=False)
-    monkeypatch.delenv("XDG_CACHE_HOME", raising=False)
-    monkeypatch.setenv("HOME", "")
-    monkeypatch.setattr(diskcache.os.path, "expanduser", lambda text: text)
-    monkeypatch.chdir(tmp_path)
-    _forget(monkeypatch)
-    assert diskcache.folder() is None
-    assert units.parse_quantity("2 in", units.LENGTH, "k") == pytest.approx(0.0508, rel=1e-15)
-    assert list(tmp_path.iterdir()) == []
-    _forget(monkeypatch)
-
-
 @pytest.mark.parametrize(
     ("text", "reason"),
     [
