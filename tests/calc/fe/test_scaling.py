@@ -94,3 +94,20 @@ def test_cutting_the_chain_keeps_the_frequencies(monkeypatch: pytest.MonkeyPatch
     assert _chain_depth(fe.build_mesh(member, 40)) == 199
     for a, b, mode in zip(cut.frequencies_hz, whole.frequencies_hz, cut.modes, strict=True):
         assert a == pytest.approx(b, rel=max(2 * mode.estimated_error, 1e-9))
+
+
+def test_a_run_too_close_to_cut_stays_one_chain(monkeypatch: pytest.MonkeyPatch) -> None:
+    """Seven masses 1e-6 of the length apart: no gap is wide enough for an ordinary element
+    (CUT_GAP), so the run stays one chain and solves as the uncut chain does, bit for bit."""
+    member = Member(
+        (Segment(10.0, LIBRARY["steel"], TUBE),),
+        "pinned",
+        "pinned",
+        tuple(PointMass(3.0 + 1e-5 * k, 1.0) for k in range(7)),
+    )
+    mesh = fe.build_mesh(member, 40)
+    assert _chain_depth(mesh) == 6
+    cut = fe.solve(member, 3)
+    monkeypatch.setattr(fe_mesh, "CHAIN_STATIONS", 10**6)
+    whole = fe.solve(member, 3)
+    assert np.array_equal(cut.frequencies_hz, whole.frequencies_hz)
