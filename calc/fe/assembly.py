@@ -133,9 +133,12 @@ class System:
                 cols, vals = self.T.indices[span], self.T.data[span]
             at = np.minimum(np.searchsorted(self.free, cols), len(self.free) - 1)
             keep = self.free[at] == cols  # held DOFs read zero
-            index, where = np.unique(at[keep], return_inverse=True)
-            values = np.zeros(len(index))
-            np.add.at(values, where, vals[keep])
+            if len(cols) == 1:  # a node of its own (the common case): nothing to sum
+                index, values = at[keep], np.array(vals[keep], dtype=float)
+            else:
+                index, where = np.unique(at[keep], return_inverse=True)
+                values = np.zeros(len(index))
+                np.add.at(values, where, vals[keep])
             if k == 1:
                 values /= self.scale
             nonzero = values != 0.0
