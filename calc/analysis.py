@@ -134,18 +134,6 @@ def analyse(
     euler_bernoulli = pair.euler_bernoulli  # what the Euler-Bernoulli cross-checks compare with
     bending = replace(member, theory="euler-bernoulli")  # Rayleigh, Ritz and Dunkerley's model
     check = handbook.check(member, count)
-    directions = (
-        solve_directions(
-            member,
-            count,
-            depth=result,
-            depth_handbook=check,
-            elements=elements,
-            depth_theories=pair,
-        )
-        if every_direction
-        else None
-    )
     settings = sheet.estimate
     if settings.shape == "static":
         estimate = rayleigh.rayleigh_static(bending)
@@ -156,6 +144,19 @@ def analyse(
         shapes = settings.shapes if isinstance(settings.shapes, int) else list(settings.shapes)
         ritz = rayleigh.ritz(bending, shapes)
     lower = rayleigh.dunkerley(bending)
+    directions = (
+        solve_directions(
+            member,
+            count,
+            depth=result,
+            depth_handbook=check,
+            elements=elements,
+            depth_theories=pair,
+            depth_bounds=(estimate, lower),
+        )
+        if every_direction
+        else None
+    )
     bands = _bands(sheet, result, directions)
     accurate, accurate_directions = _accurate(pair, directions)
     margins = excitation.check_member(sheet.excitations, accurate, accurate_directions, bands)

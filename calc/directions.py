@@ -318,6 +318,34 @@ def _same_bending(a: Member, b: Member) -> bool:
     )
 
 
+def _proportion(turned: Member, plain: Member) -> float | None:
+    """c where the turned member's Euler-Bernoulli stiffness is c times the plain one's with
+    the same mass (same supports and attachments, no springs, no axial force, every
+    segment's E I the same multiple): its Euler-Bernoulli modes are then the plain member's,
+    each frequency times sqrt(c).  None otherwise."""
+    if (turned.left, turned.right, turned.masses, turned.inner_supports, turned.springs) != (
+        plain.left,
+        plain.right,
+        plain.masses,
+        plain.inner_supports,
+        plain.springs,
+    ):
+        return None
+    if turned.axial_force != 0.0 or plain.axial_force != 0.0:
+        return None
+    if any(s.stiffness != 0.0 or s.rotational_stiffness != 0.0 for s in plain.springs):
+        return None
+    factor = turned.segments[0].bending_stiffness / plain.segments[0].bending_stiffness
+    for a, b in zip(turned.segments, plain.segments, strict=True):
+        if not (
+            a.length == b.length
+            and a.mass_per_length == b.mass_per_length
+            and math.isclose(a.bending_stiffness, factor * b.bending_stiffness, rel_tol=1e-14)
+        ):
+            return None
+    return factor
+
+
 # --- torsion and axial ---------------------------------------------------------------------------
 
 
@@ -457,20 +485,28 @@ def _width(
     elements: int | None,
     depth_theories: TheoryPair | None = None,
     checks: bool = True,
+    depth_bounds: tuple[rayleigh.RayleighEstimate | None, rayleigh.DunkerleyBound] | None = None,
 ) -> Direction:
     supports = _support_words(member, "width")
     turned = width_member(member)
     if isinstance(turned, str):
         return Direction("width", (), reason=turned, supports=supports)
+    plain = _plain(member)
+    factor = _proportion(turned, plain)
     if not checks:  # the modes alone, by the member's theory (sizing, bands)
-        if _same_bending(turned, _plain(member)):
+        scaled = None
+        if factor is not None and member.theory == "euler-bernoulli":
+            scaled = fe.scaled_result(depth, plain, turned, factor)
+        if _same_bending(turned, plain):
             result = depth
+        elif scaled is not None:
+            result = scaled
         else:
             result = fe.solve(turned, count, elements=elements)
         modes = _direction_modes("width", result)
         return Direction("width", modes, result.rigid_body_modes, solution=result,
                          supports=supports, warnings=result.warnings)  # fmt: skip
-    if _same_bending(turned, _plain(member)):
+    if _same_bending(turned, plain):
         return Direction(
             "width",
             _direction_modes("width", depth),
@@ -488,18 +524,32 @@ def _width(
             theories=depth_theories,
             **_bounds(turned, depth if depth_theories is None else depth_theories.euler_bernoulli),
         )
-    pair = solve_pair(turned, count, elements=elements)
+    scaled = None
+    if factor is not None and depth_theories is not None:  # the Euler-Bernoulli modes scale
+        eb_plain = replace(plain, theory="euler-bernoulli")
+        eb_turned = replace(turned, theory="euler-bernoulli")
+        scaled = fe.scaled_result(depth_theories.euler_bernoulli, eb_plain, eb_turned, factor)
+    pair = solve_pair(turned, count, elements=elements, euler_bernoulli=scaled)
     result = pair.chosen
+    if scaled is not None and factor is not None:  # the same table, the frequencies scaled
+        found = _scaled_handbook(depth_handbook, factor)
+    else:
+        found = handbook.check(turned, count)
+    bounds = (
+        _bounds(turned, pair.euler_bernoulli)
+        if scaled is None or factor is None
+        else _scaled_bounds(turned, pair.euler_bernoulli, factor, depth_bounds)
+    )
     return Direction(
         "width",
         _direction_modes("width", result),
         result.rigid_body_modes,
         solution=result,
-        handbook=handbook.check(turned, count),
+        handbook=found,
         supports=supports,
         warnings=result.warnings,
         theories=pair,
-        **_bounds(turned, pair.euler_bernoulli),
+        **bounds,
     )
 
 
@@ -508,6 +558,47 @@ def _bounds(turned: Member, result: fe.FEResult) -> dict[str, object]:
     turned = replace(turned, theory="euler-bernoulli")  # Euler-Bernoulli results all three
     estimate = rayleigh.rayleigh_static(turned)
     lower = rayleigh.dunkerley(turned)
+    return {
+        "estimate": estimate,
+        "lower_bound": lower,
+        "bracket": rayleigh.bracket(lower, result, estimate),
+    }
+
+
+def _scaled_handbook(
+    depth: handbook.HandbookCheck | None, factor: float
+) -> handbook.HandbookCheck | None:
+    """The depth plane's handbook case with each frequency times sqrt(``factor``) (the
+    frequencies go as sqrt(E I / m); the case and its parameters are the same)."""
+    if depth is None:
+        return None
+    root = math.sqrt(factor)
+    return replace(depth, frequencies_hz=tuple(f * root for f in depth.frequencies_hz))
+
+
+def _scaled_bounds(
+    turned: Member,
+    result: fe.FEResult,
+    factor: float,
+    depth_bounds: tuple[rayleigh.RayleighEstimate | None, rayleigh.DunkerleyBound] | None,
+) -> dict[str, object]:
+    """The width plane's bounds from the depth plane's where its stiffness is ``factor``
+    times the depth plane's (:func:`_proportion`): the static deflection is the depth
+    plane's over ``factor`` and every eigenvalue of the flexibility scales by 1/``factor``,
+    so Rayleigh's quotient and Dunkerley's sum scale exactly; what the depth plane did not
+    compute (a Rayleigh estimate of another shape) is computed."""
+    estimate, lower = depth_bounds if depth_bounds is not None else (None, None)
+    if estimate is None or estimate.shape != "static":
+        estimate = rayleigh.rayleigh_static(replace(turned, theory="euler-bernoulli"))
+    else:
+        omega = estimate.omega * math.sqrt(factor)
+        estimate = replace(estimate, omega=omega, frequency_hz=omega / (2.0 * math.pi))
+    if lower is None:
+        lower = rayleigh.dunkerley(replace(turned, theory="euler-bernoulli"))
+    elif lower.frequency_hz is not None and lower.trace is not None:
+        lower = replace(
+            lower, frequency_hz=lower.frequency_hz * math.sqrt(factor), trace=lower.trace / factor
+        )
     return {
         "estimate": estimate,
         "lower_bound": lower,
@@ -693,6 +784,7 @@ def solve_directions(
     elements: int | None = None,
     depth_theories: TheoryPair | None = None,
     checks: bool = True,
+    depth_bounds: tuple[rayleigh.RayleighEstimate | None, rayleigh.DunkerleyBound] | None = None,
 ) -> Directions:
     """Solve every direction of a member.
 
@@ -712,6 +804,11 @@ def solve_directions(
     checks : bool
         False gives the modes alone (no handbook values, bounds or second theory for the
         width plane): what sizing and sweeps need at every trial value.
+    depth_bounds : (rayleigh.RayleighEstimate or None, rayleigh.DunkerleyBound), optional
+        The depth plane's Rayleigh estimate and Dunkerley bound (Euler-Bernoulli), where
+        already computed: a width plane that is the depth plane stiffened throughout by
+        one factor takes its bounds (and its Euler-Bernoulli modes) from them by that
+        factor instead of solving again.
 
     Returns
     -------
@@ -739,7 +836,9 @@ def solve_directions(
             warnings=depth.warnings,
             theories=depth_theories,
         ),
-        _width(member, modes, depth, depth_handbook, elements, depth_theories, checks),
+        _width(
+            member, modes, depth, depth_handbook, elements, depth_theories, checks, depth_bounds
+        ),
         _torsion(member, modes),
         _axial(member, modes),
     )

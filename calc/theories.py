@@ -140,7 +140,11 @@ def _span(low: float, high: float) -> str:
 
 
 def solve_pair(
-    member: Member, modes: int, chosen: fe.FEResult | None = None, elements: int | None = None
+    member: Member,
+    modes: int,
+    chosen: fe.FEResult | None = None,
+    elements: int | None = None,
+    euler_bernoulli: fe.FEResult | None = None,
 ) -> TheoryPair:
     """Solve a bending member by both theories (reusing ``chosen``, the member's own solve).
 
@@ -153,16 +157,24 @@ def solve_pair(
         The solve of ``member`` as it is, where already done.
     elements : int, optional
         Force the meshes (see :func:`calc.fe.solve`).
+    euler_bernoulli : fe.FEResult, optional
+        The Euler-Bernoulli solve of ``member`` where already known (the width plane's,
+        scaled from the depth plane's: :func:`calc.fe.scaled_result`).
 
     Returns
     -------
     TheoryPair
     """
+    if chosen is None and member.theory == EULER_BERNOULLI:
+        chosen = euler_bernoulli
     if chosen is None:
         chosen = fe.solve(member, modes, elements=elements)
     other_theory = EULER_BERNOULLI if member.theory == TIMOSHENKO else TIMOSHENKO
     try:
-        other = fe.solve(replace(member, theory=other_theory), modes, elements=elements)
+        if other_theory == EULER_BERNOULLI and euler_bernoulli is not None:
+            other = euler_bernoulli
+        else:
+            other = fe.solve(replace(member, theory=other_theory), modes, elements=elements)
     except InputError as exc:
         if other_theory != TIMOSHENKO:
             raise

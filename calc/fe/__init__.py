@@ -28,7 +28,7 @@ from __future__ import annotations
 from beamtone.calc.fe.adaptive import ACCURACY, shift_below, solve, solve_mesh
 from beamtone.calc.fe.assembly import System, assemble
 from beamtone.calc.fe.buckling import buckling_load, check_buckling
-from beamtone.calc.fe.checks import Solution, wavenumber
+from beamtone.calc.fe.checks import Solution, scaled_result, wavenumber
 from beamtone.calc.fe.count import ModeCount, count_below
 from beamtone.calc.fe.eigen import (
     DENSE_LIMIT,
@@ -82,6 +82,7 @@ __all__ = [
     "mesh_through",
     "method_for",
     "rigid_vectors",
+    "scaled_result",
     "shift_below",
     "solve",
     "solve_mesh",

@@ -8,7 +8,7 @@ section depth (where the bending-only model leaves shear deformation out).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -26,6 +26,7 @@ __all__ = [
     "check_mass",
     "check_system",
     "build_result",
+    "scaled_result",
 ]
 
 
@@ -189,6 +190,54 @@ def build_result(
         roundoff_dominated=roundoff_dominated,
         warnings=tuple(warnings),
         mode_count=mode_count,
+        assumptions=model_assumptions(member),
+    )
+
+
+def scaled_result(
+    result: FEResult, source: Member, member: Member, factor: float
+) -> FEResult | None:
+    """An Euler-Bernoulli solve of ``source`` as that of ``member``, whose stiffness matrix is
+    ``factor`` times ``source``'s with the same mass matrix (or None where it cannot be).
+
+    K' = c K with M unchanged has the eigenvalues c lambda and the same M-normalized vectors;
+    the mesh the automatic solve chooses depends on omega^2 m / EI alone, so it is the same
+    mesh, and every relative quantity (estimated errors, orthogonality, mass fractions) is
+    unchanged.  The section-depth warning is made again for ``member``'s sections.
+
+    Parameters
+    ----------
+    result : FEResult
+        The Euler-Bernoulli solve of ``source``.
+    source, member : Member
+        Euler-Bernoulli members with the same supports, attachments and mass per length, no
+        springs and no axial force, each segment's bending stiffness ``factor`` times.
+    factor : float
+        The ratio of the stiffnesses [-].
+
+    Returns
+    -------
+    FEResult or None
+        None where the solve's independent mode count disagreed (its warning names a
+        frequency of its own): solve ``member`` instead.
+    """
+    if result.mode_count is not None and not result.mode_count.ok:
+        return None
+    root = math.sqrt(factor)
+    modes = [
+        replace(m, omega=m.omega * root, frequency_hz=m.omega * root / (2.0 * math.pi))
+        for m in result.modes
+    ]
+    own = _shear_warnings(source, list(result.modes))
+    warnings = [w for w in result.warnings if w not in own] + _shear_warnings(member, modes)
+    count = result.mode_count
+    if count is not None:
+        count = replace(count, below_hz=count.below_hz * root)
+    return replace(
+        result,
+        modes=tuple(modes),
+        warnings=tuple(warnings),
+        mode_count=count,
         assumptions=model_assumptions(member),
     )
 

@@ -284,3 +284,53 @@ def test_rough_torsion_constants_are_said():
     assert not any("Bredt" in n for n in notes)
     solid = build_section("box", {"width": 0.05, "depth": 0.05, "wall": 0.025})
     assert solid.torsion_constant < rectangle_j_series(0.05, 0.05)
+
+
+@pytest.mark.parametrize(
+    "extra",
+    [
+        "",  # uniform free-free: the handbook case and the static Rayleigh shape
+        '[[mass]]\nat = "0.3 m"\nmass = "2 kg"\nrotary_inertia = "0.001 kg*m^2"\n',
+    ],
+)
+def test_width_plane_scaled_from_the_depth_plane_is_its_own_solve(extra):
+    # A width plane that is the depth plane stiffened by one factor (same supports, masses,
+    # no springs, no axial force) takes its Euler-Bernoulli modes and bounds from the depth
+    # plane's, scaled: they must be what solving it again gives (to round-off), with its own
+    # section-depth warnings.
+    from dataclasses import replace
+
+    from beamtone.calc import handbook, rayleigh
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.theories import solve_pair
+    from beamtone.calc.worksheet import loads
+
+    sheet = loads(
+        'format = 1\ntitle = "flat bar"\n[member]\nlength = "0.6 m"\nmaterial = "steel"\n'
+        'section = { shape = "rectangle", width = "50 mm", depth = "12 mm" }\n'
+        '[supports]\nleft = "free"\nright = "free"\n' + extra
+    )
+    width = analyse(sheet).directions["width"]
+    turned = width_member(sheet.member)
+    fresh = solve_pair(turned, sheet.modes)
+    eb = replace(turned, theory="euler-bernoulli")
+    assert width.theories is not None
+    scaled = width.theories.euler_bernoulli
+    for a, b in zip(scaled.modes, fresh.euler_bernoulli.modes, strict=True):
+        assert a.frequency_hz == pytest.approx(b.frequency_hz, rel=1e-11)
+        assert a.estimated_error == pytest.approx(b.estimated_error, rel=1e-3, abs=1e-15)
+        assert a.effective_mass == pytest.approx(b.effective_mass, rel=1e-9, abs=1e-12)
+    assert scaled.elements == fresh.euler_bernoulli.elements
+    assert scaled.warnings == fresh.euler_bernoulli.warnings
+    assert scaled.warnings  # the width plane's own section-depth warning (50 mm deep)
+    assert width.estimate.frequency_hz == pytest.approx(
+        rayleigh.rayleigh_static(eb).frequency_hz, rel=1e-9
+    )
+    lower = rayleigh.dunkerley(eb)
+    assert (width.lower_bound.frequency_hz is None) == (lower.frequency_hz is None)
+    if lower.frequency_hz is not None:
+        assert width.lower_bound.frequency_hz == pytest.approx(lower.frequency_hz, rel=1e-9)
+    expected = handbook.check(turned, sheet.modes)
+    assert (width.handbook is None) == (expected is None)
+    if expected is not None:
+        assert width.handbook.frequencies_hz == pytest.approx(expected.frequencies_hz, rel=1e-13)
