@@ -420,38 +420,40 @@ def bench_whole_analysis(sizes: list[int]) -> list[tuple[str, float, float | Non
 
 
 def bench_sizing(repeat: int, sweep_points: int) -> list[tuple[str, float, float | None]]:
+    """Sizing and sweeps, each as the depth plane alone and as the default (the governing
+    modes: every direction solved at each value), with the same goals."""
+    from dataclasses import replace
+
     from beamtone.calc import sizing
     from beamtone.calc.worksheet import load
 
     spindle = load(ROOT / "worksheets" / "stepped-spindle.toml")
     bar = load(ROOT / "worksheets" / "free-free-bar.toml")
-    rows = [
-        ("sizing solve, four attachments (spindle nose diameter for 340 Hz)",
-         median_time(lambda: sizing.size_for_target(
-             spindle, "member.segment[2].section.diameter", 0.02, 0.08, 340.0), repeat), 0.3),
-        (f"{sweep_points}-point sweep, uniform bar length (scaled by groups)",
-         median_time(lambda: sizing.sweep(bar, "member.length", 0.3, 1.0, sweep_points), 1), 1.0),
-    ]  # fmt: skip
+    # groups scale Euler-Bernoulli bending exactly (Timoshenko's depends on slenderness too)
+    eb_bar = replace(bar, member=replace(bar.member, theory="euler-bernoulli"))
     mast = load(ROOT / "worksheets" / "sensor-mast.toml")
     side = 100 if sweep_points >= 2000 else 20
-    rows.append(
-        (
-            f"{side}x{side} two-way sweep, mast length x tube diameter",
-            median_time(
-                lambda: sizing.sweep2(
-                    mast,
-                    ("member.length", 0.8, 1.6, side),
-                    ("member.section.outside_diameter", 0.03, 0.07, side),
-                    3,
-                ),
-                1,
-            ),
-            5.0,
-        )
-    )
-    rows.append((f"{sweep_points}-point sweep with attachments (spindle wheel-hub position)",
-                 median_time(lambda: sizing.sweep(spindle, "mass[1].at", 0.41, 0.5, sweep_points),
-                             1), 1.0))  # fmt: skip
+    rows = []
+    for direction, words in (("depth", "depth plane"), ("governing", "every direction")):
+        rows += [
+            (f"sizing solve, four attachments (spindle nose diameter for 340 Hz), {words}",
+             median_time(lambda d=direction: sizing.size_for_target(
+                 spindle, "member.segment[2].section.diameter", 0.02, 0.08, 340.0,
+                 direction=d), repeat), 0.3),
+            (f"{sweep_points}-point sweep, uniform bar length, {words}"
+             + (" (Euler-Bernoulli, scaled by groups)" if direction == "depth" else ""),
+             median_time(lambda d=direction: sizing.sweep(
+                 eb_bar if d == "depth" else bar, "member.length", 0.3, 1.0, sweep_points,
+                 direction=d), 1), 1.0),
+            (f"{side}x{side} two-way sweep, mast length x tube diameter, {words}",
+             median_time(lambda d=direction: sizing.sweep2(
+                 mast, ("member.length", 0.8, 1.6, side),
+                 ("member.section.outside_diameter", 0.03, 0.07, side), 3, direction=d), 1),
+             5.0),
+            (f"{sweep_points}-point sweep with attachments (spindle wheel-hub position), {words}",
+             median_time(lambda d=direction: sizing.sweep(
+                 spindle, "mass[1].at", 0.41, 0.5, sweep_points, direction=d), 1), 1.0),
+        ]  # fmt: skip
     return rows
 
 

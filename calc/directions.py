@@ -50,6 +50,10 @@ __all__ = [
     "axial_problem",
     "solve_directions",
     "SIZING_DIRECTIONS",
+    "DEFAULT_SIZING_DIRECTION",
+    "frequency_columns",
+    "lowest",
+    "column_mode",
     "frequencies",
 ]
 
@@ -738,6 +742,73 @@ SIZING_DIRECTIONS = ("governing", *DIRECTIONS)
 """What sizing and sweeps may follow: one direction's modes, or ``"governing"``: the lowest
 modes of every direction together, lowest first."""
 
+DEFAULT_SIZING_DIRECTION = "governing"
+"""What sizing and sweeps follow unless told otherwise: the lowest modes of every direction
+(until every direction was solved it was the depth plane; a sizing that follows one plane
+can miss the mode that governs)."""
+
+
+def frequency_columns(
+    member: Member, modes: int, direction: str, key: str = "--direction"
+) -> np.ndarray:
+    """What sizing and sweeps follow, one column per mode of one direction [Hz].
+
+    For one direction its ``modes`` lowest modes; for ``"governing"`` those of every
+    direction side by side (``modes`` columns each, in the order of ``DIRECTIONS``; NaN
+    where a direction is not computed or has fewer modes).  Each column is smooth in the
+    member's quantities where the lowest of them is not (modes of different directions
+    cross), so sweeps interpolate the columns and take the lowest afterwards
+    (:func:`lowest`).
+
+    Parameters
+    ----------
+    member : Member
+    modes : int
+        Modes in each direction.
+    direction : str
+        One of ``SIZING_DIRECTIONS``.
+    key : str
+        What the direction is called in errors.
+
+    Returns
+    -------
+    ndarray, shape (modes,) or (4 * modes,) for ``"governing"``
+
+    Raises
+    ------
+    InputError
+        For an unknown direction, or one that is not computed for this member (the reason
+        says why), or fewer modes than asked.
+    """
+    if direction not in SIZING_DIRECTIONS:
+        raise InputError(key, direction, "one of " + ", ".join(SIZING_DIRECTIONS))
+    if direction == "depth":
+        return fe.solve(member, modes).frequencies_hz
+    dirs = solve_directions(member, modes, checks=False)
+    if direction == "governing":
+        out = np.full(len(DIRECTIONS) * modes, np.nan)
+        for i, d in enumerate(dirs.directions):
+            hz = [m.frequency_hz for m in d.modes[:modes]]
+            out[i * modes : i * modes + len(hz)] = hz
+        return out
+    chosen = dirs[direction]
+    if not chosen.computed:
+        raise InputError(key, direction, "a direction computed for this member", chosen.reason)
+    return np.array([m.frequency_hz for m in chosen.modes])
+
+
+def lowest(columns: np.ndarray, modes: int) -> np.ndarray:
+    """The ``modes`` lowest frequencies of each row of governing columns, lowest first."""
+    return np.sort(columns, axis=-1)[..., :modes]
+
+
+def column_mode(columns: np.ndarray, modes: int, mode: int) -> str:
+    """Which direction's mode is mode ``mode`` of all directions in governing columns
+    (``"width plane mode 1"``)."""
+    order = np.argsort(columns, kind="stable")
+    index = int(order[mode - 1])
+    return f"{_LABELS[DIRECTIONS[index // modes]]} mode {index % modes + 1}"
+
 
 def frequencies(member: Member, modes: int, direction: str, key: str = "--direction") -> np.ndarray:
     """The natural frequencies [Hz] sizing and sweeps follow, lowest first.
@@ -762,17 +833,8 @@ def frequencies(member: Member, modes: int, direction: str, key: str = "--direct
         For an unknown direction, or one that is not computed for this member (the reason
         says why), or fewer modes than asked.
     """
-    if direction not in SIZING_DIRECTIONS:
-        raise InputError(key, direction, "one of " + ", ".join(SIZING_DIRECTIONS))
-    if direction == "depth":
-        return fe.solve(member, modes).frequencies_hz
-    dirs = solve_directions(member, modes, checks=False)
-    if direction == "governing":
-        return np.array([m.frequency_hz for m in dirs.all_modes[:modes]])
-    chosen = dirs[direction]
-    if not chosen.computed:
-        raise InputError(key, direction, "a direction computed for this member", chosen.reason)
-    return np.array([m.frequency_hz for m in chosen.modes])
+    columns = frequency_columns(member, modes, direction, key)
+    return lowest(columns, modes) if direction == "governing" else columns
 
 
 def solve_directions(

@@ -26,7 +26,15 @@ from beamtone.calc.design_values import (
     read_sizes,
     read_step,
 )
-from beamtone.calc.directions import LABELS, SIZING_DIRECTIONS, frequencies, solve_directions
+from beamtone.calc.directions import (
+    DEFAULT_SIZING_DIRECTION,
+    LABELS,
+    SIZING_DIRECTIONS,
+    column_mode,
+    frequency_columns,
+    lowest,
+    solve_directions,
+)
 from beamtone.calc.errors import InputError
 from beamtone.calc.excitation import (
     DIRECTIONS,
@@ -456,9 +464,15 @@ class SweepResult:
 
 
 class _Evaluator:
-    """Solves the member at values of the variable, remembering what it solved."""
+    """Solves the member at values of the variable, remembering what it solved.
 
-    def __init__(self, var: Variation, modes: int, direction: str = "depth") -> None:
+    Calling it gives the frequencies followed (for ``"governing"`` the lowest ``modes`` of
+    every direction); ``columns`` gives each direction's modes side by side, each smooth in
+    the variable, for interpolation (:func:`calc.directions.frequency_columns`)."""
+
+    def __init__(
+        self, var: Variation, modes: int, direction: str = DEFAULT_SIZING_DIRECTION
+    ) -> None:
         self.var = var
         self.modes = modes
         self.direction = direction
@@ -467,13 +481,28 @@ class _Evaluator:
         self._reference: tuple[similitude.MemberGroups, np.ndarray] | None = None
 
     def __call__(self, value: float) -> tuple[np.ndarray, float]:
+        cols, mass = self.columns(value)
+        return self.reduce(cols), mass
+
+    def reduce(self, columns: np.ndarray) -> np.ndarray:
+        """The frequencies followed, from columns (one row or a table of rows)."""
+        return lowest(columns, self.modes) if self.direction == "governing" else columns
+
+    def named(self, value: float, mode: int) -> str:
+        """Which direction's mode is followed mode ``mode`` at ``value`` ("" unless
+        ``"governing"``)."""
+        if self.direction != "governing":
+            return ""
+        return column_mode(self.columns(value)[0], self.modes, mode)
+
+    def columns(self, value: float) -> tuple[np.ndarray, float]:
         hit = self.cache.get(value)
         if hit is not None:
             return hit
         member = self.var.member(value)
         freqs = self._scaled(member) if self.direction == "depth" else None
         if freqs is None:
-            freqs = frequencies(member, self.modes, self.direction)
+            freqs = frequency_columns(member, self.modes, self.direction)
             self.solved += 1
             if self._reference is None:
                 self._reference = (similitude.member_groups(member), freqs)
@@ -482,8 +511,12 @@ class _Evaluator:
         return out
 
     def _scaled(self, member: Member) -> np.ndarray | None:
-        """Frequencies by exact similitude with the first solved point, where groups match."""
-        if self._reference is None:
+        """Frequencies by exact similitude with the first solved point, where groups match.
+
+        The member's groups are those of Euler-Bernoulli bending: under Timoshenko theory the
+        frequencies depend on the slenderness too (a free-free titanium bar scaled from 1 m to
+        0.3 m came out 0.5 % high), so nothing is scaled there."""
+        if self._reference is None or member.theory == "timoshenko":
             return None
         groups, freqs = self._reference
         mine = similitude.member_groups(member)
@@ -550,7 +583,7 @@ def size_for_target(
     target_hz: float,
     mode: int = 1,
     *,
-    direction: str = "depth",
+    direction: str = DEFAULT_SIZING_DIRECTION,
 ) -> SizingResult:
     """Every value of ``key`` in [low, high] at which mode ``mode`` has frequency ``target_hz``.
 
@@ -566,9 +599,10 @@ def size_for_target(
     mode : int
         Which flexible mode (1 = fundamental).
     direction : str
-        Whose mode ``mode`` is: ``"depth"`` (default, the plane as drawn, as before every
-        direction was solved), ``"width"``, ``"torsion"``, ``"axial"``, or ``"governing"``
-        (the lowest modes of every direction together).
+        Whose mode ``mode`` is: ``"governing"`` (default: mode ``mode`` of all directions
+        together, lowest first; the message names the direction's mode it is), or one
+        direction: ``"depth"`` (the plane as drawn, the default before every direction was
+        solved), ``"width"``, ``"torsion"``, ``"axial"``.
 
     Returns
     -------
@@ -602,7 +636,7 @@ def size_for_target(
             f"{'s' if len(solutions) > 1 else ''} of {key}; least member mass at {s.value} "
             f"({s.member_mass_kg:.4g} kg); {where} values give a higher frequency"
         )
-        message += _target_note(direction)
+        message += _target_note(direction, ev.named(s.value_si, mode))
         return SizingResult(key, var.unit, target_hz, mode, tuple(solutions), best, message)
     # no crossing: the best value in range
     acceptable = values >= 0.0
@@ -622,11 +656,14 @@ def size_for_target(
     v = float(grid[i])
     freqs, mass = ev(v)
     best_in_range = Solution(var.text(v), v, float(freqs[mode - 1]), mass, "none")
-    message += _target_note(direction)
+    message += _target_note(direction, ev.named(v, mode))
     return SizingResult(key, var.unit, target_hz, mode, (best_in_range,), None, message)
 
 
-def _target_note(direction: str) -> str:
+def _target_note(direction: str, which: str = "") -> str:
+    """What the sizing followed: the governing mode's direction there, or the one plane."""
+    if direction == "governing":
+        return f"; there it is the {which}" if which else ""
     if direction != "depth":
         return ""
     return "; depth-plane bending only (--direction governing follows every direction)"
@@ -670,7 +707,7 @@ def size_for_excitation(
     excitations: tuple[Excitation, ...] | None = None,
     step: float | None = None,
     sizes: tuple[float, ...] | None = None,
-    direction: str = "depth",
+    direction: str = DEFAULT_SIZING_DIRECTION,
 ) -> SizingResult:
     """Values of ``key`` that keep every computed mode outside every excitation band, and a
     practical (rounded) value that keeps its margin.
@@ -697,8 +734,9 @@ def size_for_excitation(
     SizingResult
         ``solutions`` are the edges of the acceptable intervals found in the range (where a
         mode meets a band edge), plus the range ends where acceptable; then the rounded
-        value recommended, solved again (never one on a band edge).  Only the depth-plane
-        bending modes are checked here, and the message says so.
+        value recommended, solved again (never one on a band edge).  Every computed mode of
+        every direction is checked under ``direction="governing"`` (the default); otherwise
+        that direction's alone, and the message and the verdict say so.
     """
     if excitations is None:
         if excitation_hz is None:
@@ -721,13 +759,15 @@ def size_for_excitation(
         for line in lines(e)
     )
     edges = sorted({e for b in bands for e in (b.low_hz, b.high_hz) if e > 0.0})
-    grid, table = _scan(ev, low, high)
+    grid, _ = _scan(ev, low, high)
+    # every computed mode of what is followed (each direction's, under "governing")
+    table = np.array([ev.columns(float(v))[0] for v in grid])
     candidates: set[float] = set()
-    for m in range(count):
+    for m in range(table.shape[1]):
         for e in edges:
 
             def g(v: float, m: int = m, e: float = e) -> float:
-                return float(ev(v)[0][m] - e)
+                return float(ev.columns(v)[0][m] - e)
 
             candidates.update(_roots(g, grid, table[:, m] - e))
     candidates.update((low, high))
@@ -735,12 +775,12 @@ def size_for_excitation(
     solutions = []
     for v in points:
         freqs, mass = ev(v)
-        if _clear(freqs, bands, tolerance=1e-9):
+        if _clear(ev.columns(v)[0], bands, tolerance=1e-9):
             side = "range end" if v in (low, high) else "band edge"
             solutions.append(Solution(var.text(v), v, float(freqs[0]), mass, side))
     spans_si: list[tuple[float, float]] = []
     for a, b in zip(points[:-1], points[1:], strict=True):
-        if _clear(ev(0.5 * (a + b))[0], bands, tolerance=0.0):
+        if _clear(ev.columns(0.5 * (a + b))[0], bands, tolerance=0.0):
             if spans_si and spans_si[-1][1] == a:
                 spans_si[-1] = (spans_si[-1][0], b)
             else:
@@ -823,7 +863,7 @@ def sweep(
     points: int,
     modes: int | None = None,
     *,
-    direction: str = "depth",
+    direction: str = DEFAULT_SIZING_DIRECTION,
 ) -> SweepResult:
     """Tabulate the first modes and the member mass against one quantity.
 
@@ -832,8 +872,10 @@ def sweep(
     or material, needs one solve in all).  Sweeps of more than 64 points interpolate between
     solves at Chebyshev points, each interval verified by direct solves to a tenth of the
     finite-element accuracy and halved where it misses.  ``direction`` chooses whose modes are
-    tabulated: ``"depth"`` (default), another direction, or ``"governing"`` (the lowest modes
-    of every direction together); scaling by similitude applies to the depth plane alone.
+    tabulated: ``"governing"`` (default: the lowest modes of every direction together; each
+    direction's modes are interpolated and the lowest taken afterwards, so that modes of
+    different directions crossing do not defeat the interpolation), or one direction;
+    scaling by similitude applies to the depth plane alone.
 
     Returns
     -------
@@ -846,14 +888,14 @@ def sweep(
     count = modes or sheet.modes
     ev = _Evaluator(var, count, direction)
     grid = np.linspace(low, high, points)
-    freqs = np.empty((points, count))
+    freqs = np.empty((points, len(ev.columns(float(grid[0]))[0])))
     mass = np.empty(points)
     if points <= _DIRECT_SWEEP:
         for i, v in enumerate(grid):
-            freqs[i], mass[i] = ev(float(v))
+            freqs[i], mass[i] = ev.columns(float(v))
     else:
         _interpolate(ev, grid, 0, points - 1, freqs, mass, 0)
-    return SweepResult(key, var.unit, grid, freqs, mass, ev.solved)
+    return SweepResult(key, var.unit, grid, ev.reduce(freqs), mass, ev.solved)
 
 
 def _interpolate(
@@ -877,11 +919,11 @@ def _interpolate(
     a, b = float(grid[first]), float(grid[last])
     if depth >= _MAX_DEPTH or count <= 2 * _NODES:
         for i in range(first, last + 1):
-            freqs[i], mass[i] = ev(float(grid[i]))
+            freqs[i], mass[i] = ev.columns(float(grid[i]))
         return
     k = np.arange(_NODES)
     nodes = 0.5 * (a + b) + 0.5 * (b - a) * np.cos(np.pi * k / (_NODES - 1))
-    values = [ev(float(v)) for v in nodes]
+    values = [ev.columns(float(v)) for v in nodes]
     f_nodes = np.array([v[0] for v in values])
     m_nodes = np.array([v[1] for v in values])
     f_fit = BarycentricInterpolator(nodes, f_nodes)
@@ -889,8 +931,8 @@ def _interpolate(
     ok = True
     for t in (0.31, 0.77):
         v = a + t * (b - a)
-        f_true, m_true = ev(v)
-        f_err = np.max(np.abs(f_fit(v) - f_true) / np.abs(f_true))
+        f_true, m_true = ev.columns(v)
+        f_err = np.nanmax(np.abs(f_fit(v) - f_true) / np.abs(f_true))
         m_err = abs(float(m_fit(v)) - m_true) / max(abs(m_true), 1e-300)
         if f_err > _SWEEP_TOLERANCE or m_err > _MASS_TOLERANCE:
             ok = False
@@ -935,7 +977,7 @@ def sweep2(
     second: tuple[str, float, float, int],
     modes: int | None = None,
     *,
-    direction: str = "depth",
+    direction: str = DEFAULT_SIZING_DIRECTION,
 ) -> Sweep2Result:
     """Tabulate the first modes and the member mass over two quantities at once.
 
@@ -962,19 +1004,22 @@ def sweep2(
     low2, high2 = _check_range(var2, low2, high2)
     count = modes or sheet.modes
     g1, g2 = np.linspace(low1, high1, n1), np.linspace(low2, high2, n2)
-    freqs = np.empty((n1, n2, count))
     mass = np.empty((n1, n2))
     cache: dict[tuple[float, float], tuple[np.ndarray, float]] = {}
 
     def ev(a: float, b: float) -> tuple[np.ndarray, float]:
+        """Each direction's modes side by side under "governing" (see sweep)."""
         hit = cache.get((a, b))
         if hit is None:
             member = var1.member(a, (var2, b))
-            hit = (frequencies(member, count, direction), member.member_mass)
+            hit = (frequency_columns(member, count, direction), member.member_mass)
             cache[(a, b)] = hit
         return hit
 
+    freqs = np.empty((n1, n2, len(ev(float(g1[0]), float(g2[0]))[0])))
     _patch(ev, g1, g2, (0, n1 - 1), (0, n2 - 1), freqs, mass, 0)
+    if direction == "governing":
+        freqs = lowest(freqs, count)
     return Sweep2Result((key1, key2), (var1.unit, var2.unit), (g1, g2), freqs, mass, len(cache))
 
 
@@ -1020,7 +1065,7 @@ def _patch(
         u, v = a1 + t1 * (b1 - a1), a2 + t2 * (b2 - a2)
         f_true, m_true = ev(u, v)
         f_fit, m_fit = at(np.array([u]), np.array([v]))
-        if np.max(np.abs(f_fit[0, 0] - f_true) / np.abs(f_true)) > _SWEEP_TOLERANCE or (
+        if np.nanmax(np.abs(f_fit[0, 0] - f_true) / np.abs(f_true)) > _SWEEP_TOLERANCE or (
             abs(m_fit[0, 0] - m_true) > _MASS_TOLERANCE * abs(m_true)
         ):
             ok = False
@@ -1121,7 +1166,7 @@ class SizingRequest:
     excitations: tuple[Excitation, ...] | None = None
     step: float | None = None
     sizes: tuple[float, ...] | None = None
-    direction: str = "depth"
+    direction: str = DEFAULT_SIZING_DIRECTION
 
 
 def read_value(var: Variation, text: str, name: str) -> float:
@@ -1145,7 +1190,7 @@ def read_request(
     names: dict[str, str] | None = None,
     step: str | None = None,
     sizes: str | None = None,
-    direction: str = "depth",
+    direction: str = DEFAULT_SIZING_DIRECTION,
 ) -> SizingRequest:
     """Check a sizing request as the user wrote it (the command line's options, the app's
     fields) and return it in SI.
@@ -1170,7 +1215,9 @@ def read_request(
         For an excitation: a rounding step (``"1 mm"``) or available sizes (``"150, 160 mm"``
         or ``"@FILE"``), at most one (see :mod:`calc.design_values`).
     direction : str
-        Whose modes to follow: ``"depth"`` (default), another direction, or ``"governing"``.
+        Whose modes to follow: ``"governing"`` (default, the lowest of every direction
+        together), or one direction (``"depth"``, the default before every direction was
+        solved).
 
     Raises
     ------

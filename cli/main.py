@@ -154,7 +154,7 @@ def build_parser() -> argparse.ArgumentParser:
     size.add_argument("--harmonics", default="1", metavar="1,2", help="excitation orders")
     size.add_argument("--margin", default="20%", metavar="PCT", help="band half-width (20%%)")
     size.add_argument("--mode", type=_positive_int(50, "mode"), default=1, help="default 1")
-    size.add_argument("--direction", default="depth", help=_DIRECTION_HELP)
+    size.add_argument("--direction", help=_DIRECTION_HELP)
     size.add_argument("--step", metavar="STEP", help='round to this step, e.g. "1 mm"')
     size.add_argument(
         "--sizes", metavar="LIST", help='available sizes, e.g. "150, 160, 180 mm", or @FILE'
@@ -174,7 +174,7 @@ def build_parser() -> argparse.ArgumentParser:
     sweep.add_argument("--between2", nargs=2, metavar=("LOW", "HIGH"), help="its range")
     sweep.add_argument("--points2", type=_positive_int(2_000, "points"), default=21)
     sweep.add_argument("--modes", type=_positive_int(50, "modes"), help="default: worksheet's")
-    sweep.add_argument("--direction", default="depth", help=_DIRECTION_HELP)
+    sweep.add_argument("--direction", help=_DIRECTION_HELP)
     out = sweep.add_mutually_exclusive_group()
     out.add_argument("--json", action="store_true", help="print one JSON object")
     out.add_argument("--csv", action="store_true", help="print comma-separated values")
@@ -186,8 +186,8 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 _DIRECTION_HELP = (
-    "whose modes: depth (default, the plane as drawn), width, torsion, axial, or governing "
-    "(the lowest of every direction together)"
+    "whose modes: governing (default: the lowest of every direction together), or one "
+    "direction: depth (the plane as drawn), width, torsion, axial"
 )
 
 

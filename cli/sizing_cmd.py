@@ -27,6 +27,25 @@ def _range(args: argparse.Namespace, var: Any) -> tuple[float, float]:
     return read_value(var, low_text, "--between"), read_value(var, high_text, "--between")
 
 
+def _direction(args: argparse.Namespace) -> str:
+    """The direction asked for, or calc's default (the governing mode)."""
+    from beamtone.calc.directions import DEFAULT_SIZING_DIRECTION
+
+    return args.direction if args.direction is not None else DEFAULT_SIZING_DIRECTION
+
+
+def _followed(direction: str) -> str:
+    """What a sweep's table follows, in words."""
+    from beamtone.calc.directions import LABELS
+
+    if direction == "governing":
+        return (
+            "modes: the lowest of all directions together (--direction governing, the "
+            "default; depth, width, torsion or axial follows one)"
+        )
+    return f"modes: {LABELS[direction]} only (--direction {direction})"
+
+
 def size(args: argparse.Namespace) -> int:
     """Run ``beamtone size``."""
     from beamtone.calc import sizing
@@ -39,7 +58,7 @@ def size(args: argparse.Namespace) -> int:
     request = sizing.read_request(
         sheet, args.vary, *args.between, target=args.target, excitation=args.excitation,
         mode=args.mode, harmonics=args.harmonics, margin=args.margin, step=args.step,
-        sizes=args.sizes, direction=args.direction,
+        sizes=args.sizes, direction=_direction(args),
     )  # fmt: skip
     var = request.variation
     result = sizing.run_request(request)
@@ -149,14 +168,14 @@ def sweep(args: argparse.Namespace) -> int:
         return _sweep2(args, sheet, var, low, high)
     if args.between2 is not None:
         raise InputError("--between2", " ".join(args.between2), "--vary2 KEY as well")
-    result = sizing.sweep(
-        sheet, args.vary, low, high, args.points, args.modes, direction=args.direction
-    )
+    direction = _direction(args)
+    result = sizing.sweep(sheet, args.vary, low, high, args.points, args.modes,
+                          direction=direction)  # fmt: skip
     if args.json:
         write_json(
             {
                 "variable": result.variable,
-                "direction": args.direction,
+                "direction": direction,
                 "unit": result.unit,
                 "points": [
                     {
@@ -191,8 +210,10 @@ def sweep(args: argparse.Namespace) -> int:
     out = ["   ".join(h.rjust(w) for h, w in zip(header, widths, strict=True))]
     out += ["   ".join(c.rjust(w) for c, w in zip(r, widths, strict=True)) for r in rows]
     out.append(
-        f"({result.solved} finite-element solves; other points scaled exactly by the groups)"
+        f"({result.solved} finite-element solves; other points scaled exactly by the groups "
+        "or interpolated between solves, checked against further solves)"
     )
+    out.append(_followed(direction))
     sys.stdout.write("\n".join(out) + "\n")
     return 0
 
@@ -206,7 +227,7 @@ def _sweep2(args: argparse.Namespace, sheet: Any, var: Any, low: float, high: fl
     low2, high2 = (sizing.read_value(var2, t, "--between2") for t in args.between2)
     result = sizing.sweep2(
         sheet, (args.vary, low, high, args.points), (args.vary2, low2, high2, args.points2),
-        args.modes, direction=args.direction,
+        args.modes, direction=_direction(args),
     )  # fmt: skip
     g1, g2 = result.values_si
     modes = result.frequencies_hz.shape[2]
@@ -214,6 +235,7 @@ def _sweep2(args: argparse.Namespace, sheet: Any, var: Any, low: float, high: fl
         write_json(
             {
                 "variables": list(result.variables),
+                "direction": _direction(args),
                 "units": list(result.units),
                 "points": [
                     {

@@ -42,7 +42,9 @@ def cantilever_f(length: float, depth: float) -> float:
 def test_depth_for_target_matches_closed_form() -> None:
     sheet = loads(CANTILEVER)
     target = 40.0
-    result = sizing.size_for_target(sheet, "member.section.depth", 0.002, 0.05, target)
+    result = sizing.size_for_target(
+        sheet, "member.section.depth", 0.002, 0.05, target, direction="depth"
+    )
     assert len(result.solutions) == 1 and result.recommended == 0
     s = result.solutions[0]
     exact = target * 2 * math.pi * 0.8**2 / LAMBDA1**2 * math.sqrt(12 * RHO / E)
@@ -53,7 +55,7 @@ def test_depth_for_target_matches_closed_form() -> None:
 
 def test_length_for_target_matches_closed_form() -> None:
     sheet = loads(CANTILEVER)
-    result = sizing.size_for_target(sheet, "member.length", 0.2, 2.0, 25.0)
+    result = sizing.size_for_target(sheet, "member.length", 0.2, 2.0, 25.0, direction="depth")
     (s,) = result.solutions
     assert cantilever_f(s.value_si, 0.01) == pytest.approx(25.0, rel=1e-6)
     assert s.above == "below"
@@ -64,7 +66,7 @@ def test_tip_mass_a_cantilever_can_carry() -> None:
     text = CANTILEVER + '\n[[mass]]\nat = "800 mm"\nmass = "1 kg"\n'
     sheet = loads(text)
     target = 10.0
-    result = sizing.size_for_target(sheet, "mass[0].mass", 0.01, 20.0, target)
+    result = sizing.size_for_target(sheet, "mass[0].mass", 0.01, 20.0, target, direction="depth")
     (s,) = result.solutions
     seg = sheet.member.segments[0]
     mL = seg.mass_per_length * 0.8
@@ -76,7 +78,7 @@ def test_tip_mass_a_cantilever_can_carry() -> None:
 def test_every_solution_re_solved_hits_its_target() -> None:
     sheet = load(Path(__file__).resolve().parents[2] / "worksheets" / "stepped-spindle.toml")
     key = "member.segment[2].section.diameter"
-    result = sizing.size_for_target(sheet, key, 0.02, 0.08, 340.0)
+    result = sizing.size_for_target(sheet, key, 0.02, 0.08, 340.0, direction="depth")
     assert result.solutions
     var = sizing.variation(sheet, key)
     for s in result.solutions:
@@ -89,7 +91,9 @@ def test_non_monotonic_variable_gives_both_crossings() -> None:
     sheet = load(Path(__file__).resolve().parents[2] / "worksheets" / "pipe-on-hangers.toml")
     # the peak sits just above 20 Hz under Euler-Bernoulli (under Timoshenko just below it)
     sheet = replace(sheet, member=replace(sheet.member, theory="euler-bernoulli"))
-    result = sizing.size_for_target(sheet, "supports.inner[0].at", 1.0, 4.5, 20.0)
+    result = sizing.size_for_target(
+        sheet, "supports.inner[0].at", 1.0, 4.5, 20.0, direction="depth"
+    )
     assert len(result.solutions) == 2
     low, high = result.solutions
     assert low.above == "above" and high.above == "below"
@@ -102,7 +106,9 @@ def test_non_monotonic_variable_gives_both_crossings() -> None:
 
 def test_no_crossing_says_so() -> None:
     sheet = loads(CANTILEVER)
-    result = sizing.size_for_target(sheet, "member.section.depth", 0.002, 0.004, 500.0)
+    result = sizing.size_for_target(
+        sheet, "member.section.depth", 0.002, 0.004, 500.0, direction="depth"
+    )
     assert result.recommended is None
     assert "below" in result.message
     assert len(result.solutions) == 1 and result.solutions[0].value_si == pytest.approx(0.004)
@@ -124,7 +130,7 @@ def test_margins_flag_exactly_the_modes_inside() -> None:
 def test_excitation_sizing_keeps_every_mode_clear() -> None:
     sheet = loads(CANTILEVER)
     result = sizing.size_for_excitation(
-        sheet, "member.length", 0.3, 1.5, 1480 / 60, (1, 2), 0.2, modes=3
+        sheet, "member.length", 0.3, 1.5, 1480 / 60, (1, 2), 0.2, modes=3, direction="depth"
     )
     assert result.recommended is not None and result.margins is not None
     assert result.margins.clear
@@ -135,9 +141,22 @@ def test_excitation_sizing_keeps_every_mode_clear() -> None:
         assert sum(map(sum, check.inside)) <= 1  # on a band edge at most
 
 
+def test_timoshenko_sweep_is_not_scaled_by_bending_groups() -> None:
+    """The groups scale Euler-Bernoulli bending exactly; Timoshenko's frequencies depend on
+    the slenderness too, so a Timoshenko bar varied in length is solved, not scaled (scaled
+    from 0.3 m to 1 m its fundamental came out 0.5 % high)."""
+    sheet = load(Path(__file__).resolve().parents[2] / "worksheets" / "free-free-bar.toml")
+    assert sheet.member.theory == "timoshenko"
+    result = sizing.sweep(sheet, "member.length", 0.3, 1.0, 4, modes=2, direction="depth")
+    var = sizing.variation(sheet, "member.length")
+    for value, row in zip(result.values_si, result.frequencies_hz, strict=True):
+        direct = fe.solve(var.member(float(value)), 2).frequencies_hz
+        assert row == pytest.approx(direct, rel=1e-12)
+
+
 def test_sweep_agrees_with_direct_solves_and_scales_by_groups() -> None:
     sheet = loads(CANTILEVER)
-    result = sizing.sweep(sheet, "member.length", 0.4, 1.2, 9, modes=3)
+    result = sizing.sweep(sheet, "member.length", 0.4, 1.2, 9, modes=3, direction="depth")
     assert result.solved == 1  # a bare uniform member: one solve, the rest by similitude
     var = sizing.variation(sheet, "member.length")
     for v, row in zip(result.values_si, result.frequencies_hz, strict=True):
@@ -149,7 +168,7 @@ def test_sweep_agrees_with_direct_solves_and_scales_by_groups() -> None:
 def test_sweep_with_attachments_solves_each_point() -> None:
     text = CANTILEVER + '\n[[mass]]\nat = "500 mm"\nmass = "0.4 kg"\n'
     sheet = loads(text)
-    result = sizing.sweep(sheet, "mass[0].at", 0.1, 0.8, 5, modes=2)
+    result = sizing.sweep(sheet, "mass[0].at", 0.1, 0.8, 5, modes=2, direction="depth")
     assert result.solved == 5
     assert np.all(np.diff(result.frequencies_hz[:, 0]) < 0)  # a mass further out lowers f1
     assert np.all(result.member_mass_kg == result.member_mass_kg[0])
@@ -213,7 +232,7 @@ def test_long_sweep_interpolates_within_tolerance_of_direct_solves() -> None:
     """Sweeps over 64 points interpolate between verified solves: every point must still
     agree with an independent solve to the solver's accuracy (1e-6)."""
     sheet = load(Path(__file__).resolve().parents[2] / "worksheets" / "stepped-spindle.toml")
-    result = sizing.sweep(sheet, "mass[1].at", 0.41, 0.5, 300, modes=3)
+    result = sizing.sweep(sheet, "mass[1].at", 0.41, 0.5, 300, modes=3, direction="depth")
     assert result.solved < 300  # work reused between neighbouring points
     var = sizing.variation(sheet, "mass[1].at")
     for i in range(0, 300, 23):
@@ -227,8 +246,9 @@ def test_long_sweep_interpolates_within_tolerance_of_direct_solves() -> None:
 def test_two_variable_sweep_agrees_with_direct_solves() -> None:
     sheet = loads(CANTILEVER + '\n[[mass]]\nat = "800 mm"\nmass = "0.2 kg"\n')
     result = sizing.sweep2(
-        sheet, ("member.length", 0.5, 1.0, 30), ("member.section.depth", 0.008, 0.016, 30), modes=2
-    )
+        sheet, ("member.length", 0.5, 1.0, 30), ("member.section.depth", 0.008, 0.016, 30),
+        modes=2, direction="depth",
+    )  # fmt: skip
     assert result.frequencies_hz.shape == (30, 30, 2)
     assert result.solved < 30 * 30
     var1 = sizing.variation(sheet, "member.length")

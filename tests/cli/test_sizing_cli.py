@@ -25,7 +25,8 @@ def test_size_json_and_apply(mast: Path, capsys: pytest.CaptureFixture[str]) -> 
     before = mast.read_text()
     status, out, err = run(
         capsys, "size", str(mast), "--vary", "member.section.outside_diameter",
-        "--between", "30 mm", "3.5 in", "--target", "30 Hz", "--json", "--apply",
+        "--between", "30 mm", "3.5 in", "--target", "30 Hz", "--direction", "depth", "--json",
+        "--apply",
     )  # fmt: skip
     assert status == 0, err
     obj = json.loads(out)
@@ -130,7 +131,7 @@ def test_apply_a_length_moves_the_tip_mass_with_the_end(
     """The instrument at the tip stays at the tip, in the file as in the solves."""
     status, out, err = run(
         capsys, "size", str(mast), "--vary", "member.length", "--between", "0.6 m", "2 m",
-        "--target", "25 Hz", "--json", "--apply",
+        "--target", "25 Hz", "--direction", "depth", "--json", "--apply",
     )  # fmt: skip
     assert status == 0, err
     applied = json.loads(out)["applied"]

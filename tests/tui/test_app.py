@@ -141,6 +141,14 @@ async def test_size_a_dimension_and_apply_it(bar: Path) -> None:
         await type_into(pilot, screen.query_one("#low", Input), "4 mm")
         await type_into(pilot, screen.query_one("#high", Input), "30 mm")
         await type_into(pilot, screen.query_one("#frequency", Input), "20 Hz")
+        # the depth plane, as this test always sized (the default follows every direction)
+        direction = screen.query_one("#direction", Select)
+        assert direction.value == "governing"
+        await pilot.press("tab", "tab")  # from the frequency past the mode
+        assert direction.has_focus
+        await pilot.press("enter", "down", "enter")  # the list opens on governing; depth next
+        await pilot.pause()  # flush
+        assert direction.value == "depth"
         await press(pilot, app, "#solve")
         await work_done(pilot, app)
         assert screen.result is not None and screen.result.recommended == 0

@@ -24,6 +24,7 @@ _FIELD_NAMES = {
     "mode": "mode",
     "harmonics": "orders",
     "margin": "margin",
+    "direction": "direction",
 }
 
 
@@ -41,9 +42,12 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
         self.result: object | None = None
 
     def compose(self) -> ComposeResult:
+        from beamtone.calc.directions import DEFAULT_SIZING_DIRECTION, DIRECTIONS, LABELS
         from beamtone.calc.sizing import quantity_keys
 
         keys = quantity_keys(self.document.plain())
+        follow = [("governing: the lowest of all directions", "governing")]
+        follow += [(LABELS[d], d) for d in DIRECTIONS]
         yield Header()
         with Vertical(id="sizing"):
             yield Static("Size one value of the worksheet", classes="step")
@@ -73,6 +77,15 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
                 yield Input(placeholder="60 Hz, or 1480 rpm", id="frequency", compact=True)
                 yield Label("mode", classes="pairlabel")
                 yield Input("1", id="mode", compact=True)
+            with Horizontal(classes="pair"):
+                yield Label("direction", classes="pairlabel")
+                yield Select(
+                    follow,
+                    value=DEFAULT_SIZING_DIRECTION,
+                    allow_blank=False,
+                    id="direction",
+                    compact=True,
+                )
             with Horizontal(classes="pair"):
                 yield Label("margin", classes="pairlabel")
                 yield Input("20%", id="margin", compact=True)
@@ -114,6 +127,7 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
             for i in ("low", "high", "frequency", "mode", "margin", "harmonics")
         }
         goal = str(self.query_one("#goal", Select).value)
+        values["direction"] = str(self.query_one("#direction", Select).value)
         self._say("solving…")
         self.query_one("#apply", Button).disabled = True
         self._run(self.document.text(), str(vary), goal, values)
@@ -137,6 +151,7 @@ class SizingScreen(Screen[tuple[str, str, str] | None]):
                 harmonics=values["harmonics"],
                 margin=values["margin"],
                 names=_FIELD_NAMES,
+                direction=values["direction"],
             )
             result = sizing.run_request(request)
         except InputError as exc:

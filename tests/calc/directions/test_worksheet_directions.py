@@ -232,3 +232,27 @@ def test_square_shaft_with_a_ring_governs_in_torsion(capsys, tmp_path):
     assert torsion["modes"][0]["frequency_hz"] == pytest.approx(exact, rel=1e-6)
     assert J / a**4 == pytest.approx(0.1406, abs=5e-5)
     assert data["directions"]["width"]["same_as"] == "depth"
+
+
+@pytest.mark.parametrize(
+    "name", sorted(p.name for p in (Path(__file__).parents[3] / "worksheets").glob("*.toml"))
+)
+def test_example_depth_plane_results_are_the_depth_plane_solved_alone(name):
+    # Every direction is added beside the depth plane, never into it: the depth plane's modes,
+    # handbook values and bounds are bit for bit those of the depth plane solved alone (what
+    # the width plane reuses from it is scaled copies, never the depth plane's own results).
+    from beamtone.calc.analysis import analyse
+    from beamtone.calc.worksheet import load
+
+    sheet = load(Path(__file__).parents[3] / "worksheets" / name)
+    every, alone = analyse(sheet), analyse(sheet, every_direction=False)
+    assert [m.frequency_hz for m in every.modes.modes] == [
+        m.frequency_hz for m in alone.modes.modes
+    ]
+    assert [m.estimated_error for m in every.modes.modes] == [
+        m.estimated_error for m in alone.modes.modes
+    ]
+    assert every.handbook == alone.handbook
+    assert every.estimate == alone.estimate and every.lower_bound == alone.lower_bound
+    assert every.modes.warnings == alone.modes.warnings
+    assert every.directions is not None and every.directions["depth"].solution is every.modes
