@@ -51,6 +51,7 @@ __all__ = [
     "solve_directions",
     "SIZING_DIRECTIONS",
     "frequencies",
+    "same_bending",
 ]
 
 COUPLING_NOTE = (
@@ -293,7 +294,7 @@ def _plain(member: Member) -> Member:
     )
 
 
-def _same_bending(a: Member, b: Member) -> bool:
+def same_bending(a: Member, b: Member) -> bool:
     """True where two bending members have the same stiffness, mass, supports and attachments."""
     if (a.left, a.right, a.masses, a.springs, a.inner_supports, a.axial_force, a.theory) != (
         b.left,
@@ -463,14 +464,14 @@ def _width(
     if isinstance(turned, str):
         return Direction("width", (), reason=turned, supports=supports)
     if not checks:  # the modes alone, by the member's theory (sizing, bands)
-        if _same_bending(turned, _plain(member)):
+        if same_bending(turned, _plain(member)):
             result = depth
         else:
             result = fe.solve(turned, count, elements=elements)
         modes = _direction_modes("width", result)
         return Direction("width", modes, result.rigid_body_modes, solution=result,
                          supports=supports, warnings=result.warnings)  # fmt: skip
-    if _same_bending(turned, _plain(member)):
+    if same_bending(turned, _plain(member)):
         return Direction(
             "width",
             _direction_modes("width", depth),

@@ -243,7 +243,9 @@ def test_two_variable_sweep_agrees_with_direct_solves() -> None:
         sizing.sweep2(sheet, ("member.length", 0.5, 1, 3), ("member.length", 0.5, 1, 3))
 
 
-ROOT_SPRING = CANTILEVER.replace('right = "free"', 'right = "free"\nleft_rotational_stiffness = "2 kN*m/rad"')
+ROOT_SPRING = CANTILEVER.replace(
+    'right = "free"', 'right = "free"\nleft_rotational_stiffness = "2 kN*m/rad"'
+)
 
 
 def test_a_support_stiffness_is_sized_like_any_other_key() -> None:
