@@ -79,9 +79,12 @@ def band_matmul(band: np.ndarray, x: np.ndarray) -> np.ndarray:
     (dofs, samples, columns): the degree-of-freedom-major layout of the solver's loops."""
     n = band.shape[0]
     out = band[:, 0, :, None] * x
+    term = np.empty_like(out)
     for j in range(1, BAND + 1):
-        out[j:] += band[j:, j, :, None] * x[: n - j]
-        out[: n - j] += band[j:, j, :, None] * x[j:]
+        np.multiply(band[j:, j, :, None], x[: n - j], out=term[j:])
+        out[j:] += term[j:]
+        np.multiply(band[j:, j, :, None], x[j:], out=term[: n - j])
+        out[: n - j] += term[: n - j]
     return out
 
 
@@ -179,15 +182,15 @@ def lowest(
     Q = np.ascontiguousarray(np.broadcast_to(start[:, None, :], (len(start), len(active),
                                                                   start.shape[1])))  # fmt: skip
     previous = np.full((len(active), want), np.inf)
+    R = band_matmul(M, Q)
     for _ in range(max_iterations):
         if not len(active):
             break
-        R = band_matmul(M, Q)
         X = band_solve(factor, R)
-        Xb = np.transpose(X, (1, 0, 2))  # (samples, dofs, q)
+        MX = np.transpose(band_matmul(M, X), (1, 0, 2))  # (samples, dofs, q)
         Xt = np.transpose(X, (1, 2, 0))
         Kr = Xt @ np.transpose(R, (1, 0, 2))
-        Mr = Xt @ np.transpose(band_matmul(M, X), (1, 0, 2))
+        Mr = Xt @ MX
         Kr = 0.5 * (Kr + np.swapaxes(Kr, 1, 2))
         Mr = 0.5 * (Mr + np.swapaxes(Mr, 1, 2))
         try:
@@ -196,7 +199,8 @@ def lowest(
             break
         Li = np.linalg.inv(Lr)
         theta, V = np.linalg.eigh(Li @ Kr @ np.swapaxes(Li, 1, 2))
-        Qb = Xb @ (np.swapaxes(Li, 1, 2) @ V)  # M-orthonormal Ritz vectors
+        Y = np.swapaxes(Li, 1, 2) @ V
+        MQb = MX @ Y  # M times the M-orthonormal Ritz vectors: the next right-hand side
         lam = theta[:, :want] + shift
         change = np.max(np.abs(lam - previous) / np.maximum(np.abs(theta[:, :want]), 1e-300),
                         axis=1)  # fmt: skip
@@ -206,5 +210,5 @@ def lowest(
         keep = ~done
         active, previous = active[keep], lam[keep]
         factor, M = factor[:, :, keep], M[:, :, keep]
-        Q = np.ascontiguousarray(np.transpose(Qb[keep], (1, 0, 2)))
+        R = np.ascontiguousarray(np.transpose(MQb[keep], (1, 0, 2)))
     return out, converged

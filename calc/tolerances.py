@@ -79,8 +79,13 @@ class Design:
         return cls(sheet, sheet.rigid_member or sheet.member, sheet.compliances)
 
     def solved_member(self) -> Member:
-        """The member the finite-element solve sees (compliant supports as springs)."""
-        return compliant_member(self.member, self.compliances)
+        """The member the finite-element solve sees (compliant supports as springs); made
+        once per design (a study asks for it at every sample)."""
+        made = self.__dict__.get("_solved")
+        if made is None:
+            made = compliant_member(self.member, self.compliances)
+            object.__setattr__(self, "_solved", made)  # a cache, not a field
+        return made
 
 
 @dataclass(frozen=True)
