@@ -79,7 +79,7 @@ def band_blocks(bands: BandResult, study: object | None = None) -> tuple[Block, 
 
 def _study_blocks(study: object) -> list[Block]:
     from beamtone.calc.directions import LABELS
-    from beamtone.calc.scatter import PERCENTILES, histogram
+    from beamtone.calc.scatter import PERCENTILES, chance_words, histogram
 
     same_as = study.same_as  # type: ignore[attr-defined]
     shown = [d for d in study.directions if d not in same_as]  # type: ignore[attr-defined]
@@ -100,6 +100,15 @@ def _study_blocks(study: object) -> list[Block]:
             )
             charts.append(Table((f"{LABELS[name]} mode {j + 1} [Hz]", "samples", "histogram"),
                                 bins, literal=(2,)))  # fmt: skip
+    chances = tuple(
+        (f"{c.excitation} " + ("lower limit" if c.order is None else f"order {c.order:g}"),
+         f"{c.band_low_hz:.4g} - {c.band_high_hz:.4g}",
+         chance_words(c.probability, c.standard_error, study.samples))  # type: ignore[attr-defined]
+        for c in study.lines  # type: ignore[attr-defined]
+    )  # fmt: skip
+    if chances:
+        any_band = chance_words(study.any_in_band, None, study.samples)  # type: ignore[attr-defined]
+        chances += (("any band", "", any_band),)
     alike = [f"{LABELS[d]}: the same as the {LABELS[o]}" for d, o in same_as.items()]
     missing = [f"{LABELS[d]}: not computed ({why})" for d, why in study.not_computed]  # type: ignore[attr-defined]
     return [
@@ -109,5 +118,15 @@ def _study_blocks(study: object) -> list[Block]:
         ),
         Table(("direction", "mode", *(f"p{p:g} [Hz]" for p in PERCENTILES)), tuple(rows)),
         *charts,
+        *(
+            [
+                Table(
+                    ("excitation line", "band [Hz]", "chance of a mode of any direction in it"),
+                    chances,
+                )
+            ]  # fmt: skip
+            if chances
+            else []
+        ),
         Bullets((*alike, *missing, *study.notes)),  # type: ignore[attr-defined]
     ]

@@ -78,6 +78,7 @@ __all__ = [
     "scatter",
     "sample_points",
     "histogram",
+    "chance_words",
 ]
 
 METHODS = ("latin-hypercube", "monte-carlo")
@@ -221,6 +222,19 @@ def histogram(values: np.ndarray, bins: int = 20) -> tuple[np.ndarray, np.ndarra
     if high <= low:
         high = low + max(abs(low) * 1e-9, 1e-12)
     return np.histogram(values, bins=bins, range=(low, high))
+
+
+def chance_words(p: float, standard_error: float | None, samples: int) -> str:
+    """A sampled chance in words.  Where no sample (or every one) landed in the band, the
+    standard error says nothing: the 95 % bound of the rule of three is given instead (3/N,
+    common practice; J. A. Hanley and A. Lippman-Hand, JAMA 249(13), 1983)."""
+    bound = 100.0 * 3.0 / samples
+    if p == 0.0:
+        return f"none of {samples} samples (under {bound:.2g} % at 95 % confidence)"
+    if p == 1.0:
+        return f"all {samples} samples (over {100.0 - bound:.4g} % at 95 % confidence)"
+    spread = "" if standard_error is None else f" (+/- {100 * standard_error:.2f} %)"
+    return f"{100 * p:.2f} %{spread}"
 
 
 # --- the stacked solver ----------------------------------------------------------------------

@@ -10,7 +10,7 @@ import numpy as np
 
 from beamtone.calc.batch import BatchResult
 from beamtone.calc.directions import LABELS
-from beamtone.calc.scatter import PERCENTILES, ScatterResult, histogram
+from beamtone.calc.scatter import PERCENTILES, ScatterResult, chance_words, histogram
 
 __all__ = [
     "scatter_text",
@@ -21,7 +21,6 @@ __all__ = [
     "batch_csv",
     "histogram_lines",
     "histogram_strip",
-    "chance_words",
 ]
 
 _BAR = 40
@@ -112,19 +111,6 @@ def scatter_text(result: ScatterResult, title: str = "", bins: int = 12) -> str:
     if result.individually_solved:
         lines.append(f"  - {result.individually_solved} samples solved one by one (layout)")
     return "\n".join(lines) + "\n"
-
-
-def chance_words(p: float, standard_error: float | None, samples: int) -> str:
-    """A sampled chance in words.  Where no sample (or every one) landed in the band, the
-    standard error says nothing: the 95 % bound of the rule of three is given instead (3/N,
-    common practice; J. A. Hanley and A. Lippman-Hand, JAMA 249(13), 1983)."""
-    bound = 100.0 * 3.0 / samples
-    if p == 0.0:
-        return f"none of {samples} samples (under {bound:.2g} % at 95 % confidence)"
-    if p == 1.0:
-        return f"all {samples} samples (over {100.0 - bound:.4g} % at 95 % confidence)"
-    spread = "" if standard_error is None else f" (+/- {100 * standard_error:.2f} %)"
-    return f"{100 * p:.2f} %{spread}"
 
 
 def _lowest(result: ScatterResult) -> tuple[str, int] | None:
