@@ -145,7 +145,7 @@ def lowest(
     start: np.ndarray,
     shift: float,
     *,
-    tolerance: float = 1e-9,
+    tolerance: float = 1e-7,
     max_iterations: int = 30,
 ) -> tuple[np.ndarray, np.ndarray]:
     """The ``want`` lowest eigenvalues of K x = lambda M x for every sample.
