@@ -706,7 +706,8 @@ def scatter(
         "each input uniform over its range (a support ranging to rigid: uniform in 1/k); "
         "percentiles describe this assumed spread, and the tolerances are the user's",
         f"samples solved on one mesh layout per direction designed for {STUDY_ACCURACY:.0e}; "
-        f"{count} direction solves at the extremes solved again in full: largest difference "
+        f"{count} direction solves (the extremes of every direction's lowest and highest mode, "
+        f"and {_CHECKS} samples spread over the study) solved again in full: largest difference "
         f"{checked:.1e}",
     ]
     notes += [f"{LABELS[name]} not computed: {why}" for name, why in template.reasons]
