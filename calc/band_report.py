@@ -6,6 +6,8 @@ Blocks of :mod:`calc.report` (plain data; ``beamtone.render`` writes them out).
 
 from __future__ import annotations
 
+import numpy as np
+
 from beamtone.calc.band import BandResult
 from beamtone.calc.report import Alert, Block, Bullets, Paragraph, Table
 from beamtone.calc.tolerances import COMPLIANCE
@@ -76,25 +78,55 @@ def band_blocks(bands: BandResult, study: object | None = None) -> tuple[Block, 
 
 
 def _study_blocks(study: object) -> list[Block]:
-    from beamtone.calc.scatter import PERCENTILES, histogram
+    from beamtone.calc.directions import LABELS
+    from beamtone.calc.scatter import PERCENTILES, chance_words, histogram
 
-    freqs = study.frequencies_hz  # type: ignore[attr-defined]
-    percentiles = study.percentiles  # type: ignore[attr-defined]
-    rows = tuple(
-        (str(j + 1), *(f"{v:.6g}" for v in percentiles[:, j])) for j in range(freqs.shape[1])
-    )
-    counts, edges = histogram(freqs[:, 0], 12)
-    top = max(int(counts.max()), 1)
-    bins = tuple(
-        (f"{a:.5g} - {b:.5g}", str(int(n)), "#" * round(_BAR * int(n) / top))
-        for n, a, b in zip(counts, edges[:-1], edges[1:], strict=True)
-    )
+    same_as = study.same_as  # type: ignore[attr-defined]
+    shown = [d for d in study.directions if d not in same_as]  # type: ignore[attr-defined]
+    rows, charts = [], []
+    for name in shown:
+        freqs = study.sampled_hz[name]  # type: ignore[attr-defined]
+        percentiles = study.percentiles_of(name)  # type: ignore[attr-defined]
+        for j in range(freqs.shape[1]):
+            values = freqs[:, j][np.isfinite(freqs[:, j])]
+            if not len(values):
+                continue
+            rows.append((LABELS[name], str(j + 1), *(f"{v:.6g}" for v in percentiles[:, j])))
+            counts, edges = histogram(values, 12)
+            top = max(int(counts.max()), 1)
+            bins = tuple(
+                (f"{a:.5g} - {b:.5g}", str(int(n)), "#" * round(_BAR * int(n) / top))
+                for n, a, b in zip(counts, edges[:-1], edges[1:], strict=True)
+            )
+            charts.append(Table((f"{LABELS[name]} mode {j + 1} [Hz]", "samples", "histogram"),
+                                bins, literal=(2,)))  # fmt: skip
+    chances = tuple(
+        (f"{c.excitation} " + ("lower limit" if c.order is None else f"order {c.order:g}"),
+         f"{c.band_low_hz:.4g} - {c.band_high_hz:.4g}",
+         chance_words(c.probability, c.standard_error, study.samples))  # type: ignore[attr-defined]
+        for c in study.lines  # type: ignore[attr-defined]
+    )  # fmt: skip
+    if chances:
+        any_band = chance_words(study.any_in_band, None, study.samples)  # type: ignore[attr-defined]
+        chances += (("any band", "", any_band),)
+    alike = [f"{LABELS[d]}: the same as the {LABELS[o]}" for d, o in same_as.items()]
+    missing = [f"{LABELS[d]}: not computed ({why})" for d, why in study.not_computed]  # type: ignore[attr-defined]
     return [
         Paragraph(
-            f"Sampled spread: {study.samples} samples ({study.method}) of the depth-plane "  # type: ignore[attr-defined]
+            f"Sampled spread: {study.samples} samples ({study.method}) of every direction's "  # type: ignore[attr-defined]
             "modes, every input uniform over its range."
         ),
-        Table(("mode", *(f"p{p:g} [Hz]" for p in PERCENTILES)), rows),
-        Table(("mode 1 [Hz]", "samples", "histogram"), bins, literal=(2,)),
-        Bullets(tuple(study.notes)),  # type: ignore[attr-defined]
+        Table(("direction", "mode", *(f"p{p:g} [Hz]" for p in PERCENTILES)), tuple(rows)),
+        *charts,
+        *(
+            [
+                Table(
+                    ("excitation line", "band [Hz]", "chance of a mode of any direction in it"),
+                    chances,
+                )
+            ]  # fmt: skip
+            if chances
+            else []
+        ),
+        Bullets((*alike, *missing, *study.notes)),  # type: ignore[attr-defined]
     ]

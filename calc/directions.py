@@ -55,6 +55,7 @@ __all__ = [
     "lowest",
     "column_mode",
     "frequencies",
+    "same_bending",
 ]
 
 COUPLING_NOTE = (
@@ -297,7 +298,7 @@ def _plain(member: Member) -> Member:
     )
 
 
-def _same_bending(a: Member, b: Member) -> bool:
+def same_bending(a: Member, b: Member) -> bool:
     """True where two bending members have the same stiffness, mass, supports and attachments."""
     if (a.left, a.right, a.masses, a.springs, a.inner_supports, a.axial_force, a.theory) != (
         b.left,
@@ -501,7 +502,7 @@ def _width(
         scaled = None
         if factor is not None and member.theory == "euler-bernoulli":
             scaled = fe.scaled_result(depth, plain, turned, factor)
-        if _same_bending(turned, plain):
+        if same_bending(turned, plain):
             result = depth
         elif scaled is not None:
             result = scaled
@@ -510,7 +511,7 @@ def _width(
         modes = _direction_modes("width", result)
         return Direction("width", modes, result.rigid_body_modes, solution=result,
                          supports=supports, warnings=result.warnings)  # fmt: skip
-    if _same_bending(turned, plain):
+    if same_bending(turned, plain):
         return Direction(
             "width",
             _direction_modes("width", depth),

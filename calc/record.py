@@ -27,6 +27,12 @@ Tolerances of the comparison (relative unless stated):
   them;
 - the excitation verdict (clear, not clear, not shown clear) and the governing mode and line
   (from the worksheet's ``[[excitation]]`` tables): exactly; a record written before they were
+  stored is not compared on them;
+- each mode's tolerance band (``[[record.results.bands]]``, every direction, where the
+  worksheet has tolerances): its low and high ends as that mode's frequency (``max(1e-6,
+  2 e)``), how it was found exactly, and for every input its elasticity within 1e-3 and its
+  contribution within ``max(1e-3 |c|, 2 e f)`` (derivatives and the plane through the check
+  solves converge more slowly than the frequencies); a record written before bands were
   stored is not compared on them.
 """
 
@@ -52,7 +58,9 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = [
     "FREQUENCY_TOLERANCE",
     "EQUIVALENT_TOLERANCE",
+    "SENSITIVITY_TOLERANCE",
     "StoredMargins",
+    "StoredBand",
     "StoredResults",
     "Record",
     "Comparison",
@@ -72,6 +80,9 @@ FREQUENCY_TOLERANCE = 1e-6
 
 EQUIVALENT_TOLERANCE = 1e-3
 """Relative tolerance on the equivalent single-DOF model (from a mode shape at a point)."""
+
+SENSITIVITY_TOLERANCE = 1e-3
+"""Tolerance on a stored elasticity (absolute) and contribution (relative)."""
 
 _HEX = re.compile(r"^[0-9a-f]{64}$")
 _NOTE = (
@@ -112,6 +123,38 @@ class StoredMargins:
 
 
 @dataclass(frozen=True)
+class StoredBand:
+    """One mode's tolerance band and sensitivities, as stored.
+
+    Attributes
+    ----------
+    direction : str
+        ``"depth"``, ``"width"``, ``"torsion"`` or ``"axial"``.
+    mode : int
+        The direction's mode number (1 for its first flexible mode).
+    low_hz, high_hz : float
+        The band [Hz].
+    method : str
+        How it was found (``calc.band``: first order, corners, corners and sampling).
+    keys : tuple of str
+        The toleranced inputs, largest contribution first.
+    elasticities : tuple of float
+        Percent per percent [-] (NaN where the input's value is zero).
+    contributions_hz : tuple of float
+        Change of the frequency across each input's range [Hz].
+    """
+
+    direction: str
+    mode: int
+    low_hz: float
+    high_hz: float
+    method: str
+    keys: tuple[str, ...]
+    elasticities: tuple[float, ...]
+    contributions_hz: tuple[float, ...]
+
+
+@dataclass(frozen=True)
 class StoredResults:
     """The key results of a solve, as stored.
 
@@ -147,6 +190,8 @@ class StoredResults:
         the worksheet has ``[[excitation]]`` tables.
     governing_pair : str or None
         The mode and excitation line that govern the verdict, in words.
+    bands : tuple of StoredBand or None
+        Each mode's band over the worksheet's tolerances (every direction), where it has any.
     """
 
     rigid_body_modes: int
@@ -165,6 +210,7 @@ class StoredResults:
     axial_hz: tuple[float, ...] | None = None
     verdict: str | None = None
     governing_pair: str | None = None
+    bands: tuple[StoredBand, ...] | None = None
 
 
 # --- the table of stored results -----------------------------------------------------------------
@@ -318,7 +364,24 @@ _RESULTS = (
         lambda a: None if a.margins is None else _pair(a.margins.verdict.governing),
         optional=True, new=True,
     ),
+    _Stored("bands", "band", "Hz", "bands", "bands", lambda a: _bands_now(a), optional=True,
+            new=True),  # last: an array of tables closes the results table
 )  # fmt: skip
+
+
+def _bands_now(analysis: Analysis) -> tuple[StoredBand, ...] | None:
+    """Each mode's band of an analysis with tolerances, as stored."""
+    if analysis.bands is None:
+        return None
+    return tuple(
+        StoredBand(
+            b.direction, int(b.number), float(b.low_hz), float(b.high_hz), b.method,
+            tuple(e.key for e in b.effects),
+            tuple(math.nan if e.elasticity is None else float(e.elasticity) for e in b.effects),
+            tuple(float(e.contribution_hz) for e in b.effects),
+        )
+        for b in analysis.bands.modes
+    )  # fmt: skip
 
 
 def _verdict_word(verdict: Any) -> str:
@@ -578,7 +641,29 @@ def _array(values: tuple[float, ...]) -> Any:
     return array.multiline(len(values) > 1)
 
 
-_WRITE: dict[str, Callable[[Any], Any]] = {"numbers": _array, "margins": _margins_table}
+def _bands_tables(bands: tuple[StoredBand, ...]) -> Any:
+    import tomlkit
+
+    out = tomlkit.aot()
+    for b in bands:
+        table = tomlkit.table()
+        table.add("direction", b.direction)
+        table.add("mode", b.mode)
+        table.add("low_hz", b.low_hz)
+        table.add("high_hz", b.high_hz)
+        table.add("method", b.method)
+        table.add("keys", _array(b.keys))
+        table.add("elasticities", _array(b.elasticities))
+        table.add("contributions_hz", _array(b.contributions_hz))
+        out.append(table)
+    return out
+
+
+_WRITE: dict[str, Callable[[Any], Any]] = {
+    "numbers": _array,
+    "margins": _margins_table,
+    "bands": _bands_tables,
+}
 
 
 def with_record(text: str, record: Record) -> str:
@@ -769,6 +854,40 @@ def _margins(value: object, modes: int) -> StoredMargins:
     return StoredMargins(excitation, tuple(orders), margin, tuple(tuple(r) for r in inside))
 
 
+def _bands(value: object) -> tuple[StoredBand, ...]:
+    key = "results.bands"
+    if not isinstance(value, list) or not value:
+        raise _bad(key, value, "an array of [[record.results.bands]] tables")
+    out = []
+    for i, row in enumerate(value):
+        where = f"{key}[{i}]."
+        if not isinstance(row, Mapping):
+            raise _bad(f"{key}[{i}]", row, "a table of one mode's band")
+        direction = _text(row, "direction", where)
+        if direction not in ("depth", "width", "torsion", "axial"):
+            raise _bad(f"{where}direction", direction, "depth, width, torsion or axial")
+        mode = _integer(row, "mode", where, 1, 10_000)
+        keys = row.get("keys")
+        if not isinstance(keys, list) or not all(isinstance(k, str) for k in keys):
+            raise _bad(f"{where}keys", keys, "a list of key paths")
+        numbers = []
+        for name in ("elasticities", "contributions_hz"):
+            got = row.get(name)
+            if (
+                not isinstance(got, list)
+                or len(got) != len(keys)
+                or any(isinstance(v, bool) or not isinstance(v, int | float) for v in got)
+            ):
+                raise _bad(f"{where}{name}", got, f"{len(keys)} numbers, one per key")
+            numbers.append(tuple(float(v) for v in got))
+        out.append(
+            StoredBand(direction, mode, _number(row, "low_hz", where),
+                       _number(row, "high_hz", where), _text(row, "method", where),
+                       tuple(keys), numbers[0], numbers[1])
+        )  # fmt: skip
+    return tuple(out)
+
+
 _READ: dict[str, Callable[[Mapping[str, Any], str, str, bool, int], Any]] = {
     "count": lambda t, n, k, optional, modes: _integer(t, n, k, 0, 2),  # rigid-body modes
     "number": lambda t, n, k, optional, modes: _number(t, n, k, optional=optional),
@@ -776,6 +895,7 @@ _READ: dict[str, Callable[[Mapping[str, Any], str, str, bool, int], Any]] = {
     "text": lambda t, n, k, optional, modes: None if optional and n not in t else _text(t, n, k),
     "flag": lambda t, n, k, optional, modes: _flag(t, n, k),
     "margins": lambda t, n, k, optional, modes: _margins(t[n], modes) if n in t else None,
+    "bands": lambda t, n, k, optional, modes: _bands(t[n]) if n in t else None,
 }
 
 
@@ -1024,6 +1144,51 @@ def _compare_margins(stored: StoredMargins | None, analysis: Analysis) -> list[C
     return out
 
 
+def _compare_bands(stored: tuple[StoredBand, ...] | None, analysis: Analysis) -> list[Comparison]:
+    """Each stored band against the one of the same direction and mode worked out again."""
+    if stored is None:
+        return []
+    now = {(b.direction, b.mode): b for b in _bands_now(analysis) or ()}
+    errors = {}
+    if analysis.directions is not None:
+        errors = {(m.direction, m.number): m.estimated_error
+                  for m in analysis.directions.all_modes}  # fmt: skip
+    out: list[Comparison] = []
+    for i, b in enumerate(stored):
+        key = f"results.bands[{i}]."
+        what = f"{b.direction} mode {b.mode} band"
+        fresh = now.get((b.direction, b.mode))
+        e = errors.get((b.direction, b.mode), 0.0)
+        tolerance = max(FREQUENCY_TOLERANCE, 2.0 * e)
+        for end in ("low_hz", "high_hz"):
+            value = None if fresh is None else getattr(fresh, end)
+            out.append(_value(f"{what} {end[:-3]}", key + end, "Hz", getattr(b, end), value,
+                              tolerance))  # fmt: skip
+        out.append(_exact(f"{what} method", key + "method", b.method,
+                          None if fresh is None else fresh.method))  # fmt: skip
+        f = 0.5 * (b.low_hz + b.high_hz)
+        for input_key, el, c in zip(b.keys, b.elasticities, b.contributions_hz, strict=True):
+            j = (
+                None
+                if fresh is None or input_key not in fresh.keys
+                else fresh.keys.index(input_key)
+            )
+            el_now = None if j is None else fresh.elasticities[j]  # type: ignore[union-attr]
+            c_now = None if j is None else fresh.contributions_hz[j]  # type: ignore[union-attr]
+            same = el_now is not None and (
+                (math.isnan(el) and math.isnan(el_now)) or abs(el - el_now) <= SENSITIVITY_TOLERANCE
+            )
+            out.append(Comparison(f"{what}: elasticity to {input_key}", key + "elasticities",
+                                  "", el, el_now, None, None, same,
+                                  f"{SENSITIVITY_TOLERANCE:.0e} absolute"))  # fmt: skip
+            allowed = max(SENSITIVITY_TOLERANCE * abs(c), 2.0 * e * f)
+            out.append(Comparison(f"{what}: contribution of {input_key}",
+                                  key + "contributions_hz", "Hz", c, c_now, None, None,
+                                  c_now is not None and abs(c - c_now) <= allowed,
+                                  f"{SENSITIVITY_TOLERANCE:.0e} relative or 2 e f"))  # fmt: skip
+    return out
+
+
 def compare(record: Record, analysis: Analysis) -> tuple[Comparison, ...]:
     """Every stored result of ``record`` against ``analysis`` (see the module's tolerances).
 
@@ -1050,6 +1215,8 @@ def compare(record: Record, analysis: Analysis) -> tuple[Comparison, ...]:
         for e in group:
             if e.rule == "margins":
                 out += _compare_margins(res.margins, analysis)
+            elif e.rule == "bands":
+                out += _compare_bands(res.bands, analysis)
             elif e.now is not None:
                 out.append(_compare(e, analysis, _stored_value(res, e), e.now(analysis), None))
     return tuple(out)

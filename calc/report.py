@@ -447,13 +447,15 @@ def report_data(
     study = None
     if samples is not None:
         from beamtone.calc.errors import InputError
+        from beamtone.calc.excitation import lines
         from beamtone.calc.scatter import scatter
         from beamtone.calc.tolerances import Design
 
         if not sheet.tolerances:
             raise InputError("--scatter", samples, "a worksheet with tolerances to sample")
+        every = tuple(ln for e in sheet.excitations for ln in lines(e))
         study = scatter(Design.of(sheet), sheet.tolerances, analysis.modes.frequencies_hz.size,
-                        samples)  # fmt: skip
+                        samples, lines=every)  # fmt: skip
     return build(
         analysis,
         caution=caution,

@@ -325,10 +325,11 @@ def _compliance_entries() -> list[Entry]:
         rows += [
             Entry(f"{prefix}stiffness", QUANTITY, "stiffness",
                   f"the {where}'s translational stiffness where it is not rigid; "
-                  '[value, "rigid"] for a range', STIFFNESS, also=(TEXT,)),
+                  '[value, "rigid"] for a range', STIFFNESS, also=(TEXT,), variable=True),
             Entry(f"{prefix}rotational_stiffness", QUANTITY, "rot. stiffness",
                   f"the {where}'s rotational stiffness where it is not rigid; "
-                  '[value, "rigid"] for a range', ROTATIONAL_STIFFNESS, also=(TEXT,)),
+                  '[value, "rigid"] for a range', ROTATIONAL_STIFFNESS, also=(TEXT,),
+                  variable=True),
         ]  # fmt: skip
     rows.append(
         Entry("tolerances", TABLE, "tolerances",

@@ -135,17 +135,19 @@ class Variation:
         theirs), made with :func:`dataclasses.replace` on the loaded model and checked as the
         loader checks it (the schema's limits, the section's geometry, positions on the
         member)."""
-        member = self.sheet.member
+        from beamtone.calc.tolerances import Design, vary
+
+        design = Design.of(self.sheet)  # support stiffnesses are varied on the design
         for var, v in ((self, value), *others):
             try:
-                member = set_value(var.sheet, member, var.key, v, var.text(v))
+                design = vary(design, {var.key: v}, {var.key: var.text(v)})
             except InputError as exc:
                 raise InputError(
                     "--between",
                     var.text(v),
                     f"values of {var.key} the worksheet accepts ({exc.key}: {exc.expected})",
                 ) from None
-        return member
+        return design.solved_member()
 
     def rewrite(self, text: str, value: float) -> str:
         """Worksheet text with the quantity set to ``value`` [SI] in the worksheet's unit,
@@ -322,6 +324,11 @@ def variation(sheet: Worksheet, key: str) -> Variation:
     """
     value = find_value(sheet.data, key)
     found = schema.find(key)
+    if found is not None and found.kind == schema.QUANTITY and isinstance(value, list):
+        raise InputError(
+            "--vary", key, "a support stiffness written as one quantity, e.g. \"2 MN*m/rad\"",
+            "here it is a range to rigid, a tolerance that beamtone scatter samples",
+        )  # fmt: skip
     if found is None or found.kind != schema.QUANTITY or not found.variable or (
         not isinstance(value, str)
     ):  # fmt: skip

@@ -79,8 +79,13 @@ class Design:
         return cls(sheet, sheet.rigid_member or sheet.member, sheet.compliances)
 
     def solved_member(self) -> Member:
-        """The member the finite-element solve sees (compliant supports as springs)."""
-        return compliant_member(self.member, self.compliances)
+        """The member the finite-element solve sees (compliant supports as springs); made
+        once per design (a study asks for it at every sample)."""
+        made = self.__dict__.get("_solved")
+        if made is None:
+            made = compliant_member(self.member, self.compliances)
+            object.__setattr__(self, "_solved", made)  # a cache, not a field
+        return made
 
 
 @dataclass(frozen=True)
@@ -172,12 +177,23 @@ def _check_key(design: Design, key: str) -> None:
     find_value(design.sheet.data, key, option)
 
 
-def vary(design: Design, values: Mapping[str, float]) -> Design:
+def vary(
+    design: Design, values: Mapping[str, float], written: Mapping[str, object] | None = None
+) -> Design:
     """The design with the quantities at the given key paths set to the given SI values.
 
     Worksheet quantities are set by :func:`calc.sizing.set_value` (the one way to set a
     worksheet quantity on the model: schema limits, rebuilt sections, end attachments
-    following a length); support stiffnesses here, ``math.inf`` meaning rigid.
+    following a length); support stiffnesses here, ``math.inf`` meaning rigid (sizing and
+    sweeps vary them through this function too).
+
+    Parameters
+    ----------
+    design : Design
+    values : mapping of str to float
+        Key path -> value [SI].
+    written : mapping of str to object, optional
+        Key path -> the value as messages show it (default: the SI number and unit).
 
     Raises
     ------
@@ -186,13 +202,14 @@ def vary(design: Design, values: Mapping[str, float]) -> Design:
     """
     from beamtone.calc.sizing import set_value
 
+    written = written or {}
     for key, value in values.items():
         found = support_key(key)
         if found:
-            design = _with_stiffness(design, *found, value, key)
+            design = _with_stiffness(design, *found, value, key, written.get(key))
         else:
             try:
-                member = set_value(design.sheet, design.member, key, value)
+                member = set_value(design.sheet, design.member, key, value, written.get(key))
             except (IndexError, KeyError):  # an entry the worksheet does not have
                 raise InputError(key, key, "a key path of a quantity of this worksheet") from None
             design = replace(design, member=member)
@@ -223,11 +240,11 @@ def vary_within(design: Design, tolerances: Sequence[Tolerance], point: Sequence
 
 
 def _with_stiffness(
-    design: Design, support: str, rotational: bool, value: float, key: str
+    design: Design, support: str, rotational: bool, value: float, key: str, shown: object = None
 ) -> Design:
     support_position(design.member, support)  # names a support that exists
     if not value > 0.0:
-        raise InputError(key, value, "a positive stiffness, or rigid")
+        raise InputError(key, value if shown is None else shown, "a positive stiffness, or rigid")
     current = next((c for c in design.compliances if c.support == support), Compliance(support))
     new = replace(current, **{"rotational_stiffness" if rotational else "stiffness": value})
     others = tuple(c for c in design.compliances if c.support != support)

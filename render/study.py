@@ -6,8 +6,11 @@ import csv
 import io
 from typing import Any
 
+import numpy as np
+
 from beamtone.calc.batch import BatchResult
-from beamtone.calc.scatter import PERCENTILES, ScatterResult, histogram
+from beamtone.calc.directions import LABELS
+from beamtone.calc.scatter import PERCENTILES, ScatterResult, chance_words, histogram
 
 __all__ = [
     "scatter_text",
@@ -17,6 +20,7 @@ __all__ = [
     "batch_json",
     "batch_csv",
     "histogram_lines",
+    "histogram_strip",
 ]
 
 _BAR = 40
@@ -24,7 +28,8 @@ _BAR = 40
 
 def histogram_lines(values: Any, bins: int = 12) -> list[str]:
     """A horizontal histogram of one mode's samples, one line per bin."""
-    counts, edges = histogram(values, bins)
+    values = np.asarray(values, dtype=float)
+    counts, edges = histogram(values[np.isfinite(values)], bins)
     top = max(int(counts.max()), 1)
     lines = []
     for n, a, b in zip(counts, edges[:-1], edges[1:], strict=True):
@@ -33,37 +38,74 @@ def histogram_lines(values: Any, bins: int = 12) -> list[str]:
     return lines
 
 
+_LEVELS = " .:-=+*#%@"  # a one-line histogram: empty to fullest bin
+
+
+def histogram_strip(values: Any, bins: int = 12) -> str:
+    """One mode's histogram on one line: its range and a character per bin, darker where
+    more samples fell (``11.09 |.:=*#%@%#*=-:.| 17.21``)."""
+    counts, edges = histogram(values[np.isfinite(values)], bins)
+    top = max(int(counts.max()), 1)
+    marks = "".join(
+        _LEVELS[0 if n == 0 else max(1, round((len(_LEVELS) - 1) * int(n) / top))] for n in counts
+    )
+    return f"{edges[0]:.5g} |{marks}| {edges[-1]:.5g}"
+
+
+def _distinct(result: ScatterResult) -> list[str]:
+    """The directions shown in full (one that equals another is named beside it)."""
+    return [d for d in result.directions if d not in result.same_as]
+
+
 def scatter_text(result: ScatterResult, title: str = "", bins: int = 12) -> str:
-    """Percentiles of every mode, a histogram of the first, the band chances and notes."""
+    """Percentiles and a one-line histogram of every mode of every direction, the full
+    histogram of the lowest mode, the band chances and notes."""
     lines = [f"beamtone scatter: {title}" if title else "beamtone scatter", ""]
     lines.append(
         f"  {result.samples} samples ({result.method}) of {', '.join(result.keys)}; "
         f"solved in {result.engine}"
     )
-    lines.append("")
-    header = ["mode", "nominal [Hz]", *(f"p{p:g} [Hz]" for p in PERCENTILES)]
-    rows = [header]
-    for j in range(result.frequencies_hz.shape[1]):
-        rows.append(
-            [str(j + 1), f"{result.nominal_hz[j]:.6g}",
-             *(f"{v:.6g}" for v in result.percentiles[:, j])]
-        )  # fmt: skip
-    widths = [max(len(r[c]) for r in rows) for c in range(len(header))]
-    lines += ["  " + "   ".join(r[c].rjust(widths[c]) for c in range(len(r))) for r in rows]
-    lines.append("")
-    lines.append("  mode 1 [Hz]")
-    lines += histogram_lines(result.frequencies_hz[:, 0], bins)
+    header = ["mode", "nominal [Hz]", *(f"p{p:g} [Hz]" for p in PERCENTILES),
+              f"histogram ({bins} bins) [Hz]"]  # fmt: skip
+    for name in _distinct(result):
+        alike = [LABELS[d] for d, same in result.same_as.items() if same == name]
+        lines.append("")
+        lines.append(
+            f"  {LABELS[name]}" + (f" (and {', '.join(alike)}: the same)" if alike else "")
+        )
+        rows = [header]
+        freqs = result.sampled_hz[name]
+        percentiles = result.percentiles_of(name)
+        for j in range(freqs.shape[1]):
+            if not np.any(np.isfinite(freqs[:, j])):
+                continue
+            rows.append(
+                [str(j + 1), f"{result.nominal_by_direction[name][j]:.6g}",
+                 *(f"{v:.6g}" for v in percentiles[:, j]), histogram_strip(freqs[:, j], bins)]
+            )  # fmt: skip
+        widths = [max(len(r[c]) for r in rows) for c in range(len(header))]
+        lines += ["  " + "   ".join(r[c].rjust(widths[c]) if c < len(r) - 1 else r[c]
+                                    for c in range(len(r))) for r in rows]  # fmt: skip
+    for name, why in result.not_computed:
+        lines.append("")
+        lines.append(f"  {LABELS[name]}: not computed ({why})")
+    lowest = _lowest(result)
+    if lowest is not None:
+        name, j = lowest
+        lines.append("")
+        lines.append(f"  {LABELS[name]} mode {j + 1}, the lowest mode [Hz]")
+        lines += histogram_lines(result.sampled_hz[name][:, j], bins)
     if result.lines:
         lines.append("")
-        lines.append("  chance of a mode in an excitation band")
+        lines.append("  chance of a mode of any direction in an excitation band")
         for c in result.lines:
             order = f"order {c.order:g}" if c.order is not None else "lower limit"
             lines.append(
                 f"  - {c.excitation} {order} ({c.band_low_hz:.4g}-{c.band_high_hz:.4g} Hz): "
-                f"{100 * c.probability:.2f} % (+/- {100 * c.standard_error:.2f} %)"
+                + chance_words(c.probability, c.standard_error, result.samples)
             )
         assert result.any_in_band is not None
-        lines.append(f"  - any band: {100 * result.any_in_band:.2f} %")
+        lines.append("  - any band: " + chance_words(result.any_in_band, None, result.samples))
     lines.append("")
     lines += [f"  - {n}" for n in result.notes]
     if result.individually_solved:
@@ -71,25 +113,47 @@ def scatter_text(result: ScatterResult, title: str = "", bins: int = 12) -> str:
     return "\n".join(lines) + "\n"
 
 
+def _lowest(result: ScatterResult) -> tuple[str, int] | None:
+    """The direction and mode index of the lowest nominal mode of every direction."""
+    found = [(float(result.nominal_by_direction[d][0]), i, d)
+             for i, d in enumerate(result.directions)
+             if np.isfinite(result.nominal_by_direction[d][0])]  # fmt: skip
+    return (min(found)[2], 0) if found else None
+
+
+def _mode_json(result: ScatterResult, name: str, j: int, bins: int) -> dict[str, Any]:
+    freqs = result.sampled_hz[name][:, j]
+    counts, edges = histogram(freqs[np.isfinite(freqs)], bins)
+    return {
+        "direction": name,
+        "number": j + 1,
+        "nominal_hz": float(result.nominal_by_direction[name][j]),
+        "percentiles_hz": {f"p{p:g}": float(v) for p, v in
+                           zip(PERCENTILES, result.percentiles_of(name)[:, j], strict=True)},
+        "histogram": {"counts": [int(c) for c in counts], "edges_hz": [float(e) for e in edges]},
+    }  # fmt: skip
+
+
 def scatter_json(result: ScatterResult, bins: int = 12) -> dict[str, Any]:
-    """The study as one JSON object (per mode percentiles and histogram)."""
-    modes = []
-    for j in range(result.frequencies_hz.shape[1]):
-        counts, edges = histogram(result.frequencies_hz[:, j], bins)
-        modes.append({
-            "number": j + 1,
-            "nominal_hz": float(result.nominal_hz[j]),
-            "percentiles_hz": {f"p{p:g}": float(v) for p, v in
-                               zip(PERCENTILES, result.percentiles[:, j], strict=True)},
-            "histogram": {"counts": [int(c) for c in counts],
-                          "edges_hz": [float(e) for e in edges]},
-        })  # fmt: skip
+    """The study as one JSON object: ``modes`` (the depth plane's, as before) and
+    ``directions`` (every direction: its modes' percentiles and histograms)."""
+
+    def modes(name: str) -> list[dict[str, Any]]:
+        freqs = result.sampled_hz[name]
+        return [_mode_json(result, name, j, bins) for j in range(freqs.shape[1])
+                if np.any(np.isfinite(freqs[:, j]))]  # fmt: skip
+
     return {
         "samples": result.samples,
         "method": result.method,
         "engine": result.engine,
         "keys": list(result.keys),
-        "modes": modes,
+        "modes": modes("depth"),
+        "directions": [
+            {"direction": name, "same_as": result.same_as.get(name), "modes": modes(name)}
+            for name in result.directions
+        ],
+        "not_computed": [{"direction": n, "reason": why} for n, why in result.not_computed],
         "any_in_band": result.any_in_band,
         "bands": [
             {
@@ -109,13 +173,15 @@ def scatter_json(result: ScatterResult, bins: int = 12) -> dict[str, Any]:
 
 
 def scatter_csv(result: ScatterResult) -> str:
-    """One row per sample: the inputs [SI] and every mode [Hz]."""
+    """One row per sample: the inputs [SI] and every mode of every direction [Hz]."""
     out = io.StringIO()
     w = csv.writer(out, lineterminator="\n")
-    n = result.frequencies_hz.shape[1]
-    w.writerow([*result.keys, *(f"mode {j + 1} [Hz]" for j in range(n))])
-    for p, f in zip(result.points, result.frequencies_hz, strict=True):
-        w.writerow([*(f"{v:.10g}" for v in p), *(f"{v:.10g}" for v in f)])
+    columns = [(name, j) for name in result.directions
+               for j in range(result.sampled_hz[name].shape[1])]  # fmt: skip
+    w.writerow([*result.keys, *(f"{name} mode {j + 1} [Hz]" for name, j in columns)])
+    for i, p in enumerate(result.points):
+        w.writerow([*(f"{v:.10g}" for v in p),
+                    *(f"{result.sampled_hz[name][i, j]:.10g}" for name, j in columns)])  # fmt: skip
     return out.getvalue()
 
 

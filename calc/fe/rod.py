@@ -27,7 +27,16 @@ import scipy.sparse.linalg
 
 from beamtone.calc.errors import InputError
 
-__all__ = ["RodProblem", "RodMode", "RodResult", "solve_rod"]
+__all__ = [
+    "RodProblem",
+    "RodMode",
+    "RodResult",
+    "solve_rod",
+    "REFERENCE_ELEMENT",
+    "mesh_layout",
+    "station_positions",
+    "coarse_mesh",
+]
 
 _SAFETY = 2.0
 _ORDER = 6  # eigenvalue convergence rate of cubic elements, h^6
@@ -166,6 +175,43 @@ def _reference_element() -> tuple[np.ndarray, np.ndarray]:
 
 _K_REF, _M_REF = _reference_element()
 _K_MAX = float(np.max(scipy.linalg.eigh(_K_REF, _M_REF, eigvals_only=True)))
+REFERENCE_ELEMENT = (_K_REF, _M_REF)
+"""Stiffness and mass of the cubic element on [0, 1]: an element of length h and segment
+values k, mu has k/h times the first and mu h times the second (four nodes, in order)."""
+
+
+def station_positions(problem: RodProblem) -> np.ndarray:
+    """Where the meshes of ``problem`` have nodes whatever their size [m]: segment ends, held
+    points, point inertias and springs, in order (coincident ones once)."""
+    return np.asarray(_stations(problem))
+
+
+def coarse_mesh(problem: RodProblem, modes: int, accuracy: float) -> np.ndarray:
+    """Node positions [m] of a mesh sized for ``accuracy`` (relative) of the first ``modes``
+    flexible modes by the error model of :func:`solve_rod`'s first trial, 5e-6 (k h)^6 with
+    a factor 10 to spare; for stacked studies, which check it against full solves."""
+    L = problem.length
+    c = np.sqrt(np.asarray(problem.stiffness) / np.asarray(problem.inertia))
+    k_top = (modes + problem.rigid_body_modes + 0.5) * math.pi / L * float(np.max(c)) / c
+    kh = (accuracy / 10.0 / 5e-6) ** (1.0 / _ORDER)
+    return _mesh(problem, _stations(problem), np.minimum(kh / k_top, L / 8.0)).x
+
+
+def mesh_layout(problem: RodProblem, x: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The stations of ``problem``, the node at each, and each element's segment, on the mesh
+    whose nodes are ``x`` [m] (a mode's ``x``: element e has nodes 3e to 3e + 3).
+
+    Returns
+    -------
+    stations : ndarray [m]
+    station_nodes : ndarray of int
+    element_segment : ndarray of int
+    """
+    stations = station_positions(problem)
+    nodes = np.array([int(np.argmin(np.abs(x - s))) for s in stations], dtype=int)
+    mid = 0.5 * (x[0:-1:3] + x[3::3])
+    segment = np.array([_segment_of(problem, float(p)) for p in mid], dtype=int)
+    return stations, nodes, segment
 
 
 @dataclass(frozen=True)

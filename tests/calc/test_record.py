@@ -364,3 +364,72 @@ def test_a_record_written_before_the_table_reads_writes_and_verifies_the_same() 
 def test_one_table_holds_every_stored_result() -> None:
     covered = {entry.parent for entry in record._RESULTS}
     assert covered == set(record.StoredResults.__dataclass_fields__)
+
+
+# --- tolerance bands -----------------------------------------------------------------------------
+
+TOLERANCED = CANTILEVER.replace(
+    "[check]",
+    'left_rotational_stiffness = ["20 kN*m/rad", "rigid"]\n\n[[mass]]\nat = "1 m"\n'
+    'mass = "0.5 kg"\n\n[tolerances]\n"member.material.youngs_modulus" = "5 %"\n'
+    '"mass[0].mass" = ["0.45 kg", "0.6 kg"]\n\n[check]',
+)
+
+
+@pytest.fixture(scope="module")
+def banded() -> tuple[str, object]:
+    return TOLERANCED, analyse(loads(TOLERANCED))
+
+
+def test_bands_and_sensitivities_are_stored_and_verified(banded: tuple[str, object]) -> None:
+    text, analysis = banded
+    out = _recorded(text, analysis)
+    stored = record.read_record(loads(out)).results.bands
+    assert stored is not None and len(stored) == len(analysis.bands.modes)
+    first = stored[0]
+    band = analysis.bands.modes[0]
+    assert (first.direction, first.mode) == (band.direction, band.number)
+    assert (first.low_hz, first.high_hz, first.method) == (band.low_hz, band.high_hz, band.method)
+    assert set(first.keys) == {t.key for t in analysis.bands.tolerances}
+    # the elasticity of E is 1/2 (f ~ sqrt(E), dimensional analysis), stored as computed
+    e = first.elasticities[first.keys.index("member.material.youngs_modulus")]
+    assert e == pytest.approx(0.5, abs=1e-6)
+    result = record.verify(loads(out))
+    assert result.passed, [c.key for c in result.failures]
+    keys = {c.key for c in result.comparisons}
+    leaves = ("low_hz", "high_hz", "method", "elasticities", "contributions_hz")
+    assert {f"results.bands[0].{leaf}" for leaf in leaves} <= keys
+
+
+@pytest.mark.parametrize(
+    ("leaf", "change", "key"),
+    [
+        ("high_hz", lambda f: f * (1 + 1e-4), "results.bands[0].high_hz"),
+        ("method", "first-order", "results.bands[0].method"),
+        ("elasticities", lambda v: [x + 0.01 for x in v], "results.bands[0].elasticities"),
+        ("contributions_hz", lambda v: [x * 1.01 for x in v], "results.bands[0].contributions_hz"),
+    ],
+)
+def test_a_tampered_band_fails(
+    banded: tuple[str, object], leaf: str, change: object, key: str
+) -> None:
+    text, analysis = banded
+    document = tomlkit.parse(_recorded(text, analysis))
+    row = document["record"]["results"]["bands"][0]
+    if leaf == "method" and row[leaf] == "first-order":
+        change = "corners"
+    row[leaf] = change(list(row[leaf]) if isinstance(row[leaf], list) else row[leaf]) if callable(
+        change
+    ) else change  # fmt: skip
+    result = record.verify(loads(tomlkit.dumps(document)))
+    assert result.inputs_unchanged and not result.passed
+    assert {c.key for c in result.failures} == {key}
+
+
+def test_a_malformed_band_names_its_key(banded: tuple[str, object]) -> None:
+    text, analysis = banded
+    document = tomlkit.parse(_recorded(text, analysis))
+    document["record"]["results"]["bands"][1]["keys"] = ["only one"]
+    with pytest.raises(InputError) as err:
+        record.read_record(loads(tomlkit.dumps(document)))
+    assert err.value.key.startswith("record.results.bands[1].")

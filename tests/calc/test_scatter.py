@@ -1,7 +1,8 @@
 """Checks of :mod:`calc.scatter`: studies over the tolerances.
 
 References: every batched sample is a finite-element solve of the same model as the full
-adaptive solver's (checked here against it, scipy's eigen solvers underneath); Latin-
+adaptive solver's (checked here against it, scipy's eigen solvers underneath), in every
+direction (both bending planes, torsion, axial motion: against calc.directions' full solves); Latin-
 hypercube strata (McKay, Beckman and Conover, Technometrics 21(2), 1979); the band of a
 monotonic input contains every sample (Rayleigh's principle, common practice).
 """
@@ -13,6 +14,7 @@ import pytest
 
 from beamtone.calc import fe, worksheet
 from beamtone.calc.band import band
+from beamtone.calc.directions import solve_directions
 from beamtone.calc.errors import InputError
 from beamtone.calc.excitation import Excitation, lines
 from beamtone.calc.scatter import PERCENTILES, histogram, sample_points, scatter
@@ -99,6 +101,9 @@ def test_engines_give_the_same_percentiles() -> None:
     cluster = scatter(design, tols, modes, 120, engine="dask", workers=2)
     assert np.array_equal(here.frequencies_hz, procs.frequencies_hz)
     assert np.array_equal(here.percentiles, cluster.percentiles)
+    for name in here.directions:  # every direction, the same bits
+        assert np.array_equal(here.percentiles_of(name), cluster.percentiles_of(name))
+        assert np.array_equal(here.sampled_hz[name], procs.sampled_hz[name], equal_nan=True)
     assert "dask" in cluster.engine and "process" in procs.engine
 
 
@@ -143,3 +148,87 @@ def test_bad_study_settings(kwargs: dict, key: str) -> None:
     assert err.value.key == key
     with pytest.raises(InputError):
         scatter(design, [], modes, 10)
+
+
+# --- every direction ---------------------------------------------------------------------------
+
+_BAR = """format = 1
+title = "flat bar"
+[member]
+length = "0.9 m"
+material = "steel"
+section = {{ shape = "rectangle", width = "{width}", depth = "40 mm" }}
+[supports]
+left = "clamped"
+right = "free"
+[[mass]]
+at = "0.9 m"
+mass = "1.5 kg"
+polar_inertia = "0.002 kg*m^2"
+[check]
+modes = 3
+"""
+
+
+def _bar(width: str, keys: tuple[str, ...]) -> tuple[Design, list[Tolerance]]:
+    design = Design.of(worksheet.loads(_BAR.format(width=width)))
+    return design, [_rel(design, k, 0.08) for k in keys]
+
+
+def _full_directions(design: Design, tols: list[Tolerance], point: np.ndarray, modes: int):
+    member = vary(design, {t.key: v for t, v in zip(tols, point, strict=True)}).solved_member()
+    return solve_directions(member, modes, checks=False)
+
+
+def test_a_flat_bar_whose_width_plane_governs() -> None:
+    # A 10 mm x 40 mm flat bar bends most easily in its width plane: that plane's first mode
+    # is about a quarter of the depth plane's (f ~ sqrt(I), I ~ d b^3 against b d^3; common
+    # practice).  Every direction's samples must match full solves of that point.
+    design, tols = _bar("10 mm", ("member.material.youngs_modulus", "member.section.width",
+                                  "mass[0].mass"))  # fmt: skip
+    result = scatter(design, tols, 3, 60, engine="local")
+    assert result.directions == ("depth", "width", "torsion", "axial")
+    assert result.same_as == {} and result.individually_solved == 0
+    for i in (0, 29, 59):
+        full = _full_directions(design, tols, result.points[i], 3)
+        for name in result.directions:
+            exact = [m.frequency_hz for m in full[name].modes]
+            assert np.allclose(result.sampled_hz[name][i], exact, rtol=1e-4), name
+    width, depth = result.percentiles_of("width"), result.percentiles_of("depth")
+    assert width[-1, 0] < depth[0, 0]  # the width plane governs in every sample
+    ratio = result.nominal_by_direction["width"][0] / result.nominal_by_direction["depth"][0]
+    assert ratio == pytest.approx(0.25, rel=0.03)  # shear lowers the deep plane a little
+    # The width plane's mode 1 is inside a band no depth-plane mode reaches: the chance counts it.
+    f1 = result.nominal_by_direction["width"][0]
+    shaker = Excitation("shaker", f1, f1, (1.0,), below=0.02, above=0.02)
+    chances = scatter(design, tols, 3, 60, engine="local", lines=lines(shaker))
+    depth_inside = np.any(
+        (chances.frequencies_hz >= chances.lines[0].band_low_hz)
+        & (chances.frequencies_hz <= chances.lines[0].band_high_hz)
+    )
+    assert not depth_inside and 0.0 < chances.lines[0].probability <= 1.0
+    assert chances.any_in_band == chances.lines[0].probability
+
+
+def test_a_square_section_has_both_planes_alike() -> None:
+    # Width = depth: the two bending planes are the same problem in every sample.
+    design, tols = _bar("40 mm", ("member.material.youngs_modulus", "mass[0].mass"))
+    result = scatter(design, tols, 3, 40, engine="local")
+    assert result.same_as == {"width": "depth"}
+    assert np.array_equal(result.percentiles_of("width"), result.percentiles_of("depth"))
+    full = _full_directions(design, tols, result.points[7], 3)
+    exact = [m.frequency_hz for m in full["width"].modes]
+    assert np.allclose(result.sampled_hz["width"][7], exact, rtol=1e-4)
+
+
+def test_a_direction_that_cannot_be_described_says_why() -> None:
+    # A section given by its properties without a torsion constant: no torsion, with the reason.
+    text = _BAR.format(width="10 mm").replace(
+        'section = { shape = "rectangle", width = "10 mm", depth = "40 mm" }',
+        'section = { shape = "properties", area = "400 mm^2", second_moment = "53333 mm^4", '
+        'second_moment_width = "3333 mm^4", depth = "40 mm" }',
+    )
+    design = Design.of(worksheet.loads(text))
+    result = scatter(design, [_rel(design, "mass[0].mass", 0.1)], 2, 10, engine="local")
+    assert "torsion" not in result.directions
+    assert dict(result.not_computed)["torsion"]

@@ -261,3 +261,38 @@ def test_two_variable_sweep_agrees_with_direct_solves() -> None:
         assert result.member_mass_kg[i, j] == pytest.approx(member.member_mass, rel=1e-9)
     with pytest.raises(InputError):
         sizing.sweep2(sheet, ("member.length", 0.5, 1, 3), ("member.length", 0.5, 1, 3))
+
+
+ROOT_SPRING = CANTILEVER.replace(
+    'right = "free"', 'right = "free"\nleft_rotational_stiffness = "2 kN*m/rad"'
+)
+
+
+def test_a_support_stiffness_is_sized_like_any_other_key() -> None:
+    # A cantilever with a root rotational spring k: R = k L / (EI) = 10 gives lambda_1 =
+    # 1.7227 (the exact frequency equation, solved in tests/calc/test_compliance.py, whose
+    # four digits are the commonly tabulated ones, from memory).  Sizing the spring for that
+    # frequency must find k = 10 EI / L.
+    from tests.calc.test_compliance import _lambda_1
+
+    sheet = loads(ROOT_SPRING)
+    EI = E * B * 0.01**3 / 12.0
+    m = RHO * B * 0.01
+    lam = _lambda_1(10.0)
+    target = lam**2 / (2 * math.pi * 0.8**2) * math.sqrt(EI / m)
+    key = "supports.left_rotational_stiffness"
+    result = sizing.size_for_target(sheet, key, 1000.0, 20000.0, target)
+    (s,) = result.solutions
+    assert s.value_si == pytest.approx(10.0 * EI / 0.8, rel=1e-4)
+    assert s.value.endswith(" kN*m/rad")  # written in the worksheet's unit
+    swept = sizing.sweep(sheet, key, 1000.0, 20000.0, 3)
+    assert swept.frequencies_hz[1][0] == pytest.approx(
+        fe.solve(sizing.variation(sheet, key).member(10500.0), 1).frequencies_hz[0], rel=1e-6
+    )
+
+
+def test_a_stiffness_range_to_rigid_is_not_sized() -> None:
+    text = ROOT_SPRING.replace('"2 kN*m/rad"', '["2 kN*m/rad", "rigid"]')
+    with pytest.raises(InputError) as info:
+        sizing.variation(loads(text), "supports.left_rotational_stiffness")
+    assert info.value.key == "--vary" and "written as one quantity" in info.value.message

@@ -84,3 +84,32 @@ def test_report_shows_the_bands_and_a_histogram(
     text = (tmp_path / "mast.md").read_text()
     assert "Tolerance bands" in text and "| samples | histogram |" in text
     assert "tolerances are the user's" in text
+
+
+def test_scatter_covers_every_direction(tmp_path, capsys: pytest.CaptureFixture[str]) -> None:  # noqa: ANN001
+    # The sensor mast with tolerances and a pump: a round tube, so the width plane equals the
+    # depth plane in every sample; torsion and axial motion are studied too.
+    from pathlib import Path
+
+    sheet = (
+        Path(__file__).resolve().parents[2] / "worksheets/excitations/sensor-mast-tolerances.toml"
+    )
+    data = json.loads(_run(capsys, "scatter", str(sheet), "--samples", "40", "--json").stdout)
+    names = [d["direction"] for d in data["directions"]]
+    assert names == ["depth", "width", "torsion", "axial"]
+    width = data["directions"][1]
+    assert width["same_as"] == "depth" and width["modes"] == [
+        {**m, "direction": "width"} for m in data["directions"][0]["modes"]
+    ]
+    torsion = data["directions"][2]["modes"][0]
+    assert torsion["percentiles_hz"]["p1"] <= torsion["percentiles_hz"]["p99"]
+    assert sum(torsion["histogram"]["counts"]) == 40
+    assert len(data["bands"]) == 2 and data["any_in_band"] == 0.0
+    text = _run(capsys, "scatter", str(sheet), "--samples", "40").stdout
+    assert "torsion" in text and "axial" in text and "width plane: the same" in text
+    assert "none of 40 samples (under 7.5 % at 95 % confidence)" in text
+    out = _run(capsys, "report", str(sheet), "-o", str(tmp_path / "m.md"), "--scatter", "40")
+    assert out.returncode == 0, out.stderr
+    report = (tmp_path / "m.md").read_text()
+    assert "| axial mode 1 [Hz] | samples | histogram |" in report
+    assert "chance of a mode of any direction in it" in report
