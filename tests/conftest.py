@@ -24,3 +24,25 @@ if "OPENBLAS_NUM_THREADS" not in os.environ:
 @pytest.fixture(autouse=True, scope="session")
 def _private_shape_cache(tmp_path_factory: pytest.TempPathFactory) -> None:
     os.environ["BEAMTONE_CACHE"] = str(Path(tmp_path_factory.mktemp("beamtone-cache")))
+
+
+# Files whose module-scoped fixtures are costly (each starts a batch of processes): with
+# ``-n``, one worker runs the whole file; split over two workers each batch would run twice.
+# (pytest-xdist's own ``xdist_group`` mark has no effect with this pytest: it renames the
+# items through an attribute that pytest 9 no longer reads.)
+ONE_WORKER = ("tests/cli/test_solve_cli.py",)
+
+
+def pytest_xdist_make_scheduler(config: pytest.Config, log: object) -> object:
+    """With ``-n`` (xdist's default ``--dist load``): every test goes to whichever worker is
+    free, one by one, except the tests of an ``ONE_WORKER`` file, which go together, first."""
+    if config.getvalue("dist") != "load":
+        return None  # a --dist the caller asked for
+    from xdist.scheduler import LoadScopeScheduling
+
+    class Scheduling(LoadScopeScheduling):
+        def _split_scope(self, nodeid: str) -> str:
+            path = nodeid.split("::", 1)[0]
+            return path if path in ONE_WORKER else nodeid
+
+    return Scheduling(config, log)
