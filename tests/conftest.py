@@ -33,6 +33,7 @@ def _private_shape_cache(tmp_path_factory: pytest.TempPathFactory) -> None:
 ONE_WORKER = ("tests/cli/test_solve_cli.py",)
 
 
+@pytest.hookimpl(optionalhook=True)  # a hook of pytest-xdist: absent with -p no:xdist
 def pytest_xdist_make_scheduler(config: pytest.Config, log: object) -> object:
     """With ``-n`` (xdist's default ``--dist load``): every test goes to whichever worker is
     free, one by one, except the tests of an ``ONE_WORKER`` file, which go together, first."""
