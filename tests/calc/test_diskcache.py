@@ -7,7 +7,7 @@ from pathlib import Path
 import pytest
 
 from beamtone.calc import units
-from tests.calc.test_units import _forget
+from tests.calc.sheets import forget_units
 
 
 def test_no_home_folder_means_no_cache(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> None:
@@ -18,8 +18,8 @@ def test_no_home_folder_means_no_cache(tmp_path: Path, monkeypatch: pytest.Monke
     monkeypatch.setenv("HOME", "")
     monkeypatch.setattr(diskcache.os.path, "expanduser", lambda text: text)
     monkeypatch.chdir(tmp_path)
-    _forget(monkeypatch)
+    forget_units()
     assert diskcache.folder() is None
     assert units.parse_quantity("2 in", units.LENGTH, "k") == pytest.approx(0.0508, rel=1e-15)
     assert list(tmp_path.iterdir()) == []
-    _forget(monkeypatch)
+    forget_units()

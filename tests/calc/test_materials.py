@@ -7,11 +7,11 @@ from __future__ import annotations
 import pytest
 
 from beamtone.calc.worksheet import loads
-from tests.calc.test_worksheet import _BASE, _edit
+from tests.calc.sheets import BASE, edit
 
 
 @pytest.mark.parametrize("name", ["steel", "Steel", "STEEL", " steel ", "structural steel"])
 def test_library_material_names_are_forgiving(name: str) -> None:
-    reference = loads(_BASE).member.segments[0].material
-    sheet = loads(_edit('material = "steel"', f'material = "{name}"'))
+    reference = loads(BASE).member.segments[0].material
+    sheet = loads(edit('material = "steel"', f'material = "{name}"'))
     assert sheet.member.segments[0].material == reference

@@ -12,7 +12,7 @@ import math
 import pytest
 
 from beamtone.calc.worksheet import loads
-from tests.calc.test_worksheet import _BASE_SECTION, IN, _close, _edit
+from tests.calc.sheets import BASE_SECTION, IN, close, edit
 
 # Hand formulas of elementary strength of materials (common practice).
 _SECTION_CASES = [
@@ -80,7 +80,7 @@ _SECTION_CASES = [
 def test_section_properties_match_hand_formulas(
     section: str, area: float, second_moment: float
 ) -> None:
-    text = _edit(_BASE_SECTION, f"section = {section}")
+    text = edit(BASE_SECTION, f"section = {section}")
     sec = loads(text).member.segments[0].section
-    assert _close(sec.area, area)
-    assert _close(sec.second_moment, second_moment)
+    assert close(sec.area, area)
+    assert close(sec.second_moment, second_moment)

@@ -17,6 +17,7 @@ import pytest
 
 from beamtone.calc import units
 from beamtone.calc.errors import InputError
+from tests.calc.sheets import forget_units
 from tests.processes import cold_solves
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -47,11 +48,6 @@ def fresh_cache(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Iterator[Pat
     units._parse_cached.cache_clear()
 
 
-def _forget(monkeypatch: pytest.MonkeyPatch) -> None:
-    units._parse_cached.cache_clear()
-    units._checked_units.cache_clear()
-
-
 @pytest.mark.parametrize(("text", "dim", "si"), CASES)
 def test_fresh_and_cached_values_equal_pint(
     text: str, dim: units.Dimension, si: str, fresh_cache: Path, monkeypatch: pytest.MonkeyPatch
@@ -62,7 +58,7 @@ def test_fresh_and_cached_values_equal_pint(
     expected = float(number) * float((1.0 * reference.parse_units(unit)).to(si).magnitude)
     first = units.parse_quantity(text, dim, "k")
     assert not fresh_cache.exists()  # nothing about units is kept on disk
-    _forget(monkeypatch)
+    forget_units()
     again = units.parse_quantity(text, dim, "k")
     assert first == again
     assert first == pytest.approx(expected, rel=1e-15)
@@ -73,13 +69,13 @@ def test_angular_frequencies(fresh_cache: Path, monkeypatch: pytest.MonkeyPatch)
         assert units.parse_frequency("1800 rpm", "k") == pytest.approx(30.0, rel=1e-15)
         assert units.parse_frequency("100 rad/s", "k") == pytest.approx(100 / (2 * math.pi))
         assert units.parse_frequency("30 Hz", "k") == 30.0
-        _forget(monkeypatch)
+        forget_units()
     assert not fresh_cache.exists()
 
 
 def test_conversion_from_si(fresh_cache: Path, monkeypatch: pytest.MonkeyPatch) -> None:
     first = units.convert_from_si(0.0254, "in")
-    _forget(monkeypatch)
+    forget_units()
     assert units.convert_from_si(0.0254, "in") == first == pytest.approx(1.0, rel=1e-15)
 
 
@@ -89,7 +85,7 @@ def test_refusals_are_never_cached(fresh_cache: Path, monkeypatch: pytest.Monkey
             units.parse_quantity("3 furlongz", units.LENGTH, "member.length")
         with pytest.raises(InputError, match="gives a weight"):
             units.parse_quantity("5 lbf", units.MASS, "mass[0].mass")
-        _forget(monkeypatch)
+        forget_units()
     assert not fresh_cache.exists()
 
 
@@ -101,7 +97,7 @@ def test_a_planted_unit_file_changes_nothing(
     entries = {"m|[length]|mm": bad, "base|mm": bad}
     data = {"format": 1, "version": pint.__version__, "entries": entries}
     fresh_cache.write_text(json.dumps(data), encoding="utf-8")
-    _forget(monkeypatch)
+    forget_units()
     assert units.parse_quantity("3 mm", units.LENGTH, "k") == 0.003
     assert units.convert_from_si(0.003, "mm") == pytest.approx(3.0, rel=1e-15)
 

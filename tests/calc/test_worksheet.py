@@ -33,22 +33,21 @@ from hypothesis import strategies as st
 from beamtone.calc.errors import InputError
 from beamtone.calc.model import Member
 from beamtone.calc.worksheet import MAX_BYTES, MAX_MODES, Worksheet, load, loads
+from tests.calc.sheets import BASE as _BASE
+from tests.calc.sheets import BASE_SECTION as _BASE_SECTION
+from tests.calc.sheets import CHECK as _CHECK
+from tests.calc.sheets import FT, IN, KSI, LB, LBF, PSI
+from tests.calc.sheets import HEAD as _HEAD
+from tests.calc.sheets import MASS as _MASS
+from tests.calc.sheets import MEMBER as _MEMBER
+from tests.calc.sheets import SPRING as _SPRING
+from tests.calc.sheets import SUPPORTS as _SUPPORTS
+from tests.calc.sheets import close as _close
+from tests.calc.sheets import edit as _edit
 from tests.fuzz import EXAMPLES as FUZZ_EXAMPLES
 
 ROOT = Path(__file__).resolve().parents[2]
 EXAMPLES = sorted((ROOT / "worksheets").glob("*.toml"))
-
-# Exact conversion factors (1959 international agreement; standard gravity of 1901).
-IN = 0.0254  # m
-FT = 12 * IN  # m
-LB = 0.45359237  # kg (pound-mass)
-LBF = LB * 9.80665  # N, = 4.4482216152605 N
-PSI = LBF / IN**2  # Pa
-KSI = 1000 * PSI  # Pa
-
-
-def _close(a: float, b: float, rel: float = 1e-12) -> bool:
-    return math.isclose(a, b, rel_tol=rel, abs_tol=0.0)
 
 
 def _error(text: str) -> InputError:
@@ -68,29 +67,13 @@ def _assert_well_formed(err: InputError, key: str) -> None:
     assert str(err) == msg
 
 
-# One good base worksheet; the bad inputs below are small edits of it.
-_BASE_SECTION = 'section = { shape = "round-tube", outside_diameter = "60 mm", wall = "4 mm" }'
-_HEAD = 'format = 1\ntitle = "Base worksheet"\n'
-_MEMBER = f'\n[member]\nlength = "2 m"\nmaterial = "steel"\n{_BASE_SECTION}\n'
-_SUPPORTS = (
-    '\n[supports]\nleft = "pinned"\nright = "pinned"\ninner = [{ at = "1 m", kind = "pinned" }]\n'
-)
-_MASS = '\n[[mass]]\nat = "0.5 m"\nmass = "3 kg"\n'
-_SPRING = '\n[[spring]]\nat = "1.5 m"\nstiffness = "40 kN/m"\n'
-_CHECK = "\n[check]\nmodes = 3\n"
-_BASE = _HEAD + _MEMBER + _SUPPORTS + _MASS + _SPRING + _CHECK
+# The bad inputs below are small edits of the base worksheet (tests/calc/sheets.py).
 _STEPPED = (
     _HEAD
     + '\n[member]\nmaterial = "steel"\nsection = { shape = "round", diameter = "30 mm" }\n'
     + '[[member.segment]]\nlength = "200 mm"\n[[member.segment]]\nlength = "300 mm"\n'
     + '\n[supports]\nleft = "clamped"\nright = "free"\n'
 )
-
-
-def _edit(old: str, new: str, base: str = _BASE) -> str:
-    """``base`` with its one occurrence of ``old`` replaced by ``new``."""
-    assert base.count(old) == 1, old
-    return base.replace(old, new)
 
 
 def _parts(**replace: str) -> str:

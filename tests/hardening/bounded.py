@@ -14,10 +14,16 @@ ROOT = Path(__file__).resolve().parents[2]
 
 def beamtone(
     *args: str, timeout: float = 30.0, stdin: object = None, cwd: Path | None = None,
-    env: dict[str, str] | None = None,
+    env: dict[str, str] | None = None, budget: float | None = None,
 ) -> subprocess.CompletedProcess[str]:  # fmt: skip
-    """``beamtone ARGS`` in a new process; the test fails (TimeoutExpired) past ``timeout`` s."""
+    """``beamtone ARGS`` in a new process; the test fails (TimeoutExpired) past ``timeout`` s.
+
+    ``budget`` [s], if given, replaces ``calc.symbolic.BUDGET_SECONDS`` in that process, so a
+    test reaches the end of the symbolic budget without waiting out the real one.
+    """
     code = "import sys; from beamtone.cli.main import main; sys.exit(main(sys.argv[1:]))"
+    if budget is not None:
+        code = f"from beamtone.calc import symbolic; symbolic.BUDGET_SECONDS = {budget!r}; {code}"
     return python(code, *args, timeout=timeout, stdin=stdin, cwd=cwd, env=env)
 
 

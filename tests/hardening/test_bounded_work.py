@@ -39,12 +39,15 @@ def _sheet(tmp_path: Path, shape: str) -> Path:
 
 
 def test_a_slow_formula_stops_at_the_budget_with_a_note(tmp_path: Path) -> None:
+    """The formula needs about 50 s of sympy; a 1 s budget (instead of the real
+    ``BUDGET_SECONDS``) reaches the same stop and note without waiting out the real budget."""
     sheet = _sheet(tmp_path, "1-cos(sin(sin(sin(sin(x/L)))))")
-    done = beamtone("solve", str(sheet), "--json", timeout=120,
+    done = beamtone("solve", str(sheet), "--json", timeout=120, budget=1.0,
                     env={"BEAMTONE_CACHE": str(tmp_path / "cache")})  # fmt: skip
     assert done.returncode == 0, done.stderr
     estimate = json.loads(done.stdout)["estimate"]
     assert any("did not finish with this formula" in note for note in estimate["notes"])
+    assert any("within 1 s of processor time" in note for note in estimate["notes"])
     assert estimate["formula"] is None and estimate["frequency_hz"] > 0.0
 
 

@@ -14,19 +14,50 @@ import functools
 from collections.abc import Callable, Coroutine
 from typing import Any, TypeVar
 
+from textual import events
+from textual.keys import _character_to_key
 from textual.pilot import Pilot
 from textual.screen import Screen
 from textual.widget import Widget
-from textual.widgets import Input
+from textual.widgets import Button, Input
 
 from beamtone.tui.app import BeamtoneApp
 from beamtone.tui.widgets.results import ResultsView
 
-__all__ = ["TIMEOUT", "click", "field_of", "on_top", "settled", "sync", "type_into", "work_done"]
+__all__ = [
+    "BAR",
+    "TIMEOUT",
+    "click",
+    "edit",
+    "field_of",
+    "on_top",
+    "press",
+    "settled",
+    "sync",
+    "type_into",
+    "work_done",
+]
 
 TIMEOUT = 120.0  # seconds before a wait counts as a hang (a loaded 2-core machine is slow)
 
 S = TypeVar("S", bound=Screen)
+
+# The worksheet most app tests open (the ``bar`` fixture of conftest.py writes it): a clamped-free
+# steel bar whose fundamental test_app.py compares with the handbook's (Blevins 1979, Table 8-1).
+BAR = """\
+format = 1
+title = "test bar"   # comment kept on save
+
+[member]
+length = "1 m"
+theory = "euler-bernoulli"   # the handbook's theory (Blevins' table): compared below
+material = { youngs_modulus = "200 GPa", density = "7850 kg/m^3" }
+section = { shape = "rectangle", width = "40 mm", depth = "8 mm" }
+
+[supports]
+left = "clamped"
+right = "free"
+"""
 
 
 def sync(test: Callable[..., Coroutine[Any, Any, None]]) -> Callable[..., None]:
@@ -101,12 +132,28 @@ async def click(pilot: Pilot, widget: Widget) -> None:
 
 
 async def type_into(pilot: Pilot, field: Input, text: str) -> None:
-    """Click ``field``, clear it and type ``text`` key by key."""
+    """Click ``field``, clear it and type ``text`` key by key.
+
+    The keys go in one burst, as from a fast typist: each is a key event through the app, as
+    from the terminal, and the test waits until the field holds ``text``. (``pilot.press``
+    instead waits for the whole process to idle after every key, twice: tens of milliseconds a
+    key, and up to a second while a solve runs in a worker.)
+    """
     await click(pilot, field)
     assert field.has_focus, f"{field!r} did not take the focus"
-    await pilot.press("end", "ctrl+u", *text)
-    await pilot.pause()  # flush
-    assert field.value == text, (field.value, text)
+    await pilot.press("end", "ctrl+u")
+    app = pilot.app
+    for character in text:
+        app.post_message(events.Key(_character_to_key(character), character))
+
+    async def typed() -> None:
+        while field.value != text:
+            await pilot.pause()  # flush: the keys reach the field
+
+    try:
+        await asyncio.wait_for(typed(), TIMEOUT)
+    except TimeoutError:
+        raise AssertionError(f"typed {text!r}, the field holds {field.value!r}") from None
 
 
 def field_of(app: BeamtoneApp, key: str) -> Input:
@@ -122,3 +169,14 @@ async def work_done(pilot: Pilot, app: BeamtoneApp) -> None:
     await pilot.pause()  # flush: the handler has started its worker
     await asyncio.wait_for(app.workers.wait_for_complete(), TIMEOUT)
     await pilot.pause()  # flush: what the worker handed back to the app is shown
+
+
+async def press(pilot: Pilot, app: BeamtoneApp, selector: str) -> None:
+    """Click a button of the current screen (scrolled into view first)."""
+    await click(pilot, app.screen.query_one(selector, Button))
+
+
+async def edit(pilot: Pilot, app: BeamtoneApp, key: str, text: str) -> ResultsView:
+    """Type ``text`` into the field of ``key``; wait for the results of the edited worksheet."""
+    await type_into(pilot, field_of(app, key), text)
+    return await settled(pilot, app, until=lambda: app.document.get(key) == text)

@@ -6,7 +6,7 @@ import math
 from pathlib import Path
 
 import pytest
-from textual.widgets import Button, Input, Select
+from textual.widgets import Input, Select
 
 from beamtone.calc.sizing import quantity_keys
 from beamtone.calc.worksheet import load
@@ -16,50 +16,26 @@ from beamtone.tui.document import TEMPLATES, Document
 from beamtone.tui.screens.sizing import SizingScreen
 from beamtone.tui.screens.workbench import Workbench
 from beamtone.tui.widgets.quantity import QuantityField
-from beamtone.tui.widgets.results import ResultsView
-from tests.tui.driving import click, field_of, on_top, settled, sync, type_into, work_done
+from tests.tui.driving import (
+    BAR,
+    edit,
+    field_of,
+    on_top,
+    press,
+    settled,
+    sync,
+    type_into,
+    work_done,
+)
 
 ROOT = Path(__file__).resolve().parents[2]
 LAMBDA1 = 1.87510407  # clamped-free (R. D. Blevins 1979, Table 8-1)
-
-BAR = """\
-format = 1
-title = "test bar"   # comment kept on save
-
-[member]
-length = "1 m"
-theory = "euler-bernoulli"   # the handbook's theory (Blevins' table): compared below
-material = { youngs_modulus = "200 GPa", density = "7850 kg/m^3" }
-section = { shape = "rectangle", width = "40 mm", depth = "8 mm" }
-
-[supports]
-left = "clamped"
-right = "free"
-"""
-
-
-@pytest.fixture
-def bar(tmp_path: Path) -> Path:
-    path = tmp_path / "bar.toml"
-    path.write_text(BAR)
-    return path
 
 
 def bar_fundamental(length: float) -> float:
     EI = 200e9 * 0.04 * 0.008**3 / 12
     m = 7850 * 0.04 * 0.008
     return LAMBDA1**2 / (2 * math.pi * length**2) * math.sqrt(EI / m)
-
-
-async def press(pilot, app: BeamtoneApp, selector: str) -> None:  # noqa: ANN001
-    """Click a button of the current screen (scrolled into view first)."""
-    await click(pilot, app.screen.query_one(selector, Button))
-
-
-async def edit(pilot, app: BeamtoneApp, key: str, text: str) -> ResultsView:  # noqa: ANN001
-    """Type ``text`` into the field of ``key``; wait for the results of the edited worksheet."""
-    await type_into(pilot, field_of(app, key), text)
-    return await settled(pilot, app, until=lambda: app.document.get(key) == text)
 
 
 @sync

@@ -18,15 +18,17 @@ from beamtone.tui.screens.groups import GroupsScreen
 from beamtone.tui.screens.workbench import Workbench
 from beamtone.tui.widgets.freqmap import FrequencyMap
 from beamtone.tui.widgets.quantity import QuantityField
-from tests.tui.driving import field_of, on_top, settled, sync, type_into, work_done
-from tests.tui.test_app import BAR, edit, press
-
-
-@pytest.fixture
-def bar(tmp_path: Path) -> Path:
-    path = tmp_path / "bar.toml"
-    path.write_text(BAR)
-    return path
+from tests.tui.driving import (
+    BAR,
+    edit,
+    field_of,
+    on_top,
+    press,
+    settled,
+    sync,
+    type_into,
+    work_done,
+)
 
 
 def quantity(app: BeamtoneApp, key: str) -> QuantityField:

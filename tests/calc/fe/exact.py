@@ -71,7 +71,21 @@ def _transfer(EI: mp.mpf, m: mp.mpf, P: mp.mpf, omega: mp.mpf, h: mp.mpf) -> mp.
         ]
         return mp.matrix(rows)
 
-    return state(h) * mp.inverse(state(mp.mpf(0)))
+    # The inverse of state(0) in closed form: (w, EI w'') involve only the cosh and cos
+    # coefficients, (w', S) only the sinh and sin ones, each a 2x2 system (alpha, beta > 0 for
+    # omega > 0).  The matrix mpmath's LU inverse gives, at half the cost of a root scan.
+    a2, b2 = alpha**2, beta**2
+    s = EI * (a2 + b2)
+    d = -s * alpha * beta  # the determinant of the (w', S) block
+    inverse = mp.matrix(
+        [
+            [EI * b2 / s, 0, 1 / s, 0],
+            [0, (-EI * beta**3 - P * beta) / d, 0, -beta / d],
+            [EI * a2 / s, 0, -1 / s, 0],
+            [0, -(EI * alpha**3 - P * alpha) / d, 0, alpha / d],
+        ]
+    )
+    return state(h) * inverse
 
 
 def determinant(member: Member, omega: float) -> mp.mpf:
