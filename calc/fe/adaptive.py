@@ -486,6 +486,8 @@ def _ritz(
         Per Ritz value, the largest form between its computed vector and one of the two
         highest computed modes before the step, over sqrt(lambda_i lambda_j) [-].
     """
+    if vecs.shape[1] == 0:  # no flexible mode on this mesh (the caller says what is wrong)
+        return np.zeros(0), vecs, np.zeros(0)
     energy = strain_energy_matrix(member, mesh, system, vecs)
     gram = vecs.T @ (system.M @ vecs)
     gram = 0.5 * (gram + gram.T)
