@@ -645,7 +645,15 @@ def _assumptions(analysis: Analysis) -> tuple[Block, ...]:
         )
     items.append(_DEPTH_PRACTICE + "; where a mode breaks this, the warnings say so.")
     items += directions_report.assumptions(analysis)
-    return (Bullets(tuple(items)),)
+    fe = analysis.modes
+    return (
+        Bullets(tuple(items)),
+        Paragraph(
+            "What the numbers leave out: the finite-element result does not include the "
+            f"following, and its estimated errors do not cover them ({fe.estimate_meaning}):"
+        ),
+        Bullets(tuple(fe.assumptions)),
+    )
 
 
 # methods
@@ -797,14 +805,16 @@ def _results(analysis: Analysis) -> tuple[Block, ...]:
             f"Soundness of the eigen solution: mass orthogonality {fe.mass_orthogonality:.1e}, "
             f"stiffness orthogonality {fe.stiffness_orthogonality:.1e}; stiffness matrix "
             f"{fe.stiffness_definiteness}, mass matrix {fe.mass_definiteness}."
+            + ("" if fe.mode_count is None else f" Independent {fe.mode_count.describe()}.")
         ),
+        Paragraph(f"The estimated relative error: {fe.estimate_meaning}."),
         Table(
             ("estimate", "value"),
             (
                 ("Rayleigh (upper bound on f1)", f"{number(est.frequency_hz)} Hz"),
                 (
                     "Dunkerley (lower bound on f1)",
-                    f"{number(low.frequency_hz)} Hz"
+                    f"{number(low.frequency_hz)} Hz" + (f" ({low.note})" if low.note else "")
                     if low.frequency_hz is not None
                     else f"none: {low.reason}",
                 ),
@@ -908,6 +918,10 @@ def _checks(analysis: Analysis, verification: Verification | None) -> tuple[Bloc
         )
     )
     blocks.append(Alert(br.message) if not br.inside else Paragraph(f"Bracket: {br.message}."))
+    status = f"Bracket status: {br.status}"
+    if br.lower_reason:
+        status += f"; no lower bound is given: {br.lower_reason}"
+    blocks.append(Paragraph(status + "."))
     if verification is not None:
         blocks.append(Paragraph(f"Stored record: {verification.message}."))
         if not verification.inputs_unchanged:

@@ -71,6 +71,9 @@ class System:
     tethers: tuple[Tether, ...] = ()
     spring_lambda: float = 0.0
     """``T`` maps all DOFs (scaled) to the physical nodal values where nodes are tethered."""
+    typical_lambda: float = 0.0
+    """The median element's largest eigenvalue [rad^2/s^2] (the round-off of the vectors
+    follows the bulk of the elements, not one short element; see ``fe.adaptive``)."""
     shear: tuple[np.ndarray, np.ndarray] | None = None
     """Timoshenko theory: each element's shear parameter phi and rotary inertia per length
     (:func:`calc.fe.timoshenko.element_shear`); None for Euler-Bernoulli."""
@@ -347,6 +350,8 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
     if shear is not None:  # the Timoshenko element's own, computed (see largest_element_...)
         element_bound = largest_element_eigenvalues(ke, ge, me, P)
     lam_elem = float(np.max(np.where(tethered, 0.0, element_bound)))
+    untethered = element_bound[~tethered]
+    lam_typical = float(np.median(untethered)) if untethered.size else lam_elem
     on_diagonal = pk[0] == pk[1]
     diag_k = np.bincount(pk[0][on_diagonal], weights=pk[2][on_diagonal], minlength=n)
     mass_diag = M_band[0]
@@ -363,6 +368,7 @@ def assemble(member: Member, mesh: Mesh, geometric: bool = False) -> System:
         total_mass=total_mass,
         lambda_max_bound=lam_elem + lam_spring,
         spring_lambda=lam_spring,
+        typical_lambda=lam_typical,
         T=T,
         tethers=tethers,
         shear=shear,

@@ -44,6 +44,17 @@ class Solution:
     mesh : Mesh
     solver : str
         The name the eigen solver gave.
+    coupling : ndarray, optional
+        Per mode, the largest strain-energy form between its computed vector and one of the
+        two highest computed modes before the Rayleigh-Ritz step, over sqrt(lambda_i
+        lambda_j) [-]: what the eigen solver's round-off mixed into it (zero for an exact
+        solve), standing for the mixing with the modes not computed.
+    raw_lam : ndarray, optional
+        The eigen solver's own eigenvalues of the assembled matrices for the same modes,
+        ascending [rad^2/s^2] (what an inertia count of those matrices is compared with).
+    next_lam : float
+        The next flexible eigenvalue above the last of ``lam`` [rad^2/s^2] (inf where the
+        mesh has none): the gap to the modes that were not computed.
     """
 
     lam: np.ndarray
@@ -51,6 +62,9 @@ class Solution:
     system: System
     mesh: Mesh
     solver: str
+    coupling: np.ndarray | None = None
+    next_lam: float = math.inf
+    raw_lam: np.ndarray | None = None
 
     @property
     def omega(self) -> np.ndarray:

@@ -90,7 +90,11 @@ def count_below(K: scipy.sparse.spmatrix, M: scipy.sparse.spmatrix, sigma: float
 
 
 def check_count(
-    K: scipy.sparse.spmatrix, M: scipy.sparse.spmatrix, rigid: int, lam: np.ndarray
+    K: scipy.sparse.spmatrix,
+    M: scipy.sparse.spmatrix,
+    rigid: int,
+    lam: np.ndarray,
+    below: float = _BELOW,
 ) -> ModeCount:
     """Count the modes below the highest of ``lam`` and compare with those found.
 
@@ -101,13 +105,18 @@ def check_count(
     rigid : int
         Rigid-body modes (eigenvalue zero).
     lam : ndarray
-        The flexible eigenvalues found, ascending [rad^2/s^2].
+        The flexible eigenvalues the eigen solver found for these matrices, ascending
+        [rad^2/s^2].
+    below : float
+        How far below the highest of ``lam`` the count is taken, relative [-]: at least the
+        matrices' own round-off at those eigenvalues, so that the factorization and the eigen
+        solver, each exact for a matrix that close, agree.
 
     Returns
     -------
     ModeCount
     """
-    sigma = float(lam[-1]) * (1.0 - _BELOW)
+    sigma = float(lam[-1]) * (1.0 - max(below, _BELOW))
     for _ in range(len(lam)):
         close = np.abs(lam - sigma) <= _CLEAR * float(lam[-1])
         if not np.any(close):

@@ -35,6 +35,8 @@ __all__ = [
     "segment_properties",
     "element_quotient",
     "geometric_quotient",
+    "element_form",
+    "geometric_form",
     "scaled_element_matrices",
     "element_matrices",
 ]
@@ -186,6 +188,28 @@ def geometric_quotient(d: np.ndarray, a: np.ndarray, b: np.ndarray, phi: np.ndar
     s = a + b
     t = a - b
     return d * d + s * s / (20.0 * (1.0 + phi) ** 2) + t * t / 12.0
+
+
+def element_form(
+    au: np.ndarray, bu: np.ndarray, av: np.ndarray, bv: np.ndarray, phi: np.ndarray
+) -> np.ndarray:
+    """The bilinear form of :func:`element_quotient` between two motions [-]."""
+    return 3.0 * (au + bu) * (av + bv) / (1.0 + phi) + (au - bu) * (av - bv)
+
+
+def geometric_form(
+    du: np.ndarray,
+    au: np.ndarray,
+    bu: np.ndarray,
+    dv: np.ndarray,
+    av: np.ndarray,
+    bv: np.ndarray,
+    phi: np.ndarray,
+) -> np.ndarray:
+    """The bilinear form of :func:`geometric_quotient` between two motions [-]."""
+    return (
+        du * dv + (au + bu) * (av + bv) / (20.0 * (1.0 + phi) ** 2) + (au - bu) * (av - bv) / 12.0
+    )
 
 
 def element_matrices(

@@ -255,3 +255,51 @@ def test_inputs_in_si(case: tuple[Analysis, report.Report]) -> None:
     for i, s in enumerate(member.springs):
         if s.stiffness:
             assert si[f"spring[{i}].stiffness"] == f"{number(s.stiffness)} N/m"
+
+
+# A free-pinned steel bar in compression and one in tension: scenarios of our own.
+_HONEST = """
+format = 1
+title = "Bar with an end prop, {force}"
+[member]
+theory = "euler-bernoulli"
+length = "1.5 m"
+material = "steel"
+section = {{ shape = "rectangle", width = "40 mm", depth = "10 mm" }}
+axial_force = "{force}"
+[supports]
+left = "free"
+right = "pinned"
+[[spring]]
+at = "0 m"
+stiffness = "2e4 N/m"
+"""
+
+
+@pytest.mark.parametrize("force", ["-200 N", "300 N"])
+def test_report_says_what_the_numbers_leave_out_and_which_bounds_hold(force: str) -> None:
+    """The report shows what the command line's text and JSON show about honesty (issue 15):
+    the model assumptions the estimate leaves out, the independent mode count, the bracket's
+    status with the reason a lower bound is withheld, and Dunkerley's note."""
+    analysis = analyse(loads(_HONEST.format(force=force)))
+    doc = report.build(analysis, caution=CAUTION)
+    fe = analysis.modes
+    for text in (doc.markdown(None), _text_of(doc.html())):
+        flat = " ".join(text.split())
+        assert "What the numbers leave out" in flat
+        for line in fe.assumptions:
+            assert " ".join(line.split()) in flat, line
+        assert " ".join(fe.estimate_meaning.split()) in flat
+        assert fe.mode_count is not None and fe.mode_count.ok
+        assert " ".join(fe.mode_count.describe().split()) in flat
+        assert "none skipped" in flat
+        br, low = analysis.bracket, analysis.lower_bound
+        assert f"Bracket status: {br.status}" in flat
+        if force.startswith("-"):  # compression: Dunkerley's sum is no bound
+            assert low.frequency_hz is None and br.status == "upper bound only"
+            assert br.lower_reason and " ".join(br.lower_reason.split()) in flat
+            assert "no lower bound is given" in flat
+        else:  # tension: the bound of the member without it, and the note says so
+            assert low.frequency_hz is not None and low.note
+            assert br.status == "bracketed"
+            assert " ".join(low.note.split()) in flat
