@@ -522,13 +522,14 @@ async def _edit_latencies(pilot: Any, bench: Any, length: float, edits: int) -> 
 
 def _app_first_results(path: str) -> None:
     """In a process of its own: start the app headless on ``path`` as ``beamtone FILE`` does
-    (the file's first solve started before the interface is imported), stop at its first
+    (the file's first solve started before the interface is imported, in a process of its
+    own where a processor is spare), stop at its first
     results and print the moment they were on screen (``time.monotonic``, what ``--app-start``
     runs: the benchmark counts from before it started the process)."""
     from beamtone.tui.document import TEMPLATES, Document
-    from beamtone.tui.early import EarlySolve
+    from beamtone.tui.early import start
 
-    first = EarlySolve(Document.open_or_new(path, TEMPLATES[0]).plain())
+    first = start(Document.open_or_new(path, TEMPLATES[0]).plain())
     from beamtone.tui.app import BeamtoneApp
 
     async def scenario() -> None:

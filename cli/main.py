@@ -311,12 +311,12 @@ def _app(path: str | None) -> int:
             "'beamtone solve FILE' (see 'beamtone --help')\n"
         )
         return EXIT_INPUT
-    from beamtone.tui.early import EarlySolve
+    from beamtone.tui.early import start
 
-    # an existing file's first solve starts now, in a process of its own, while the app's
-    # interface is imported and drawn
+    # an existing file's first solve starts now, in a process of its own where a processor
+    # is spare, while the app's interface is imported and drawn
     exists = document is not None and document.path is not None and document.path.exists()
-    first = EarlySolve(document.plain()) if exists else None
+    first = start(document.plain() if document is not None and exists else None)
     from beamtone.tui.app import run
 
     run(path, first)

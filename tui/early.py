@@ -13,6 +13,8 @@ read from disk but the modules. Whatever goes wrong with it (it cannot start, it
 answer cannot be read, the worksheet changed meanwhile) costs only time: :meth:`outcome`
 returns None and the app solves in its own process.
 
+The child is started only where a processor is spare (:func:`spare_processor`): on a busy
+machine the two processes take turns and the child's own start-up costs more than it saves.
 This module imports no textual, numpy, scipy or pint.
 """
 
@@ -25,7 +27,27 @@ import sys
 import threading
 from typing import Any
 
-__all__ = ["EarlySolve", "main"]
+__all__ = ["EarlySolve", "main", "spare_processor", "start"]
+
+
+def spare_processor() -> bool:
+    """Whether a processor is idle enough to solve beside the interface (the load average
+    over the last minute leaves one free). On a busy machine the two processes only take
+    turns, and the child's own start-up makes the first results later, not sooner."""
+    try:
+        load = os.getloadavg()[0]
+    except OSError:  # pragma: no cover - no load average on this system
+        return False
+    return load <= (os.cpu_count() or 1) - 1
+
+
+def start(data: dict[str, Any] | None) -> EarlySolve | None:
+    """The first solve of ``data`` in a process of its own where a processor is spare
+    (:func:`spare_processor`), else None (the app solves in its worker). ``data``: an
+    existing worksheet file's plain data; None starts nothing."""
+    if data is None or not spare_processor():
+        return None
+    return EarlySolve(data)
 
 
 class EarlySolve:

@@ -127,3 +127,22 @@ async def test_typing_a_logarithmic_unit_gives_an_inline_error(bar: Path) -> Non
         assert view.analysis.modes.modes[0].frequency_hz == pytest.approx(
             bar_fundamental(1.0), rel=1e-6
         )
+
+
+def test_the_child_starts_only_where_a_processor_is_spare(
+    bar: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """On a busy machine the two processes would only take turns: the app solves in its
+    worker instead (the load average leaves no processor free)."""
+    from beamtone.tui import early
+
+    data = Document.open(bar).plain()
+    assert early.start(None) is None
+    monkeypatch.setattr(early.os, "cpu_count", lambda: 2)
+    monkeypatch.setattr(early.os, "getloadavg", lambda: (5.0, 5.0, 5.0))
+    assert early.start(data) is None
+    monkeypatch.setattr(early.os, "getloadavg", lambda: (0.3, 0.3, 0.3))
+    first = early.start(data)
+    assert isinstance(first, EarlySolve)
+    first.cancel()
+    assert first.outcome(data) is None  # stopped: the app would solve in its worker
