@@ -186,6 +186,12 @@ class TextField(Horizontal):
             self._posted = event.value
             self.post_message(QuantityField.Edited(self, self.key, event.value))  # type: ignore[arg-type]
 
+    @on(Input.Blurred)
+    def _left(self, event: Input.Blurred) -> None:
+        """Show a long text from its start again once the focus has left it (a title
+        scrolled to its end read as if cut)."""
+        event.input.cursor_position = 0
+
     def recheck(self) -> None:
         """Drop a mark of an earlier solve."""
         self.remove_class("-invalid")
