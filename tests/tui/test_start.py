@@ -81,6 +81,19 @@ async def test_a_first_solve_of_other_inputs_is_not_shown(bar: Path, tmp_path: P
         assert f == pytest.approx(bar_fundamental(1.0), rel=1e-6)
 
 
+@sync
+async def test_closing_as_the_first_results_arrive(bar: Path) -> None:
+    """Found with the start benchmark: closing the app just as its first results were shown,
+    while the rest of the form was being built, ended in a traceback (exit 1)."""
+    app = BeamtoneApp(bar)
+    async with app.run_test(size=(80, 24)) as pilot:
+        bench = app.workbench
+        while not bench.solves:  # polled as a user's eye would: the results on screen
+            await pilot.pause(0.002)
+    # leaving run_test closes the app while the rest of the form is built: no error raised
+    assert app.return_code in (0, None)
+
+
 @pytest.mark.parametrize("unit", ["dB", "decade"])
 @pytest.mark.parametrize("early", [True, False], ids=["own-process", "in-app"])
 @sync

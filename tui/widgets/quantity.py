@@ -95,7 +95,10 @@ class QuantityField(Vertical):
             self.post_message(self.Edited(self, self.key, event.value))
 
     def _check(self, text: str) -> None:
-        si = self.query_one(".si", Static)
+        found = self.query(".si")
+        if not found:  # the app closed while the form was being built: nothing to show
+            return
+        si = found.first(Static)
         if self.optional and not text.strip():
             self.remove_class("-invalid")
             si.update("none")
@@ -146,6 +149,8 @@ class QuantityField(Vertical):
 
     def show_error(self, message: str) -> None:
         """Mark the field with an error found when the worksheet was solved."""
+        if not self.query(".si"):  # the app closed while the form was being built
+            return
         self.add_class("-invalid")
         self.query_one(".si", Static).update("✗")
         self.query_one(".problem", Static).update(Text(message))
