@@ -294,13 +294,14 @@ def _app(path: str | None) -> int:
     """Open the terminal app, on a worksheet file or (without one) on a new one."""
     from beamtone.calc.errors import InputError
 
+    document = None
     if path is not None:
         from beamtone.tui.document import TEMPLATES, Document
 
         try:
             # refuse a file that cannot be read as TOML before the screen is taken over; a
             # worksheet with entries to fix opens with them marked, a new path starts one
-            Document.open_or_new(path, TEMPLATES[0])
+            document = Document.open_or_new(path, TEMPLATES[0])
         except InputError as exc:
             sys.stderr.write(f"beamtone: {exc.message}\n")
             return EXIT_INPUT
@@ -310,9 +311,15 @@ def _app(path: str | None) -> int:
             "'beamtone solve FILE' (see 'beamtone --help')\n"
         )
         return EXIT_INPUT
+    from beamtone.tui.early import start
+
+    # an existing file's first solve starts now, in a process of its own where a processor
+    # is spare, while the app's interface is imported and drawn
+    exists = document is not None and document.path is not None and document.path.exists()
+    first = start(document.plain() if document is not None and exists else None)
     from beamtone.tui.app import run
 
-    run(path)
+    run(path, first)
     return EXIT_OK
 
 

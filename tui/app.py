@@ -17,6 +17,7 @@ from beamtone.tui.dialogs.choices import (
     UnsavedDialog,
 )
 from beamtone.tui.document import TEMPLATES, Document, Template
+from beamtone.tui.early import EarlySolve
 from beamtone.tui.screens.groups import GroupsScreen
 from beamtone.tui.screens.sizing import SizingScreen
 from beamtone.tui.screens.workbench import Workbench
@@ -32,9 +33,10 @@ class BeamtoneApp(App[None]):
     TITLE = "beamtone"
     BINDINGS = [Binding("ctrl+q", "quit_safely", "quit", priority=True, show=False)]
 
-    def __init__(self, path: str | Path | None = None) -> None:
+    def __init__(self, path: str | Path | None = None, first: EarlySolve | None = None) -> None:
         super().__init__()
         self.start_path = Path(path) if path is not None else None
+        self._first = first  # the worksheet's first solve, already running (see tui.early)
         self.document = Document.from_template(TEMPLATES[0])
         self.ask_template = path is None
 
@@ -47,7 +49,10 @@ class BeamtoneApp(App[None]):
                 problem = exc.message
             # a path with no file yet: a new worksheet that saves there
             self.ask_template = not self.start_path.expanduser().exists()
-        self.push_screen(Workbench(self.document))
+        first = None if self.ask_template else self._first
+        if self._first is not None and first is None:
+            self._first.cancel()
+        self.push_screen(Workbench(self.document, first))
         if self.ask_template:
             self.push_screen(TemplateDialog(), self._template_chosen)
         if problem:
@@ -224,6 +229,7 @@ class BeamtoneApp(App[None]):
         self.push_screen(UnsavedDialog(what), answered)
 
 
-def run(path: str | None = None) -> None:
-    """Run the app on a worksheet file, or on a new one from a template."""
-    BeamtoneApp(path).run()
+def run(path: str | None = None, first: EarlySolve | None = None) -> None:
+    """Run the app on a worksheet file, or on a new one from a template (``first``: the
+    file's first solve, started before this module was imported)."""
+    BeamtoneApp(path, first).run()

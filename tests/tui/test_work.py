@@ -100,7 +100,13 @@ async def test_beamtone_file_opens_a_worksheet_with_a_bad_value(tmp_path: Path) 
     import beamtone.tui.app as app_module
 
     original = app_module.run
-    app_module.run = started.append  # type: ignore[assignment]
+
+    def run(path: str | None, first: object = None) -> None:  # the app, not started
+        started.append(path)
+        if first is not None:
+            first.cancel()  # type: ignore[attr-defined]
+
+    app_module.run = run  # type: ignore[assignment]
     try:
         os.environ.setdefault("TERM", "xterm")
         status_bad = cli._app(str(bad))  # noqa: SLF001

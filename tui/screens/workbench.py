@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import asyncio
+import threading
+from typing import TYPE_CHECKING, Any
 
 from textual import on, work
 from textual.app import ComposeResult
@@ -14,17 +16,35 @@ from textual.widgets import Footer, Header
 
 from beamtone.calc.errors import InputError
 from beamtone.tui.document import Document
+from beamtone.tui.early import EarlySolve
+from beamtone.tui.shown import Shown
 from beamtone.tui.widgets.debounce import DEBOUNCE
 from beamtone.tui.widgets.form import WorksheetForm
-from beamtone.tui.widgets.modeplot import ModePlot, PlotData
+from beamtone.tui.widgets.modeplot import ModePlot
 from beamtone.tui.widgets.quantity import QuantityField
 from beamtone.tui.widgets.results import ResultsView
 
+if TYPE_CHECKING:  # pragma: no cover
+    from beamtone.calc.analysis import Analysis
+
 __all__ = ["Workbench"]
+
+# Held while the unit registry is built: the first solve's worker builds it after the results
+# are shown, and a solve of a quick first edit must not build a second one beside it.
+_UNITS = threading.Lock()
 
 
 class Workbench(Screen[None]):
-    """Edit a worksheet and see its results."""
+    """Edit a worksheet and see its results.
+
+    Parameters
+    ----------
+    document : Document
+        The worksheet being edited.
+    first : EarlySolve, optional
+        The first solve of ``document``, already running in a process of its own (``beamtone
+        FILE`` starts it before the interface is imported); its answer is shown first.
+    """
 
     BINDINGS = [
         Binding("ctrl+s", "app.save", "save"),
@@ -37,9 +57,11 @@ class Workbench(Screen[None]):
         Binding("ctrl+q", "app.quit_safely", "quit"),
     ]
 
-    def __init__(self, document: Document) -> None:
+    def __init__(self, document: Document, first: EarlySolve | None = None) -> None:
         super().__init__()
         self.document = document
+        self._first = first
+        self._last_error: InputError | None = None  # the shown solve's error, if it failed
         # pending: a solve is scheduled or running for the latest inputs
         self._timer: Timer | None = None
         self._version = 0
@@ -57,15 +79,16 @@ class Workbench(Screen[None]):
 
     def compose(self) -> ComposeResult:
         # the first solve starts before the form is built: the worker imports the numerical
-        # libraries and builds the unit registry while textual lays out the screen
+        # libraries (or waits for the process already solving) while textual lays out the
+        # screen; the unit registry is built after the first results are shown
         self._version += 1
         self.pending = True
         self._solving = self.document.plain()
-        self._early: tuple[str, object, int] | None = None
-        self._run(self._solving, self._version)
+        self._early: list[tuple[Any, tuple]] = []  # outcomes that came before on_mount
+        self._run(self._solving, self._version, self._first)
         yield Header()
         with Horizontal(id="split"):
-            yield WorksheetForm(self.document, id="form")
+            yield WorksheetForm(self.document, id="form", lazy=True)
             with VerticalScroll(id="results-column"):
                 yield ModePlot(id="plot")
                 yield ResultsView(id="results")
@@ -74,10 +97,20 @@ class Workbench(Screen[None]):
     def on_mount(self) -> None:
         self.app.refresh_title()  # type: ignore[attr-defined]
         self._mounted = True
-        if self._early is not None:  # the first solve ended before the screen was up
-            how, outcome, version = self._early
-            self._early = None
-            (self._done if how == "done" else self._failed)(outcome, version)  # type: ignore[arg-type]
+        early, self._early = self._early, []
+        for method, args in early:  # what the first solve handed back before the screen was up
+            method(*args)
+
+    def _deliver(self, method: Any, *args: Any) -> None:
+        """Call ``method`` on the interface thread (from a worker), once the screen is up."""
+
+        def deliver() -> None:
+            if self._mounted:
+                method(*args)
+            else:
+                self._early.append((method, args))
+
+        self.app.call_from_thread(deliver)
 
     # --- solving ---------------------------------------------------------------------------
 
@@ -95,7 +128,7 @@ class Workbench(Screen[None]):
         if self._timer is not None:
             self._timer.stop()
         results = self.query_one(ResultsView)
-        if results.analysis is not None:
+        if results.shown is not None:
             results.mark("computing")
         self.query_one(WorksheetForm).mark_derived_stale()
         if now:
@@ -109,70 +142,139 @@ class Workbench(Screen[None]):
         self._solving_edit = self.last_edit
         self._run(self._solving, self._version)
 
+    def on_unmount(self) -> None:
+        if self._first is not None:  # closed before the first solve answered
+            self._first.cancel()
+
     @work(thread=True, exclusive=True, group="solve", exit_on_error=False)
-    def _run(self, data: dict, version: int) -> None:
+    def _run(self, data: dict, version: int, first: EarlySolve | None = None) -> None:
+        """Solve ``data`` and hand back what to show, made here, off the interface thread.
+
+        With ``first`` (the first solve, running in a process of its own), its answer is
+        shown as soon as it arrives; the analysis it shows is read back after that, and the
+        unit registry built, before the fields read their text."""
+        outcome = first.outcome(data) if first is not None else None
+        if outcome is not None and outcome[0] == "done":
+            view, blob = outcome[1]
+            self._deliver(self._display, view, version)
+            import pickle
+
+            from beamtone.calc.analysis import Analysis
+
+            try:  # our own child's answer through a pipe (see tui.early)
+                analysis = pickle.loads(blob)  # noqa: S301
+            except Exception:  # noqa: BLE001 - unreadable: solve here instead
+                analysis = None
+            if isinstance(analysis, Analysis):
+                self._deliver(self._done, analysis, view, version)
+                self._units()
+                return
+            outcome = None
         from beamtone.calc.analysis import analyse
         from beamtone.calc.worksheet import from_data
+        from beamtone.tui.shown import shown
 
-        try:
-            analysis = analyse(from_data(data, "<app>"))
-        except InputError as exc:
-            self.app.call_from_thread(self._failed, exc, version)
-            return
-        except Exception as exc:  # the outermost layer of the app's work: never a traceback
-            problem = InputError(
-                "member",
-                None,
-                "a model beamtone can solve",
-                f"internal error, please report: {type(exc).__name__}: {exc}",
-            )
-            self.app.call_from_thread(self._failed, problem, version)
-            return
-        self.app.call_from_thread(self._done, analysis, version)
+        if outcome is None:
+            try:
+                self._units(announce=False)
+                analysis = analyse(from_data(data, "<app>"))
+                self._deliver(self._done, analysis, shown(analysis), version)
+            except InputError as exc:
+                self._deliver(self._failed, exc, version)
+            except Exception as exc:  # the outermost layer of the app's work: no traceback
+                problem = InputError(
+                    "member",
+                    None,
+                    "a model beamtone can solve",
+                    f"internal error, please report: {type(exc).__name__}: {exc}",
+                )
+                self._deliver(self._failed, problem, version)
+        else:  # the first solve's process found an entry to fix
+            self._deliver(self._failed, outcome[1], version)
+        self._units()
 
-    def _done(self, analysis: object, version: int) -> None:
-        if version != self._version:
-            return  # the inputs changed again meanwhile; a newer solve is on its way
-        if not self._mounted:
-            self._early = ("done", analysis, version)
+    def _units(self, announce: bool = True) -> None:
+        """Build the unit registry (in a worker) and, the first time, let the fields read."""
+        if QuantityField.checking:
             return
-        self.pending = False
-        self.solves += 1
-        self.finished += 1
-        self.solved = self._solving
-        self.solve_finished.set()
-        QuantityField.checking = True  # the unit registry is built: fields read at once now
-        results = self.query_one(ResultsView)
-        results.show(analysis, self._for_text())  # type: ignore[arg-type]
-        self.query_one(ModePlot).show(_plot_data(analysis))
+        from beamtone.calc.units import registry
+
+        with _UNITS:
+            registry()
+        if announce:
+            self._deliver(self._units_ready)
+
+    def _units_ready(self) -> None:
+        """The unit registry is built: fields read their text at once from now on."""
+        if QuantityField.checking:
+            return
+        QuantityField.checking = True
         form = self.query_one(WorksheetForm)
         form.clear_solve_errors()
-        form.update_derived(analysis.sheet.member)  # type: ignore[attr-defined]
+        if self._last_error is not None:
+            form.show_error(self._last_error)
+
+    def _display(self, view: Shown, version: int) -> None:
+        """Show results before their analysis is at hand (the first solve's own process)."""
+        if version != self._version:
+            return
+        self.solves += 1
+        self.query_one(ResultsView).show(view, self._for_text())
+        self.query_one(ModePlot).show(view.plot)
+        self.query_one(WorksheetForm).update_derived(view.derived)
+
+    def _done(self, analysis: Analysis, view: Shown, version: int) -> None:
+        if version != self._version:
+            return  # the inputs changed again meanwhile; a newer solve is on its way
+        results = self.query_one(ResultsView)
+        if results.shown is view:  # on screen already: now with its analysis
+            results.analysis = analysis
+        else:
+            self.solves += 1
+            results.show(view, self._for_text(), analysis)
+            self.query_one(ModePlot).show(view.plot)
+        self._settle(version, view.derived, None)
 
     def _failed(self, exc: InputError, version: int) -> None:
         if version != self._version:
             return
-        if not self._mounted:
-            self._early = ("failed", exc, version)
+        results = self.query_one(ResultsView)
+        results.mark("stale" if results.shown is not None else "failed", exc.message)
+        plot = self.query_one(ModePlot)
+        plot.show(plot.data, stale=True)
+        self._settle(version, "", exc)
+
+    def _settle(self, version: int, derived: str, error: InputError | None) -> None:
+        """After a solve's results (or its error) are shown: the form's marks, then done.
+
+        The first time, the rest of the form is built first (it waited for the results)."""
+        form = self.query_one(WorksheetForm)
+        if not form.complete:
+
+            async def filled() -> None:
+                await form.fill()
+                self._settle(version, derived, error)
+
+            self.call_later(filled)
             return
+        form.clear_solve_errors()
+        if error is not None:
+            form.show_error(error)
+        else:
+            form.update_derived(derived)
+        self._last_error = error
+        if version != self._version:
+            return  # edited while the form was completed: a newer solve is on its way
         self.pending = False
         self.finished += 1
         self.solved = self._solving
         self.solve_finished.set()
-        results = self.query_one(ResultsView)
-        QuantityField.checking = True
-        results.mark("stale" if results.analysis is not None else "failed", exc.message)
-        form = self.query_one(WorksheetForm)
-        form.clear_solve_errors()
-        form.show_error(exc)
-        plot = self.query_one(ModePlot)
-        plot.show(plot.data, stale=True)
 
     def _for_text(self) -> str:
         """Which inputs the results are for: the file and the latest edit."""
         name = self.document.path.name if self.document.path else "the new worksheet"
         edited = f", after {self._solving_edit}" if self._solving_edit else ""
-        return f"for {name} as on screen{edited}"
+        return f"for {name}{edited}"
 
     async def reload(self) -> None:
         """Rebuild the form after the document was replaced or changed from outside."""
@@ -180,22 +282,3 @@ class Workbench(Screen[None]):
         form.document = self.document
         await form.rebuild()
         self.schedule(now=True)
-
-
-def _plot_data(analysis: object) -> PlotData:
-    from beamtone.calc.analysis import Analysis
-
-    assert isinstance(analysis, Analysis)
-    member = analysis.sheet.member
-    modes = analysis.modes.modes[:3]
-    supports = [(0.0, member.left), (member.length, member.right)]
-    supports += [(s.at, s.kind) for s in member.inner_supports]
-    return PlotData(
-        length=member.length,
-        x=modes[0].x,
-        shapes=[m.w for m in modes],
-        labels=[f"{m.number}: {m.frequency_hz:.4g} Hz" for m in modes],
-        supports=supports,
-        masses=[p.at for p in member.masses],
-        springs=[s.at for s in member.springs],
-    )

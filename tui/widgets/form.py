@@ -14,13 +14,12 @@ import tomlkit.exceptions
 from rich.text import Text
 from textual import on
 from textual.app import ComposeResult
-from textual.containers import Horizontal, VerticalScroll
+from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.message import Message
 from textual.widgets import Button, Label, Select, Static
 
 from beamtone.calc import materials, schema
 from beamtone.calc.errors import InputError
-from beamtone.calc.model import Member
 from beamtone.calc.positions import RIGHT_END
 from beamtone.tui.document import Document
 from beamtone.tui.widgets.quantity import QuantityField, TextField
@@ -76,10 +75,12 @@ class WorksheetForm(VerticalScroll):
             self.structural = structural
             self.edit = edit
 
-    def __init__(self, document: Document, id: str | None = None) -> None:  # noqa: A002
+    def __init__(self, document: Document, id: str | None = None, *, lazy: bool = False) -> None:  # noqa: A002
         super().__init__(id=id)
         self.document = document
-        self._member: Member | None = None
+        # lazy: the first build shows the member and its ends (what is in view) and leaves the
+        # rest to fill(), called once the first results are on screen
+        self.complete = not lazy
         self._derived = ""  # the shown section and member properties
         # Selects announce their first value when mounted; only later changes are edits
         # (otherwise a value the picker cannot show would be overwritten unasked).
@@ -88,6 +89,20 @@ class WorksheetForm(VerticalScroll):
     # --- building --------------------------------------------------------------------------
 
     def compose(self) -> ComposeResult:
+        yield from self._head()
+        yield _Rest(self)
+
+    async def fill(self) -> None:
+        """Build the rest of a lazily built form (what it carries, shape, excitations,
+        tolerances)."""
+        if not self.complete:
+            self.complete = True
+            self._armed = False
+            await self.query_one(_Rest).recompose()
+            self.call_after_refresh(self._arm)
+
+    def _head(self) -> ComposeResult:
+        """The member and its ends: the top of the form."""
         doc = self.document
         yield Static("1  Member", classes="step")
         yield _text_field("title", str(doc.get("title", "")))
@@ -136,6 +151,9 @@ class WorksheetForm(VerticalScroll):
             yield _field(f"supports.inner[{i}].at", sup.get("at"))
         yield Button("+ inner support", id="add-inner", classes="small")
 
+    def _tail(self) -> ComposeResult:
+        """What it carries, the assumed shape, what excites it, the tolerances."""
+        doc = self.document
         yield Static("3  What it carries", classes="step")
         yield _field("member.added_mass", doc.get("member.added_mass"))
         yield _field("member.axial_force", doc.get("member.axial_force"))
@@ -380,8 +398,8 @@ class WorksheetForm(VerticalScroll):
         scroll = self.scroll_y
         await self.recompose()
         self.call_after_refresh(self._arm)
-        if self._member is not None:
-            self.update_derived(self._member)
+        if self._derived:
+            self.update_derived(self._derived)
             self.mark_derived_stale()
         found = self.query(f"#{keep}") if keep else None
         if found:
@@ -390,31 +408,18 @@ class WorksheetForm(VerticalScroll):
 
     # --- feedback --------------------------------------------------------------------------
 
-    def update_derived(self, member: Member) -> None:
-        """Show the section and member properties of the last solved member."""
-        self._member = member
-        derived = self.query("#derived")
-        if not derived:
-            return
-        parts = []
-        for i, seg in enumerate(member.segments):
-            sec = seg.section
-            name = f"segment {i}: " if len(member.segments) > 1 else ""
-            E = seg.material.youngs_modulus / 1e9
-            parts.append(
-                f"{name}A = {sec.area * 1e6:.5g} mm², I = {sec.second_moment * 1e12:.5g} mm⁴, "
-                f"m = {seg.mass_per_length:.4g} kg/m, E = {E:.4g} GPa"
-            )
-        parts.append(f"member mass {member.member_mass:.4g} kg, length {member.length:.4g} m")
-        widget = derived.first(Static)
-        self._derived = "\n".join(parts)
-        widget.update(self._derived)
-        widget.remove_class("-stale")
+    def update_derived(self, text: str) -> None:
+        """Show the section and member properties of the last solved member
+        (:func:`beamtone.tui.shown.derived_text`)."""
+        self._derived = text
+        for widget in self.query("#derived").results(Static):
+            widget.update(text)
+            widget.remove_class("-stale")
 
     def mark_derived_stale(self) -> None:
         """Mark the section and member properties out of date until the next solve."""
         for widget in self.query("#derived"):
-            if self._member is not None and not widget.has_class("-stale"):
+            if self._derived and not widget.has_class("-stale"):
                 widget.add_class("-stale")
                 widget.update(Text(f"(out of date) {self._derived}", style="dim italic"))
 
@@ -431,6 +436,19 @@ class WorksheetForm(VerticalScroll):
                 field.show_error(f"expected {exc.expected}{hint}")  # type: ignore[attr-defined]
                 return True
         return False
+
+
+class _Rest(Vertical):
+    """The lower part of the form (empty until the form is complete)."""
+
+    def __init__(self, form: WorksheetForm) -> None:
+        super().__init__()
+        self.styles.height = "auto"
+        self._form = form
+
+    def compose(self) -> ComposeResult:
+        if self._form.complete:
+            yield from self._form._tail()
 
 
 def _text(value: Any) -> str:

@@ -17,7 +17,7 @@ from rich.text import Text
 from textual.widgets import Static
 
 if TYPE_CHECKING:  # pragma: no cover
-    from beamtone.calc.analysis import Analysis
+    from beamtone.tui.shown import MapData
 
 __all__ = ["FrequencyMap", "frequency_map"]
 
@@ -35,39 +35,30 @@ class FrequencyMap(Static):
 
     def __init__(self, id: str | None = None) -> None:  # noqa: A002 - textual's name
         super().__init__("", id=id)
-        self.analysis: Analysis | None = None
+        self.data: MapData | None = None
         self.display = False
 
-    def show(self, analysis: Analysis) -> None:
-        self.analysis = analysis
-        self.display = analysis.margins is not None
+    def show(self, data: MapData | None) -> None:
+        """Draw ``data`` (:func:`beamtone.tui.shown.map_data`; None hides the map)."""
+        self.data = data
+        self.display = data is not None
         self.refresh(layout=True)
 
     def render(self) -> Text:
-        if self.analysis is None or self.analysis.margins is None:
+        if self.data is None:
             return Text("")
         width = max(self.size.width, _LABEL + 20)
-        return frequency_map(self.analysis, width)
+        return frequency_map(self.data, width)
 
 
-def frequency_map(analysis: Analysis, width: int) -> Text:
+def frequency_map(data: MapData, width: int) -> Text:
     """The map, ``width`` characters wide (at least 34)."""
-    table = analysis.margins
-    assert table is not None
     plot = max(width - _LABEL - 1 - _ABOVE, 20)
-    modes: dict[str, list[tuple[int, float, bool]]] = {}
-    for row in table.rows:
-        found = modes.setdefault(row.direction, [])
-        if all(n != row.mode for n, _, _ in found):
-            found.append((row.mode, row.frequency_hz, False))
-    inside = {(r.direction, r.mode) for r in table.rows if not r.clear}
-    bands = {}
-    if analysis.bands is not None:
-        bands = {(b.direction, b.number): (b.low_hz, b.high_hz) for b in analysis.bands.modes}
+    modes, inside, bands = data.modes, data.inside, data.bands
     # the axis: from 0 to well above the highest band of a line, so the bands read; modes
     # above it are counted at the right edge
-    lines_top = max([ln.band_high_hz for ln in table.lines] + [1e-9])
-    lowest = min([f for found in modes.values() for _, f, _ in found] + [lines_top])
+    lines_top = max([ln.band_high_hz for ln in data.lines] + [1e-9])
+    lowest = min([f for found in modes.values() for _, f in found] + [lines_top])
     top = max(lines_top * 1.6, lowest * 1.2)
 
     def col(hz: float) -> int | None:
@@ -75,7 +66,7 @@ def frequency_map(analysis: Analysis, width: int) -> Text:
         return c if 0 <= c < plot else None
 
     out = Text()
-    for ln in table.lines:
+    for ln in data.lines:
         cells = [" "] * plot
         lo, hi = col(ln.band_low_hz), col(min(ln.band_high_hz, top))
         if lo is not None:
@@ -97,7 +88,7 @@ def frequency_map(analysis: Analysis, width: int) -> Text:
         out.append(" " + "".join(cells) + "\n", "yellow")
     for direction, found in modes.items():
         line = Text(" " * plot)
-        for n, _f, _ in found:
+        for n, _f in found:
             band = bands.get((direction, n))
             if band is not None:
                 lo, hi = col(band[0]), col(band[1])
@@ -108,7 +99,7 @@ def frequency_map(analysis: Analysis, width: int) -> Text:
                         chars[c] = "·" if chars[c] == " " else chars[c]
                     chars[lo], chars[hi] = "<", ">"
                     line = _retext(line, "".join(chars))
-        for n, f, _ in found:
+        for n, f in found:
             c = col(f)
             if c is None:
                 continue
@@ -120,7 +111,7 @@ def frequency_map(analysis: Analysis, width: int) -> Text:
         out.append(_PLANES.get(direction, direction)[:_LABEL].ljust(_LABEL), "dim")
         out.append(" ")
         out.append_text(line)
-        above = sum(1 for _, f, _ in found if col(f) is None)
+        above = sum(1 for _, f in found if col(f) is None)
         if above:
             out.append(f" +{above} above"[:_ABOVE], "dim")
         out.append("\n")

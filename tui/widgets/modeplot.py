@@ -2,11 +2,11 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 from rich.text import Text
 from textual.widget import Widget
+
+from beamtone.tui.shown import PlotData
 
 __all__ = ["PlotData", "ModePlot"]
 
@@ -16,35 +16,6 @@ _BRAILLE = 0x2800
 _DOTS = ((0x01, 0x08), (0x02, 0x10), (0x04, 0x20), (0x40, 0x80))  # [row][column]
 _HEIGHT = 9  # lines of the plot and its markers, above the legend
 _SUPPORT_GLYPH = {"clamped": "▮", "pinned": "▲", "guided": "═", "free": "·"}
-
-
-@dataclass(frozen=True)
-class PlotData:
-    """What the plot shows.
-
-    Attributes
-    ----------
-    length : float
-        Member length [m].
-    x : ndarray
-        Positions [m].
-    shapes : list of ndarray
-        Deflections at ``x``, scaled to unit maximum.
-    labels : list of str
-        One per shape (e.g. ``"1: 16.4 Hz"``).
-    supports : list of (float, str)
-        Position [m] and kind of every support.
-    masses, springs : list of float
-        Positions [m].
-    """
-
-    length: float
-    x: np.ndarray
-    shapes: list[np.ndarray]
-    labels: list[str]
-    supports: list[tuple[float, str]]
-    masses: list[float]
-    springs: list[float]
 
 
 class ModePlot(Widget):

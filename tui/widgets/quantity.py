@@ -25,10 +25,10 @@ class QuantityField(Vertical):
 
     DEFAULT_CSS = """
     QuantityField { height: auto; margin: 0 0 0 1; }
-    QuantityField > Horizontal { height: 1; }
+    QuantityField > Horizontal { height: auto; }
     QuantityField Label { width: 14; padding: 0 1 0 0; color: $text-muted; }
     QuantityField Input { width: 12; height: 1; border: none; padding: 0 1; }
-    QuantityField .si { width: 1fr; padding: 0 0 0 1; color: $text-muted; }
+    QuantityField .si { width: 1fr; height: auto; padding: 0 0 0 1; color: $text-muted; }
     QuantityField > .problem { display: none; color: $error; padding: 0 0 0 2; height: auto; }
     QuantityField.-invalid > .problem { display: block; }
     QuantityField.-invalid .si { color: $error; text-style: bold; }
@@ -77,14 +77,11 @@ class QuantityField(Vertical):
         yield Static("", classes="problem")
 
     def on_mount(self) -> None:
-        if QuantityField.checking:
-            self._check(self.value)
-        else:  # the app's first solve builds the unit registry in its worker, then checks
-            self.query_one(".si", Static).update("…")
+        self._check(self.value)
 
     checking = False
-    """Whether fields read their text when mounted; off until the app's first solve has
-    built the unit registry in its worker (the screen comes up without waiting for it)."""
+    """Whether fields read their text; off until the app's first solve has built the unit
+    registry in its worker (the screen comes up without waiting for it: "…" until then)."""
 
     @on(Input.Changed)
     def _changed(self, event: Input.Changed) -> None:
@@ -98,10 +95,17 @@ class QuantityField(Vertical):
             self.post_message(self.Edited(self, self.key, event.value))
 
     def _check(self, text: str) -> None:
-        si = self.query_one(".si", Static)
+        found = self.query(".si")
+        if not found:  # the app closed while the form was being built: nothing to show
+            return
+        si = found.first(Static)
         if self.optional and not text.strip():
             self.remove_class("-invalid")
             si.update("none")
+            return
+        if not QuantityField.checking:  # the app's first seconds: read once the units are built
+            self.remove_class("-invalid")
+            si.update("…")
             return
         if self.position and from_right(text) is not None:
             try:  # the distance is checked here, the member's length when it is solved
@@ -110,7 +114,7 @@ class QuantityField(Vertical):
                 self._invalid(exc)
                 return
             self.remove_class("-invalid")
-            si.update(f"L\u2212{inward:.5g}\u00a0m")
+            si.update(f"L\u2212{inward:.5g} m")
             return
         try:
             if self.dimension == FREQUENCY:  # cycles per second: 1480 rpm is 24.67 Hz
@@ -128,7 +132,8 @@ class QuantityField(Vertical):
             self._invalid(exc)
             return
         self.remove_class("-invalid")
-        si.update(f"{value:.5g}\u00a0{self.dimension.si_unit}")
+        # a narrow column wraps the unit to the next line, never cuts it (80 columns)
+        si.update(f"{value:.5g} {self.dimension.si_unit}")
 
     def _invalid(self, exc: InputError) -> None:
         self.add_class("-invalid")
@@ -144,6 +149,8 @@ class QuantityField(Vertical):
 
     def show_error(self, message: str) -> None:
         """Mark the field with an error found when the worksheet was solved."""
+        if not self.query(".si"):  # the app closed while the form was being built
+            return
         self.add_class("-invalid")
         self.query_one(".si", Static).update("✗")
         self.query_one(".problem", Static).update(Text(message))
@@ -183,6 +190,12 @@ class TextField(Horizontal):
         if event.value != self._posted:
             self._posted = event.value
             self.post_message(QuantityField.Edited(self, self.key, event.value))  # type: ignore[arg-type]
+
+    @on(Input.Blurred)
+    def _left(self, event: Input.Blurred) -> None:
+        """Show a long text from its start again once the focus has left it (a title
+        scrolled to its end read as if cut)."""
+        event.input.cursor_position = 0
 
     def recheck(self) -> None:
         """Drop a mark of an earlier solve."""
