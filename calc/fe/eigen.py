@@ -117,6 +117,10 @@ CLUSTER_RATIO = 4.0
 """The lowest modes are clustered where the (count + 1)-th eigenvalue is below this multiple
 of the lowest (a continuous beam's first band spans a factor of 2.44 at most)."""
 
+CLUSTER_MIN_DOFS = 2000
+"""Models below this many free DOFs are not checked for clustering: ARPACK about the far
+shift finishes them quickly anyway, and the check would only add to every sweep's solves."""
+
 _PROBE_STEPS = 3  # block inverse iterations before the Rayleigh-Ritz estimate
 _PLACED = 1e-7  # the clustered shift is placed within this fraction of the lowest eigenvalue
 _SEED = 20261201  # the fixed start of every iteration: every run gives the same bits
@@ -375,8 +379,8 @@ def default_eigensolver(
 def _method(K: Any, M: Any, count: int, shift: float) -> str:
     """The key of the method for the lowest ``count`` modes of this pencil."""
     n = K.shape[0]
-    if method_for(n, count) == "dense":
-        return "dense"
+    if method_for(n, count) == "dense" or n < CLUSTER_MIN_DOFS:
+        return method_for(n, count)
     return method_for(n, count, close=clustered(K, M, count, shift))
 
 
