@@ -9,6 +9,7 @@ constant axial force (tension positive).
 
 from __future__ import annotations
 
+import bisect
 import math
 from dataclasses import dataclass, field
 
@@ -229,7 +230,8 @@ def _validate(member: Member) -> None:
         _check_position(f"mass[{i}].at", m.at, L, tol)
     for i, s in enumerate(member.springs):
         _check_position(f"spring[{i}].at", s.at, L, tol)
-    seen: list[float] = []
+    seen: list[float] = []  # positions, ascending
+    order: list[int] = []  # their indices
     for i, sup in enumerate(member.inner_supports):
         key = f"supports.inner[{i}]"
         if sup.kind not in INNER_KINDS:
@@ -241,14 +243,20 @@ def _validate(member: Member) -> None:
                 f"a position strictly inside the member, between 0 m and {L:.6g} m "
                 "(use supports.left and supports.right for the ends)",
             )
-        for j, other in enumerate(seen):
-            if abs(other - sup.at) <= tol:
-                raise InputError(
-                    f"{key}.at",
-                    f"{sup.at:.6g} m",
-                    f"a position different from supports.inner[{j}].at; two supports at one place",
-                )
-        seen.append(sup.at)
+        # the earlier supports, sorted (they are more than tol apart, so only the two
+        # neighbours of the new one can be within tol of it): O(n log n) for 1,000 supports
+        place = bisect.bisect_left(seen, sup.at)
+        near = [order[k] for k in (place - 1, place) if 0 <= k < len(seen)
+                and abs(seen[k] - sup.at) <= tol]  # fmt: skip
+        if near:
+            raise InputError(
+                f"{key}.at",
+                f"{sup.at:.6g} m",
+                f"a position different from supports.inner[{min(near)}].at; two supports at one "
+                "place",
+            )
+        seen.insert(place, sup.at)
+        order.insert(place, i)
     if (
         member.left_overrides
         or member.right_overrides

@@ -21,6 +21,7 @@ from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import scipy.linalg
+import scipy.sparse
 
 from beamtone.calc import fe
 from beamtone.calc.errors import InputError
@@ -842,43 +843,39 @@ def _dunkerley_sum(member: Member) -> DunkerleyBound:
         )
     exact = True
     points, weights = np.polynomial.legendre.leggauss(4)
-    stations = fe.stations(member)
-    xs, ws = [], []
-    pieces = 1
-    for a, b in zip(stations[:-1], stations[1:], strict=True):
-        edges = np.linspace(a, b, pieces + 1)
-        for lo, hi in zip(edges[:-1], edges[1:], strict=True):
-            xs.append(0.5 * (lo + hi) + 0.5 * (hi - lo) * points)
-            ws.append(0.5 * (hi - lo) * weights)
-    xq = np.concatenate(xs)
-    wq = np.concatenate(ws)
+    stations = np.asarray(fe.stations(member))
+    lo, hi = stations[:-1, None], stations[1:, None]
+    xq = (0.5 * (lo + hi) + 0.5 * (hi - lo) * points).ravel()
+    wq = (0.5 * (hi - lo) * weights).ravel()
     mesh = fe.mesh_through(member, xq)
     system = fe.assemble(member, mesh)
-    m_of = np.array([member.segments[member.segment_index(x)].mass_per_length for x in xq])
+    # every interval between stations lies in one segment (segment ends are stations)
+    per_length = np.array([s.mass_per_length for s in member.segments])
+    middle = 0.5 * (lo[:, 0] + hi[:, 0])
+    interval_segment = [member.segment_index(x) for x in middle.tolist()]
+    m_of = np.repeat(per_length[interval_segment], len(points))
     # Probes: unit loads whose response, read back the same way, gives each flexibility term.
     # A node's probe reads its deflection (or slope) from the free DOFs; a quadrature point
     # inside an element (only inside the short element of a tethered attachment, whose nodes
-    # cannot take more points) reads the element's Hermite interpolation.
-    columns: list[tuple[np.ndarray, np.ndarray]] = []  # (free DOFs, weights): kept sparse
-    factors: list[float] = []
-    for x, w, m in zip(xq, wq, m_of, strict=True):
-        row = _observe_at(mesh, system, float(x))
-        if row[0].size:
-            columns.append(row)
-            factors.append(w * m)
-    for pm in member.masses:
-        node, _ = mesh.carrier(pm.at)
-        deflection, slope = system.observe_entries(node)
-        if pm.mass and deflection[0].size:
-            columns.append(deflection)
-            factors.append(pm.mass)
-        if pm.rotary_inertia and slope[0].size:
-            columns.append(slope)
-            factors.append(pm.rotary_inertia)
-    # v^T K^-1 v for every probe v, without a dense n x probes array (2,500 point masses
-    # asked for 7.4 GB that way)
-    diag = _flexibilities(system.K, columns)
-    trace = float(np.sum(np.asarray(factors) * diag))
+    # cannot take more points) reads the element's Hermite interpolation.  One sparse row
+    # per probe (no dense n x probes array: 2,500 point masses asked for 7.4 GB that way).
+    reads = [_reading_at(mesh, xq)]
+    factors = [wq * m_of]
+    if member.masses:
+        nodes = np.array([mesh.carrier(pm.at)[0] for pm in member.masses])
+        mass = np.array([pm.mass for pm in member.masses])
+        inertia = np.array([pm.rotary_inertia for pm in member.masses])
+        # deflection then slope of each mass in turn, those it has
+        rows = np.stack([2 * nodes, 2 * nodes + 1], axis=1).ravel()
+        amounts = np.stack([mass, inertia], axis=1).ravel()
+        rows, amounts = rows[amounts != 0.0], amounts[amounts != 0.0]
+        reads.append(_unit_rows(rows, len(mesh.x)))
+        factors.append(amounts)
+    probes = (scipy.sparse.vstack(reads).tocsr() @ _observer(system)).tocsr()
+    probes.eliminate_zeros()
+    used = np.diff(probes.indptr) > 0  # a probe at a held point reads nothing
+    diag = _flexibilities(system.K, probes[used])
+    trace = float(np.sum(np.concatenate(factors)[used] * diag))
     if not trace > 0.0 or not math.isfinite(trace):
         return DunkerleyBound(None, None, "the flexibility could not be computed", exact)
     # cond(K) ~ ||K|| ||K^-1||, both estimated from diagonals (K symmetric positive definite)
@@ -889,32 +886,6 @@ def _dunkerley_sum(member: Member) -> DunkerleyBound:
     condition = 2.0 * stiffest * float(np.max(np.abs(diag)))
     uncertainty = float(10.0 * np.finfo(float).eps * condition)
     return DunkerleyBound(1.0 / (2.0 * math.pi * math.sqrt(trace)), trace, None, exact, uncertainty)
-
-
-def _observe_at(mesh: fe.Mesh, system: fe.System, x: float) -> tuple[np.ndarray, np.ndarray]:
-    """Entries (free DOFs, values) of the row giving the deflection at x [m] (Hermite
-    interpolation), kept sparse: a row touches a node's chain of tethers only."""
-    i = int(np.clip(np.searchsorted(mesh.x, x) - 1, 0, len(mesh.x) - 2))
-    for node in (i, i + 1):
-        if mesh.x[node] == x:
-            return system.observe_entries(node)[0]
-    h = mesh.x[i + 1] - mesh.x[i]
-    t = (x - mesh.x[i]) / h
-    left, right = system.observe_entries(i), system.observe_entries(i + 1)
-    weights = (
-        1 - 3 * t**2 + 2 * t**3,
-        h * (t - 2 * t**2 + t**3),
-        3 * t**2 - 2 * t**3,
-        h * (t**3 - t**2),
-    )
-    parts = (left[0], left[1], right[0], right[1])
-    index, where = np.unique(np.concatenate([p[0] for p in parts]), return_inverse=True)
-    values = np.zeros(len(index))
-    np.add.at(
-        values, where, np.concatenate([c * p[1] for c, p in zip(weights, parts, strict=True)])
-    )
-    nonzero = values != 0.0
-    return index[nonzero], values[nonzero]
 
 
 # --- bracket and equivalent model ----------------------------------------------------------------
@@ -1008,30 +979,80 @@ def equivalent_system(
 # --- flexibility terms without dense arrays ------------------------------------------------------
 
 
-def _sparse(row: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """The non-zero entries of a probe row: (indices, values)."""
-    index = np.flatnonzero(row)
-    return index, row[index]
+def _reading_at(mesh: fe.Mesh, x: np.ndarray) -> scipy.sparse.csr_matrix:
+    """Rows giving the deflection at each of ``x`` [m] from the nodal values.
+
+    Columns are the physical nodal values (2 j: deflection [m], 2 j + 1: slope [rad]); a
+    point at a node reads that node's deflection, a point inside an element the element's
+    Hermite interpolation.
+    """
+    last = len(mesh.x) - 2
+    i = np.clip(np.searchsorted(mesh.x, x) - 1, 0, last)
+    at_left, at_right = mesh.x[i] == x, mesh.x[i + 1] == x
+    h = mesh.x[i + 1] - mesh.x[i]
+    t = (x - mesh.x[i]) / h
+    weights = np.stack(
+        [
+            1 - 3 * t**2 + 2 * t**3,
+            h * (t - 2 * t**2 + t**3),
+            3 * t**2 - 2 * t**3,
+            h * (t**3 - t**2),
+        ],
+        axis=1,
+    )
+    columns = 2 * i[:, None] + np.arange(4)
+    weights[at_left | at_right] = 0.0
+    weights[at_left, 0] = 1.0
+    weights[at_right & ~at_left, 2] = 1.0
+    rows = np.repeat(np.arange(len(x)), 4)
+    shape = (len(x), 2 * len(mesh.x))
+    return scipy.sparse.csr_matrix((weights.ravel(), (rows, columns.ravel())), shape=shape)
 
 
-def _flexibilities(K: Any, probes: list[tuple[np.ndarray, np.ndarray]]) -> np.ndarray:
-    """v^T K^-1 v for sparse probes v of a symmetric positive definite banded K.
+def _unit_rows(columns: np.ndarray, nodes: int) -> scipy.sparse.csr_matrix:
+    """Rows picking the physical nodal values ``columns`` (2 j deflection, 2 j + 1 slope)."""
+    ones = np.ones(len(columns))
+    return scipy.sparse.csr_matrix(
+        (ones, (np.arange(len(columns)), columns)), shape=(len(columns), 2 * nodes)
+    )
+
+
+def _observer(system: fe.System) -> scipy.sparse.csr_matrix:
+    """Physical nodal values (deflection [m], slope [rad]) from the free DOFs, sparse.
+
+    Row 2 j gives node j's deflection and row 2 j + 1 its slope (the slope DOFs are scaled
+    by ``system.scale``); a held DOF's row is empty.  The rows of
+    :meth:`calc.fe.System.observe`, all at once.
+    """
+    n = len(system.free)
+    if system.T is None:
+        ones = np.ones(n)
+        tie = scipy.sparse.csr_matrix((ones, (system.free, np.arange(n))), shape=(system.n_full, n))
+    else:
+        tie = scipy.sparse.csr_matrix(system.T[:, system.free])
+    tie.sum_duplicates()
+    row = np.repeat(np.arange(system.n_full), np.diff(tie.indptr))
+    tie.data = np.where(row % 2 == 1, tie.data / system.scale, tie.data)
+    return tie
+
+
+def _flexibilities(K: Any, probes: scipy.sparse.csr_matrix) -> np.ndarray:
+    """v^T K^-1 v for each row v of ``probes`` (sparse) of a symmetric positive definite K.
 
     Each probe touches a few neighbouring unknowns, so only the band of K^-1 is needed:
-    it is found from K's banded Cholesky factor L by the recurrence of the selected
-    inverse (Takahashi, Fagan and Chin, 1973; Z = K^-1 satisfies L^T Z = L^-1, whose upper
-    triangle is diagonal), in O(n p^2) time and O(n p) memory for bandwidth p.  A probe
-    reaching beyond the band, or a K that is not positive definite, takes sparse solves in
-    blocks of columns instead.
+    it is found from K's banded Cholesky factor (:func:`_band_of_inverse`) in O(n p^2) time
+    and O(n p) memory for bandwidth p.  A probe reaching beyond the band, or a K that is not
+    positive definite, takes sparse solves in blocks of probes instead.
     """
-    import scipy.linalg
-
     n = K.shape[0]
-    if not probes:
+    count = probes.shape[0]
+    if count == 0:
         return np.zeros(0)
     coo = K.tocoo()
     p = int(np.max(np.abs(coo.row - coo.col), initial=0))
-    span = max(int(index.max() - index.min()) for index, _ in probes)
+    starts = probes.indptr[:-1]
+    reach = np.maximum.reduceat(probes.indices, starts)
+    span = int(np.max(reach - np.minimum.reduceat(probes.indices, starts)))
     if span <= p <= 16:
         band = np.zeros((p + 1, n))
         lower = coo.row >= coo.col
@@ -1042,49 +1063,90 @@ def _flexibilities(K: Any, probes: list[tuple[np.ndarray, np.ndarray]]) -> np.nd
             factor = None
         if factor is not None:
             Z = _band_of_inverse(factor)
-            out = np.empty(len(probes))
-            for j, (index, values) in enumerate(probes):
-                total = 0.0
-                for a, va in zip(index, values, strict=True):
-                    for b, vb in zip(index, values, strict=True):
-                        total += va * vb * Z[abs(a - b), min(a, b)]
-                out[j] = total
+            # the probes' entries side by side, padded with zero weights on a real index
+            width = int(np.max(np.diff(probes.indptr)))
+            place = np.arange(probes.nnz) - np.repeat(starts, np.diff(probes.indptr))
+            owner = np.repeat(np.arange(count), np.diff(probes.indptr))
+            index = np.repeat(probes.indices[starts][:, None], width, axis=1)
+            values = np.zeros((count, width))
+            index[owner, place] = probes.indices
+            values[owner, place] = probes.data
+            out = np.zeros(count)
+            for a in range(width):
+                for b in range(width):
+                    ia, ib = index[:, a], index[:, b]
+                    out += values[:, a] * values[:, b] * Z[np.abs(ia - ib), np.minimum(ia, ib)]
             return out
     return _flexibilities_by_solves(K, probes)
 
 
+_INVERSE_BLOCK = 32  # rows of a block of the band of K^-1 (measured: 24-64 all alike)
+
+
 def _band_of_inverse(factor: np.ndarray) -> np.ndarray:
-    """Z[d, i] = (K^-1)[i + d, i] for d <= p, from K's lower banded Cholesky factor."""
+    """Z[d, i] = (K^-1)[i + d, i] for d <= p, from K's lower banded Cholesky factor.
+
+    The selected inverse (Takahashi, Fagan and Chin, 1973; Z = K^-1 satisfies
+    L^T Z = L^-1, whose upper triangle is diagonal) taken in blocks of b >= p rows, where
+    L is block bidiagonal with diagonal blocks L_k and sub-diagonal blocks C_k:
+
+        Z_k,k+1 = -G_k Z_k+1,k+1,   Z_k,k = L_k^-T L_k^-1 + G_k Z_k+1,k+1 G_k^T,
+
+    with G_k = L_k^-T C_k^T, from the last block backwards.  The block inverses come all
+    at once; the sweep is one pair of small products a block (O(n b^2) time, O(n b) memory).
+    """
     p = factor.shape[0] - 1
     n = factor.shape[1]
-    L = factor.T.tolist()  # L[i][d] = factor L[i + d, i]
-    Z = [[0.0] * (p + 1) for _ in range(n)]  # Z[i][d] = (K^-1)[i + d, i]
+    b = max(_INVERSE_BLOCK, p)
+    blocks = -(-n // b)
+    size = blocks * b
+    padded = np.zeros((p + 1, size))  # past n: an identity block, decoupled from the rest
+    padded[:, :n] = factor
+    padded[0, n:] = 1.0
+    column = np.arange(size)
+    for d in range(1, p + 1):  # the factor's unused corner (below the last row) stays zero
+        padded[d, column + d >= n] = 0.0
+    r = np.arange(b)[:, None]
+    c = np.arange(b)[None, :]
+    start = (b * np.arange(blocks))[:, None, None]
+    d = r - c
+    diagonal = np.where((d >= 0) & (d <= p), padded[np.clip(d, 0, p), start + c], 0.0)
+    d = r + b - c  # C_k[r, c] = L[(k + 1) b + r, k b + c]
+    below = np.where(d <= p, padded[np.clip(d, 0, p), start[:-1] + c], 0.0)
+    identity = np.broadcast_to(np.eye(b), diagonal.shape)
+    inverse = scipy.linalg.solve_triangular(diagonal, identity, lower=True)  # batched
+    inverse_t = np.swapaxes(inverse, 1, 2)
+    base = inverse_t @ inverse
+    gain = inverse_t[:-1] @ np.swapaxes(below, 1, 2)
+    Zd = np.empty((blocks, b, b))
+    Zs = np.empty((max(blocks - 1, 0), b, b))  # Z_k+1,k
+    Zd[-1] = base[-1]
+    for k in range(blocks - 2, -1, -1):
+        product = gain[k] @ Zd[k + 1]
+        Zs[k] = -product.T
+        Zd[k] = base[k] + product @ gain[k].T
+    # read the band back: (K^-1)[i + d, i] lies in block k = i // b, in Z_k,k or Z_k+1,k
+    i = np.arange(n)
+    k, local = i // b, i % b
+    out = np.empty((p + 1, n))
+    for d in range(p + 1):
+        row = local + d
+        inside = row < b
+        out[d] = 0.0
+        out[d, inside] = Zd[k[inside], row[inside], local[inside]]
+        outside = ~inside & (i + d < n)
+        out[d, outside] = Zs[k[outside], row[outside] - b, local[outside]]
+    return out
 
-    def z(a: int, b: int) -> float:
-        return Z[a][b - a] if a <= b else Z[b][a - b]
 
-    for i in range(n - 1, -1, -1):
-        li = L[i]
-        top = min(p, n - 1 - i)
-        for d in range(top, 0, -1):
-            j = i + d
-            Z[i][d] = -sum(li[k] * z(i + k, j) for k in range(1, top + 1)) / li[0]
-        Z[i][0] = (1.0 / li[0] - sum(li[k] * Z[i][k] for k in range(1, top + 1))) / li[0]
-    return np.array(Z).T
-
-
-def _flexibilities_by_solves(K: Any, probes: list[tuple[np.ndarray, np.ndarray]]) -> np.ndarray:
-    """v^T K^-1 v by sparse solves, a block of columns at a time (bounded memory)."""
+def _flexibilities_by_solves(K: Any, probes: scipy.sparse.csr_matrix) -> np.ndarray:
+    """v^T K^-1 v by sparse solves, a block of probes at a time (bounded memory)."""
     import scipy.sparse.linalg
 
-    n = K.shape[0]
     lu = scipy.sparse.linalg.splu(K.tocsc())
-    out = np.empty(len(probes))
+    out = np.empty(probes.shape[0])
     block = 256
-    for start in range(0, len(probes), block):
-        chunk = probes[start : start + block]
-        V = np.zeros((n, len(chunk)))
-        for j, (index, values) in enumerate(chunk):
-            V[index, j] = values
-        out[start : start + len(chunk)] = np.einsum("ij,ij->j", V, lu.solve(V))
+    for start in range(0, probes.shape[0], block):
+        V = probes[start : start + block].T.toarray()
+        out[start : start + V.shape[1]] = np.einsum("ij,ij->j", V, lu.solve(V))
     return out

@@ -337,8 +337,30 @@ def _parse_quantity(
     return value
 
 
+_FACTORS: dict[tuple[str, Dimension], float] = {}
+"""Factors the guarded parser found in this process, by unit text and dimension (memory only:
+nothing on disk could change them).  A worksheet of thousands of entries writes a handful of
+unit texts; each is parsed once (5,000 entries took 1.5-4 s, nearly all of it unit parsing)."""
+_FACTORS_LIMIT = 4096
+
+
 def _si_factor(unit_text: str, key: str, given: str, dim: Dimension) -> float:
-    """What one of ``unit_text`` is in the SI unit of ``dim`` (pint's answer, kept in memory)."""
+    """What one of ``unit_text`` is in the SI unit of ``dim`` (pint's answer, kept in memory).
+
+    Only an accepted unit text is remembered; a refused one goes through the guarded parser
+    every time, so its message names the key at hand.
+    """
+    known = _FACTORS.get((unit_text, dim))
+    if known is not None:
+        return known
+    factor = _si_factor_parsed(unit_text, key, given, dim)
+    if len(_FACTORS) < _FACTORS_LIMIT:
+        _FACTORS[(unit_text, dim)] = factor
+    return factor
+
+
+def _si_factor_parsed(unit_text: str, key: str, given: str, dim: Dimension) -> float:
+    """The guarded parser's work for :func:`_si_factor`."""
     expected = _expected(dim)
     if not unit_text:
         raise InputError(key, given, expected, "the unit is missing")

@@ -190,7 +190,10 @@ def _parse(text: str, source: str, default_title: str) -> Worksheet:
 
     if not text.strip():
         raise InputError("file", source, "a worksheet; the file is empty (start with format = 1)")
-    try:
+    data = _plain_toml(text)
+    if data is not None:
+        return _worksheet(data, source, default_title)
+    try:  # tomlkit's message names the line and column
         data = tomlkit.parse(text).unwrap()
     except tomlkit.exceptions.ParseError as exc:
         raise InputError(
@@ -199,6 +202,20 @@ def _parse(text: str, source: str, default_title: str) -> Worksheet:
     except (tomlkit.exceptions.TOMLKitError, ValueError, RecursionError) as exc:
         raise InputError("file", source, "valid TOML", str(exc).splitlines()[0][:120]) from None
     return _worksheet(data, source, default_title)
+
+
+def _plain_toml(text: str) -> dict[str, Any] | None:
+    """The TOML text as plain data by the standard library's reader, else None.
+
+    Eight times faster than tomlkit on a worksheet of thousands of tables (5,000: 0.2 s
+    against 1.7 s); a text it refuses goes to tomlkit, whose message says where.
+    """
+    import tomllib
+
+    try:
+        return tomllib.loads(text)
+    except (tomllib.TOMLDecodeError, ValueError, RecursionError):
+        return None
 
 
 def _reason(exc: Exception) -> str:

@@ -1,8 +1,19 @@
 """Eigen solvers behind one table: a name, what each method computes, and when it is used.
 
 Every solve of the member's pencils goes through :data:`SOLVERS`; :func:`method_for` is the
-one place that picks dense LAPACK or sparse ARPACK by the size of the model.  The solver that
-ran reports its own name (:class:`EigenPairs` carries it), so the result never guesses.
+one place that picks dense LAPACK, sparse ARPACK, or ARPACK about a shift placed at the
+bottom of a clustered spectrum, by the size of the model and by whether its lowest modes lie
+close together (:func:`clustered`).  The solver that ran reports its own name
+(:class:`EigenPairs` carries it), so the result never guesses.
+
+Clustered spectra.  A member over many nearly equal spans has as many modes as spans in a
+narrow band (a continuous beam over N equal pinned spans: all N between the single span's
+pinned-pinned and pinned-clamped frequencies; common practice).  Shift-invert about a shift
+far below that band sees them as nearly equal and converges very slowly (100 inner supports:
+about 26 s; 300: 73 s).  About a shift just below the lowest eigenvalue the wanted ones are
+well apart, so the clustered method first places the shift: bisection with Sylvester's
+inertia (K - sigma M is positive definite exactly when no eigenvalue lies below sigma, tested
+by a banded Cholesky factorization; count.py counts the same way), then ARPACK about it.
 """
 
 from __future__ import annotations
@@ -26,6 +37,7 @@ __all__ = [
     "default_eigensolver",
     "lowest_eigenvalues",
     "largest_eigenvalue",
+    "clustered",
     "solver_name",
 ]
 
@@ -74,7 +86,7 @@ class EigenMethod:
     largest: Callable[[Any, Any], float]
 
 
-def method_for(n: int, count: int, problem: str = "modes") -> str:
+def method_for(n: int, count: int, problem: str = "modes", close: bool = False) -> str:
     """The key in :data:`SOLVERS` of the method used for a model of ``n`` free DOFs.
 
     Parameters
@@ -85,15 +97,84 @@ def method_for(n: int, count: int, problem: str = "modes") -> str:
         Eigenvalues wanted.
     problem : str
         ``"modes"`` (the lowest ``count``) or ``"buckling"`` (the largest one).
+    close : bool
+        Whether the lowest modes lie close together (:func:`clustered`); only asked for
+        models of at least ``CLUSTER_MIN_DOFS``.
 
     Returns
     -------
     str
-        ``"dense"`` or ``"arpack"``.
+        ``"dense"``, ``"arpack"`` or ``"clustered"``.
     """
     if problem == "buckling":
         return "dense" if n <= _BUCKLING_DENSE_LIMIT else "arpack"
-    return "dense" if n <= DENSE_LIMIT or count >= n - 1 else "arpack"
+    if n <= DENSE_LIMIT or count >= n - 1:
+        return "dense"
+    return "clustered" if close else "arpack"
+
+
+CLUSTER_RATIO = 4.0
+"""The lowest modes are clustered where the (count + 1)-th eigenvalue is below this multiple
+of the lowest (a continuous beam's first band spans a factor of 2.44 at most)."""
+
+CLUSTER_MIN_DOFS = 400
+"""Models below this many free DOFs are not checked for clustering: ARPACK about the far
+shift finishes even a clustered one in well under a second (300 equal spans on a coarse
+mesh, 302 DOFs: 0.4 s measured), and the check (about a third of an ARPACK solve at 200
+DOFs) would only add to every sweep's small solves.  From here on it costs about a tenth."""
+
+_PROBE_STEPS = 3  # block inverse iterations before the Rayleigh-Ritz estimate
+_PLACED = 1e-7  # the clustered shift is placed within this fraction of the lowest eigenvalue
+_SEED = 20261201  # the fixed start of every iteration: every run gives the same bits
+
+
+def _factor(K: Any, M: Any, shift: float) -> Any:
+    """Sparse LU of K - shift M, exactly as ARPACK's shift-invert mode factors it."""
+    Kc, Mc = K.tocsc(), M.tocsc()
+    return scipy.sparse.linalg.splu(Kc if shift == 0 else Kc - shift * Mc)
+
+
+def _ritz_estimate(K: Any, M: Any, count: int, lu: Any) -> np.ndarray:
+    """Rayleigh-Ritz values [rad^2/s^2] of a few block inverse iterations, ascending.
+
+    Each is an upper bound on the eigenvalue of the same rank (Poincare's separation
+    theorem); ``count + 2`` of them from a fixed start.
+    """
+    n = K.shape[0]
+    block = min(count + 2, n)
+    X = np.random.default_rng(_SEED).standard_normal((n, block))
+    for _ in range(_PROBE_STEPS):
+        X, _ = np.linalg.qr(lu.solve(M @ X))
+    return scipy.linalg.eigh(X.T @ (K @ X), X.T @ (M @ X), eigvals_only=True)
+
+
+_LAST: list[tuple[Any, Any, int, float, np.ndarray]] = []
+
+
+def _estimate(K: Any, M: Any, count: int, shift: float) -> np.ndarray:
+    """:func:`_ritz_estimate` about ``shift``, kept for the one pencil last asked about (the
+    choice of method and the clustered method both need it; the matrices are never changed
+    in place, and are held so that they are the very ones asked about)."""
+    if _LAST:
+        last = _LAST[0]
+        if last[0] is K and last[1] is M and last[2] == count and last[3] == shift:
+            return last[4]
+    theta = _ritz_estimate(K, M, count, _factor(K, M, shift))
+    _LAST[:] = [(K, M, count, shift, theta)]
+    return theta
+
+
+def clustered(K: Any, M: Any, count: int, shift: float) -> bool:
+    """Whether the lowest ``count + 1`` eigenvalues of K x = lambda M x lie close together.
+
+    From a cheap estimate (:func:`_ritz_estimate` about ``shift``): the (count + 1)-th
+    Ritz value below ``CLUSTER_RATIO`` times the lowest, which is positive (rigid-body
+    modes are far apart from the rest).  A wrong answer costs time only: both methods find
+    the same modes, and the independent count checks them.
+    """
+    theta = _estimate(K, M, count, shift)
+    top = theta[min(count, len(theta) - 1)]
+    return bool(theta[0] > 0.0 and top < CLUSTER_RATIO * theta[0])
 
 
 def _dense_arrays(K: Any, M: Any) -> tuple[np.ndarray, np.ndarray]:
@@ -139,6 +220,72 @@ def _arpack_largest(A: Any, B: Any) -> float:
     return float(scipy.sparse.linalg.eigsh(A.tocsc(), k=1, M=B.tocsc(), which="LA")[0][0])
 
 
+def _clustered_pairs(K: Any, M: Any, count: int, shift: float) -> tuple[np.ndarray, np.ndarray]:
+    vals, vecs = _arpack(K, M, count, _placed_shift(K, M, count, shift), vectors=True)
+    order = np.argsort(vals)
+    return vals[order], vecs[:, order]
+
+
+def _clustered_values(K: Any, M: Any, count: int, shift: float) -> np.ndarray:
+    return np.sort(_arpack(K, M, count, _placed_shift(K, M, count, shift), vectors=False))
+
+
+def _placed_shift(K: Any, M: Any, count: int, shift: float) -> float:
+    """A shift just below the lowest eigenvalue [rad^2/s^2], placed by inertia.
+
+    K - sigma M is positive definite exactly when no eigenvalue lies below sigma
+    (Sylvester's law of inertia); a banded Cholesky factorization tests it.  Bisection
+    between ``shift`` (below every eigenvalue) and the lowest Ritz value (above the lowest
+    eigenvalue) until the two are within ``_PLACED`` of each other; the lower end is the
+    shift.  Should round-off put it a hair above the lowest eigenvalue, the eigenvalues
+    nearest it are still the lowest ones (and the independent count checks them).
+    """
+    theta = float(_estimate(K, M, count, shift)[0])
+    definite = _definiteness(K, M)
+    high = theta
+    if definite(high):  # the estimate is the eigenvalue itself, to round-off
+        return high
+    low = shift
+    for fraction in (0.5, 0.125):  # a tighter start than the given shift, where it holds
+        if theta * fraction > low and definite(theta * fraction):
+            low = theta * fraction
+            break
+    while high - low > _PLACED * abs(high):
+        middle = 0.5 * (low + high)
+        if definite(middle):
+            low = middle
+        else:
+            high = middle
+    return low
+
+
+def _definiteness(K: Any, M: Any) -> Callable[[float], bool]:
+    """sigma -> whether K - sigma M is positive definite (banded Cholesky, else sparse LDL^T)."""
+    from beamtone.calc.fe.count import count_below
+
+    Kc, Mc = K.tocoo(), M.tocoo()
+    n = K.shape[0]
+    width = int(max(np.max(np.abs(Kc.row - Kc.col), initial=0),
+                    np.max(np.abs(Mc.row - Mc.col), initial=0)))  # fmt: skip
+    if width > 64:  # a wide band: the sparse count
+        return lambda sigma: count_below(K, M, sigma) == 0
+    bands = []
+    for A in (Kc, Mc):
+        band = np.zeros((width + 1, n))
+        lower = A.row >= A.col
+        np.add.at(band, ((A.row - A.col)[lower], A.col[lower]), A.data[lower])
+        bands.append(band)
+
+    def definite(sigma: float) -> bool:
+        try:
+            scipy.linalg.cholesky_banded(bands[0] - sigma * bands[1], lower=True)
+        except np.linalg.LinAlgError:
+            return False
+        return True
+
+    return definite
+
+
 def _arpack(K: Any, M: Any, count: int, shift: float, vectors: bool) -> Any:
     """(eigenvalues, vectors) with ``vectors``, else the eigenvalues alone (unsorted).
 
@@ -149,7 +296,7 @@ def _arpack(K: Any, M: Any, count: int, shift: float, vectors: bool) -> Any:
     faster on these banded matrices); should it not converge, a wide basis is tried.
     """
     n = K.shape[0]
-    start = np.random.default_rng(20261201).standard_normal(n)
+    start = np.random.default_rng(_SEED).standard_normal(n)
     Kc, Mc = K.tocsc(), M.tocsc()
     for ncv in (max(2 * count + 1, 15), 8 * count + 40):
         try:
@@ -200,6 +347,12 @@ SOLVERS: dict[str, EigenMethod] = {
     "arpack": EigenMethod(
         "sparse shift-invert (ARPACK)", _arpack_pairs, _arpack_values, _arpack_largest
     ),
+    "clustered": EigenMethod(
+        "sparse shift-invert about the lowest mode, placed by inertia (clustered spectrum; ARPACK)",
+        _clustered_pairs,
+        _clustered_values,
+        _arpack_largest,
+    ),
 }
 """The eigen methods by key; :func:`method_for` says which one a model uses."""
 
@@ -210,7 +363,9 @@ def default_eigensolver(
     """Lowest ``count`` eigenpairs of K x = lambda M x (K symmetric semi-definite, M definite).
 
     Dense LAPACK for small models; otherwise ARPACK in shift-invert mode about
-    ``shift`` (a value below the lowest eigenvalue, so K - shift*M is definite).
+    ``shift`` (a value below the lowest eigenvalue, so K - shift*M is definite), or, where
+    the lowest modes are clustered, about a shift placed just below the lowest eigenvalue
+    (:func:`method_for` decides).
 
     Returns
     -------
@@ -218,9 +373,17 @@ def default_eigensolver(
         (eigenvalues ascending [rad^2/s^2], M-orthonormal eigenvectors as columns), and the
         name of the method that ran as ``.solver``.
     """
-    method = SOLVERS[method_for(K.shape[0], count)]
+    method = SOLVERS[_method(K, M, count, shift)]
     vals, vecs = method.pairs(K, M, count, shift)
     return EigenPairs(vals, vecs, method.name)
+
+
+def _method(K: Any, M: Any, count: int, shift: float) -> str:
+    """The key of the method for the lowest ``count`` modes of this pencil."""
+    n = K.shape[0]
+    if method_for(n, count) == "dense" or n < CLUSTER_MIN_DOFS:
+        return method_for(n, count)
+    return method_for(n, count, close=clustered(K, M, count, shift))
 
 
 def lowest_eigenvalues(
@@ -233,7 +396,7 @@ def lowest_eigenvalues(
     ndarray
         The lowest ``count`` eigenvalues, ascending [rad^2/s^2].
     """
-    return SOLVERS[method_for(K.shape[0], count)].values(K, M, count, shift)
+    return SOLVERS[_method(K, M, count, shift)].values(K, M, count, shift)
 
 
 def largest_eigenvalue(A: Any, B: Any, size: int) -> float:
