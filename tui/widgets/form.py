@@ -7,6 +7,7 @@ rebuild the form from the document.
 
 from __future__ import annotations
 
+import re
 from typing import Any
 
 import tomlkit
@@ -37,6 +38,15 @@ _SHAPE_DEFAULTS = {
 }
 # The fields of each attachment row, in the schema's order.
 _ROWS = ("mass", "spring")
+# Rows of one list (inner supports, masses, ...) built at a time: a worksheet of a thousand
+# supports opens at once, the rest a button press away (each press shows this many more).
+PAGE = 12
+# The button name of each list and the document table it shows.
+_LISTS = {"inner": "inner support", "mass": "mass", "spring": "spring",
+          "segment": "segment", "excitation": "excitation"}  # fmt: skip
+_TABLE_LISTS = {"supports.inner": "inner", "mass": "mass", "spring": "spring",
+                "member.segment": "segment", "excitation": "excitation"}  # fmt: skip
+_ROW_KEY = re.compile(r"^(supports\.inner|mass|spring|member\.segment|excitation)\[(\d+)\]")
 
 
 def _field(key: str, value: Any, *, optional: bool | None = None) -> QuantityField:
@@ -85,6 +95,8 @@ class WorksheetForm(VerticalScroll):
         # Selects announce their first value when mounted; only later changes are edits
         # (otherwise a value the picker cannot show would be overwritten unasked).
         self._armed = False
+        # how many rows of each list are built (see PAGE)
+        self._shown: dict[str, int] = {}
 
     # --- building --------------------------------------------------------------------------
 
@@ -113,7 +125,7 @@ class WorksheetForm(VerticalScroll):
         yield from self._section(
             "member.section", doc.get("member.section"), optional=bool(segments)
         )
-        for i, seg in enumerate(segments):
+        for i, seg in self._window("segment", segments):
             key = f"member.segment[{i}]"
             with Horizontal(classes="rowhead"):
                 yield Label(f"segment {i}", classes="rowtitle")
@@ -121,6 +133,7 @@ class WorksheetForm(VerticalScroll):
             yield _field(f"{key}.length", seg.get("length"))
             if isinstance(seg.get("section"), dict):
                 yield from self._section(f"{key}.section", seg["section"], picker=False)
+        yield from self._more("segment", len(segments))
         yield Button("+ segment (step the member)", id="add-segment", classes="small")
         yield Static("", id="derived", classes="derived")
 
@@ -137,7 +150,8 @@ class WorksheetForm(VerticalScroll):
                     compact=True,
                 )
         inner_kinds = schema.entry("supports.inner[].kind").choices
-        for i, sup in enumerate(doc.inner_supports()):
+        inner = doc.inner_supports()
+        for i, sup in self._window("inner", inner):
             with Horizontal(classes="rowhead"):
                 yield Label(f"inner support {i}", classes="rowtitle")
                 yield Select(
@@ -149,6 +163,7 @@ class WorksheetForm(VerticalScroll):
                 )
                 yield Button("remove", id=f"remove-inner-{i}", classes="small")
             yield _field(f"supports.inner[{i}].at", sup.get("at"))
+        yield from self._more("inner", len(inner))
         yield Button("+ inner support", id="add-inner", classes="small")
 
     def _tail(self) -> ComposeResult:
@@ -179,11 +194,13 @@ class WorksheetForm(VerticalScroll):
         )
 
         yield Static("5  What excites it", classes="step")
-        for i, row in enumerate(doc.rows("excitation")):
+        excitations = doc.rows("excitation")
+        for i, row in self._window("excitation", excitations):
             with Horizontal(classes="rowhead"):
                 yield Label(f"excitation {i}", classes="rowtitle")
                 yield Button("remove", id=f"remove-excitation-{i}", classes="small")
             yield from self._excitation(i, row)
+        yield from self._more("excitation", len(excitations))
         yield Button("+ excitation", id="add-excitation", classes="small")
 
         yield Static("6  Tolerances (bands and what moves them most)", classes="step")
@@ -217,12 +234,43 @@ class WorksheetForm(VerticalScroll):
 
     def _rows(self, table: str) -> ComposeResult:
         """The entries of ``[[mass]]`` or ``[[spring]]``, each with a remove button."""
-        for i, row in enumerate(self.document.rows(table)):
+        rows = self.document.rows(table)
+        for i, row in self._window(table, rows):
             with Horizontal(classes="rowhead"):
                 yield Label(f"{table} {i}", classes="rowtitle")
                 yield Button("remove", id=f"remove-{table}-{i}", classes="small")
             for name in schema.children(f"{table}[]"):
                 yield _field(f"{table}[{i}].{name}", row.get(name))
+        yield from self._more(table, len(rows))
+
+    def _window(self, name: str, rows: Any) -> list[tuple[int, Any]]:
+        """The rows of the list ``name`` that are built, with their indices."""
+        return list(enumerate(rows))[: self._shown.get(name, PAGE)]
+
+    def _more(self, name: str, count: int) -> ComposeResult:
+        """Under a list with rows not built: how many, and a button that builds more."""
+        shown = min(count, self._shown.get(name, PAGE))
+        if shown < count:
+            noun = _LISTS[name]
+            yield Static(
+                f"{count - shown} more {noun} entries are in the worksheet, kept as written "
+                f"(showing {shown} of {count})",
+                id=f"more-{name}-note",
+                classes="derived",
+            )
+            yield Button(f"show {min(PAGE, count - shown)} more", id=f"more-{name}",
+                         classes="small")  # fmt: skip
+
+    def _reveal(self, name: str, count: int) -> None:
+        """After an entry is added at the end of a list: build it where that takes one page
+        at most, else say where it is."""
+        shown = self._shown.get(name, PAGE)
+        if count <= shown:
+            return
+        if count - shown <= PAGE:
+            self._shown[name] = count
+        else:
+            self.app.notify(f"added as {_LISTS[name]} {count - 1}, at the end of the list")
 
     def _material(self) -> ComposeResult:
         value = self.document.get("member.material")
@@ -342,23 +390,34 @@ class WorksheetForm(VerticalScroll):
         doc = self.document
         if button == "add-mass":  # at the right end, following the length when it changes
             doc.add_row("mass", {"at": RIGHT_END, "mass": "1 kg"})
+            self._reveal("mass", len(doc.rows("mass")))
         elif button == "add-spring":
             doc.add_row("spring", {"at": RIGHT_END, "stiffness": "10 kN/m"})
+            self._reveal("spring", len(doc.rows("spring")))
         elif button == "add-inner":
             supports = [dict(s) for s in doc.inner_supports()]
             supports.append({"at": _middle(doc), "kind": "pinned"})
             doc.set_inner_supports(supports)
+            self._reveal("inner", len(supports))
         elif button == "add-segment":
             doc.make_stepped()
             rows = doc.rows("member.segment")
             last = dict(rows[-1]) if rows else {"length": "0.5 m"}
             doc.add_row("member.segment", last)
+            self._reveal("segment", len(doc.rows("member.segment")))
         elif button == "add-excitation":
             n = len(doc.rows("excitation"))
             doc.add_row(
                 "excitation",
                 {"name": f"source {n + 1}", "speed": "1480 rpm", "orders": 1, "margin": "20 %"},
             )
+            self._reveal("excitation", n + 1)
+        elif button.startswith("more-"):
+            name = button.removeprefix("more-")
+            self._shown[name] = self._shown.get(name, PAGE) + PAGE
+            event.stop()
+            await self.rebuild()
+            return
         elif button == "add-tolerance":
             chosen = self.query_one("#tolerance-key", Select).value
             if chosen is Select.NULL:
@@ -429,11 +488,25 @@ class WorksheetForm(VerticalScroll):
             field.recheck()  # type: ignore[attr-defined]
 
     def show_error(self, exc: InputError) -> bool:
-        """Mark the field the error names; False where no field shows that key."""
+        """Mark the field the error names; False where no field shows that key.  An entry
+        of a list that is not built yet (see PAGE) is built first, then marked."""
         for field in self.query(".quantity, .text"):
             if getattr(field, "key", None) == exc.key:
                 hint = f" ({exc.hint})" if exc.hint else ""
                 field.show_error(f"expected {exc.expected}{hint}")  # type: ignore[attr-defined]
+                return True
+        row = _ROW_KEY.match(exc.key or "")
+        if row is not None:
+            name = _TABLE_LISTS[row.group(1)]
+            index = int(row.group(2))
+            if index >= self._shown.get(name, PAGE):
+                self._shown[name] = index + 1
+
+                async def built() -> None:
+                    await self.rebuild()
+                    self.show_error(exc)
+
+                self.call_later(built)
                 return True
         return False
 
