@@ -5,6 +5,7 @@ and what the model leaves out."""
 from __future__ import annotations
 
 import textwrap
+from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
 from beamtone.calc.directions import LABELS
@@ -21,7 +22,22 @@ __all__ = [
     "directions_json",
     "all_modes_json",
     "theory_json",
+    "abridged",
 ]
+
+# A list of supports longer than this is shown by its first and last entries and a count
+# (the worksheet holds them all; JSON lists them all).
+LISTED = 8
+
+
+def abridged(items: Sequence[str], limit: int = LISTED) -> str:
+    """``items`` joined by commas; past ``limit`` entries, the first few, how many are left
+    out and the last two (a member on a thousand hangers stays one readable line)."""
+    if len(items) <= limit:
+        return ", ".join(items)
+    head, tail = list(items[: limit - 2]), list(items[-2:])
+    return ", ".join([*head, f"... {len(items) - len(head) - len(tail)} more ...", *tail])
+
 
 _UNITS = {"depth": "kg", "width": "kg", "torsion": "kg*m^2", "axial": "kg"}
 _WHAT = {
@@ -63,7 +79,7 @@ def governing_lines(directions: Directions) -> list[str]:
 
 def depth_heading(directions: Directions) -> str:
     """The heading line of the depth plane's table."""
-    return f"  depth plane  {_WHAT['depth']}; {', '.join(directions['depth'].supports)}"
+    return f"  depth plane  {_WHAT['depth']}; {abridged(directions['depth'].supports)}"
 
 
 def _table(direction: Direction) -> list[str]:
@@ -108,7 +124,7 @@ def direction_lines(directions: Directions) -> list[str]:
     """The width plane's, torsion's and axial motion's sections."""
     lines: list[str] = []
     for d in directions.directions[1:]:
-        lines.append(f"  {LABELS[d.name]}  {_WHAT[d.name]}; {', '.join(d.supports)}")
+        lines.append(f"  {LABELS[d.name]}  {_WHAT[d.name]}; {abridged(d.supports)}")
         if not d.computed:
             lines.append(f"            not computed: {d.reason}")
             lines.append("")

@@ -10,6 +10,7 @@ from typing import TYPE_CHECKING, Any
 from beamtone.calc.caution import CAUTION
 from beamtone.render.bands import band_lines, with_bands
 from beamtone.render.directions import (
+    abridged,
     all_modes_json,
     assumption_lines,
     depth_heading,
@@ -47,7 +48,7 @@ def _fmt(value: float, digits: int = 6) -> str:
 def _ends(member: Any) -> str:
     text = f"{member.left} at the left, {member.right} at the right"
     if member.inner_supports:
-        inner = ", ".join(f"{s.kind} at {_fmt(s.at, 4)} m" for s in member.inner_supports)
+        inner = abridged([f"{s.kind} at {_fmt(s.at, 4)} m" for s in member.inner_supports])
         text += f"; inner supports {inner}"
     return text
 
