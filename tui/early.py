@@ -8,10 +8,11 @@ its :class:`~beamtone.calc.analysis.Analysis` (or the :class:`~beamtone.calc.err
 that names what is wrong) through a pipe. Later solves run in the app's own worker thread, as
 before; the child serves the first one only.
 
-The child reads the worksheet's plain data from the pipe and is the app's own code; nothing is
-read from disk but the modules. Whatever goes wrong with it (it cannot start, it fails, its
-answer cannot be read, the worksheet changed meanwhile) costs only time: :meth:`outcome`
-returns None and the app solves in its own process.
+The child reads the worksheet as TOML text from the pipe (it unpickles nothing it is given)
+and is the app's own code; nothing is read from disk but the modules. Whatever goes wrong
+with it (it cannot start, it fails, its answer cannot be read, the worksheet changed
+meanwhile) costs only time: :meth:`outcome` returns None and the app solves in its own
+process.
 
 The child is started only where a processor is spare (:func:`spare_processor`): on a busy
 machine the two processes take turns and the child's own start-up costs more than it saves.
@@ -83,10 +84,12 @@ class EarlySolve:
         if process is None or process.stdin is None:
             return
         try:
-            process.stdin.write(pickle.dumps(self.data, protocol=pickle.HIGHEST_PROTOCOL))
+            import tomlkit  # already loaded by the app's document
+
+            process.stdin.write(tomlkit.dumps(self.data).encode("utf-8"))
             process.stdin.close()
-        except (OSError, ValueError):
-            pass  # the child has gone: outcome() says so
+        except (OSError, ValueError, TypeError):
+            pass  # the child has gone (or the data has no TOML form): outcome() says so
 
     def outcome(self, data: dict[str, Any]) -> tuple[str, Any] | None:
         """Wait for the child's answer (in a worker thread: this blocks until it answers or
@@ -135,8 +138,14 @@ class EarlySolve:
 
 
 def main() -> int:
-    """The child: read plain worksheet data on stdin, write the pickled outcome on stdout."""
-    data = pickle.loads(sys.stdin.buffer.read())  # noqa: S301 - from the parent app only
+    """The child: read the worksheet as TOML text on stdin, write the pickled outcome on
+    stdout (to the parent app only)."""
+    import tomllib
+
+    try:
+        data = tomllib.loads(sys.stdin.buffer.read().decode("utf-8"))
+    except (UnicodeDecodeError, tomllib.TOMLDecodeError):
+        return 2  # not a worksheet: the app solves in its own process
     from beamtone.calc.analysis import analyse
     from beamtone.calc.errors import InputError
     from beamtone.calc.worksheet import from_data

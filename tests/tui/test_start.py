@@ -159,3 +159,31 @@ def test_the_child_starts_only_where_a_processor_is_spare(
     assert isinstance(first, EarlySolve)
     first.cancel()
     assert first.outcome(data) is None  # stopped: the app would solve in its worker
+
+
+class _Marker:
+    """Unpickling this would create the file named ``path`` (the test's probe)."""
+
+    def __init__(self, path: str) -> None:
+        self.path = path
+
+    def __reduce__(self) -> tuple:
+        return (open, (self.path, "w"))
+
+
+def test_the_first_solve_process_unpickles_nothing_it_is_given(tmp_path: Path) -> None:
+    """The child reads TOML text on its standard input; a pickle there is refused (exit 2),
+    never loaded (found in review: it read its input with pickle)."""
+    import pickle
+    import subprocess
+    import sys
+
+    probe = tmp_path / "ran"
+    done = subprocess.run(
+        [sys.executable, "-m", "beamtone.tui.early"],
+        input=pickle.dumps(_Marker(str(probe))),
+        capture_output=True,
+        timeout=60,
+    )
+    assert done.returncode == 2 and done.stdout == b""
+    assert not probe.exists()
