@@ -13,7 +13,7 @@ from typing import Any
 import tomlkit
 import tomlkit.exceptions
 from rich.text import Text
-from textual import on
+from textual import events, on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.message import Message
@@ -71,6 +71,20 @@ def _field(key: str, value: Any, *, optional: bool | None = None) -> QuantityFie
 
 def _text_field(key: str, value: str, placeholder: str = "") -> TextField:
     return TextField(key, schema.entry(key).label, value, placeholder)
+
+
+class _Choice(Select):
+    """A picker that can be mounted while the app closes.
+
+    Found: closing the app just as the rest of the form was built ended, about one start in
+    eight, in a traceback from the picker's own mount handler, which looks for a part of
+    itself the closing app never mounted.  Where its parts are missing, the mount does
+    nothing (``prevent_default`` stops the handlers of the classes below this one).
+    """
+
+    def _on_mount(self, event: events.Mount) -> None:
+        if not self.children:  # its parts were never mounted: the app is closing
+            event.prevent_default()
 
 
 class WorksheetForm(VerticalScroll):
@@ -142,7 +156,7 @@ class WorksheetForm(VerticalScroll):
             ends = schema.entry(f"supports.{side}")
             with Horizontal(classes="pair"):
                 yield Label(ends.label, classes="pairlabel")
-                yield Select(
+                yield _Choice(
                     [(k, k) for k in ends.choices],
                     value=_choice(doc.get(f"supports.{side}"), ends.choices),
                     allow_blank=False,
@@ -154,7 +168,7 @@ class WorksheetForm(VerticalScroll):
         for i, sup in self._window("inner", inner):
             with Horizontal(classes="rowhead"):
                 yield Label(f"inner support {i}", classes="rowtitle")
-                yield Select(
+                yield _Choice(
                     [(k, k) for k in inner_kinds],
                     value=_choice(sup.get("kind"), inner_kinds),
                     allow_blank=False,
@@ -210,7 +224,7 @@ class WorksheetForm(VerticalScroll):
                 yield Button("remove", id=f"remove-tolerance-{i}", classes="small")
             yield _text_field(f"tolerances.{key}", _written(value), '"5 %", "0.3 mm"')
         with Horizontal(classes="pair"):
-            yield Select(
+            yield _Choice(
                 [(k, k) for k in _tolerable(doc) if k not in doc.tolerances()],
                 prompt="a quantity to tolerance",
                 id="tolerance-key",
@@ -279,7 +293,7 @@ class WorksheetForm(VerticalScroll):
         options = [(n, n) for n in names] + [(_CUSTOM, _CUSTOM)]
         with Horizontal(classes="pair"):
             yield Label("material", classes="pairlabel")
-            yield Select(options, value=current, allow_blank=False, id="material", compact=True)
+            yield _Choice(options, value=current, allow_blank=False, id="material", compact=True)
         if isinstance(value, dict):
             for name in ("youngs_modulus", "density"):
                 yield _field(f"member.material.{name}", value.get(name))
@@ -295,7 +309,7 @@ class WorksheetForm(VerticalScroll):
         if picker:
             with Horizontal(classes="pair"):
                 yield Label("section", classes="pairlabel")
-                yield Select(
+                yield _Choice(
                     [(s, s) for s in schema.SECTION_SHAPES],
                     value=_choice(shape, tuple(schema.SECTION_SHAPES)),
                     allow_blank=False,
