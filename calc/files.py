@@ -24,7 +24,7 @@ from pathlib import Path
 
 from beamtone.calc.errors import InputError
 
-__all__ = ["read_limited", "digest", "write_atomic"]
+__all__ = ["WORKSHEET_BYTES", "digest", "read_limited", "write_atomic"]
 
 _KINDS = {
     stat.S_IFIFO: "a pipe (FIFO)",
@@ -33,6 +33,10 @@ _KINDS = {
     stat.S_IFSOCK: "a socket",
     stat.S_IFDIR: "a folder",
 }
+
+
+WORKSHEET_BYTES = 1_000_000
+"""Largest worksheet file accepted [bytes] (``calc.worksheet.MAX_BYTES``)."""
 
 
 def digest(data: bytes) -> str:

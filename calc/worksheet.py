@@ -26,6 +26,7 @@ from beamtone.calc.excitation import (
     read_frequencies,
     read_orders,
 )
+from beamtone.calc.files import WORKSHEET_BYTES
 from beamtone.calc.materials import Material
 from beamtone.calc.model import (
     InnerSupport,
@@ -47,7 +48,7 @@ __all__ = [
 FORMAT = 1
 """The worksheet format this version reads and writes."""
 
-MAX_BYTES = 1_000_000
+MAX_BYTES = WORKSHEET_BYTES
 """Largest worksheet file accepted [bytes]."""
 
 MAX_MODES = 50

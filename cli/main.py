@@ -294,15 +294,23 @@ def _app(path: str | None) -> int:
     """Open the terminal app, on a worksheet file or (without one) on a new one."""
     from beamtone.calc.errors import InputError
 
-    document = None
+    first = None
+    if path is not None and sys.stdin.isatty() and sys.stdout.isatty():
+        from beamtone.tui.early import start, worksheet_text
+
+        # an existing file's first solve starts now, in a process of its own where a
+        # processor is spare, while the app's interface is imported and drawn
+        first = start(worksheet_text(path))
     if path is not None:
         from beamtone.tui.document import TEMPLATES, Document
 
         try:
             # refuse a file that cannot be read as TOML before the screen is taken over; a
             # worksheet with entries to fix opens with them marked, a new path starts one
-            document = Document.open_or_new(path, TEMPLATES[0])
+            Document.open_or_new(path, TEMPLATES[0])
         except InputError as exc:
+            if first is not None:
+                first.cancel()
             sys.stderr.write(f"beamtone: {exc.message}\n")
             return EXIT_INPUT
     if not sys.stdin.isatty() or not sys.stdout.isatty():
@@ -311,12 +319,6 @@ def _app(path: str | None) -> int:
             "'beamtone solve FILE' (see 'beamtone --help')\n"
         )
         return EXIT_INPUT
-    from beamtone.tui.early import start
-
-    # an existing file's first solve starts now, in a process of its own where a processor
-    # is spare, while the app's interface is imported and drawn
-    exists = document is not None and document.path is not None and document.path.exists()
-    first = start(document.plain() if document is not None and exists else None)
     from beamtone.tui.app import run
 
     run(path, first)

@@ -8,11 +8,12 @@ its :class:`~beamtone.calc.analysis.Analysis` (or the :class:`~beamtone.calc.err
 that names what is wrong) through a pipe. Later solves run in the app's own worker thread, as
 before; the child serves the first one only.
 
-The child reads the worksheet as TOML text from the pipe (it unpickles nothing it is given)
-and is the app's own code; nothing is read from disk but the modules. Whatever goes wrong
-with it (it cannot start, it fails, its answer cannot be read, the worksheet changed
-meanwhile) costs only time: :meth:`outcome` returns None and the app solves in its own
-process.
+The child starts first thing, before the app has even read the worksheet as a document: it
+is given the file's TOML text through the pipe (it unpickles nothing it is given) and is the
+app's own code; nothing is read from disk but the modules. Its answer is used only where that
+text reads as the very data the app then solves. Whatever goes wrong with it (it cannot
+start, it fails, its answer cannot be read, the worksheet changed meanwhile) costs only time:
+:meth:`outcome` returns None and the app solves in its own process.
 
 The child is started only where a processor is spare (:func:`spare_processor`): on a busy
 machine the two processes take turns and the child's own start-up costs more than it saves.
@@ -26,42 +27,92 @@ import pickle
 import subprocess
 import sys
 import threading
+import time
 from typing import Any
 
-__all__ = ["EarlySolve", "main", "spare_processor", "start"]
+__all__ = ["EarlySolve", "main", "spare_processor", "start", "worksheet_text"]
+
+
+def _runnable() -> int | None:
+    """Tasks runnable on the machine now, this one included (the fewest of three looks a
+    millisecond apart, from ``/proc/loadavg``), or None where the system does not say."""
+    counts = []
+    for look in range(3):
+        if look:
+            time.sleep(0.001)
+        try:
+            with open("/proc/loadavg", encoding="ascii") as handle:
+                counts.append(int(handle.read().split()[3].split("/")[0]))
+        except (OSError, ValueError, IndexError):
+            return None
+    return min(counts)
+
+
+def _processors() -> int:
+    """Processors this process may run on."""
+    try:
+        return len(os.sched_getaffinity(0))
+    except (AttributeError, OSError):  # pragma: no cover - not Linux
+        return os.cpu_count() or 1
 
 
 def spare_processor() -> bool:
-    """Whether a processor is idle enough to solve beside the interface (the load average
-    over the last minute leaves one free). On a busy machine the two processes only take
-    turns, and the child's own start-up makes the first results later, not sooner."""
+    """Whether a processor is idle enough to solve beside the interface: besides this
+    process, at least one processor has nothing runnable on it now. On a busy machine the two
+    processes only take turns, and the child's own start-up makes the first results later,
+    not sooner.
+
+    The count is taken now, not averaged: the load average over the last minute still
+    counts a build or test run that has just ended, and would refuse the child on a machine
+    that has since gone quiet. Where the system gives no count of runnable tasks, the load
+    average over the last minute decides.
+    """
+    processors = _processors()
+    runnable = _runnable()
+    if runnable is not None:
+        return runnable <= processors - 1
     try:
         load = os.getloadavg()[0]
     except OSError:  # pragma: no cover - no load average on this system
         return False
-    return load <= (os.cpu_count() or 1) - 1
+    return load <= processors - 1
 
 
-def start(data: dict[str, Any] | None) -> EarlySolve | None:
-    """The first solve of ``data`` in a process of its own where a processor is spare
-    (:func:`spare_processor`), else None (the app solves in its worker). ``data``: an
-    existing worksheet file's plain data; None starts nothing."""
-    if data is None or not spare_processor():
+def worksheet_text(path: str | os.PathLike[str]) -> str | None:
+    """The TOML text of an existing worksheet file, for :func:`start`; None where it is not a
+    regular, readable UTF-8 text file within the worksheet size limit (the app then says what is
+    wrong and solves, if at all, in its own process)."""
+    from beamtone.calc.errors import InputError
+    from beamtone.calc.files import WORKSHEET_BYTES, read_limited
+
+    try:
+        raw = read_limited(os.path.expanduser(path), WORKSHEET_BYTES)
+        return None if b"\x00" in raw else raw.decode("utf-8").removeprefix("\ufeff")
+    except (InputError, UnicodeDecodeError):
         return None
-    return EarlySolve(data)
+
+
+def start(text: str | None) -> EarlySolve | None:
+    """The first solve of the worksheet ``text`` in a process of its own where a processor
+    is spare (:func:`spare_processor`), else None (the app solves in its worker). ``text``:
+    an existing worksheet file's TOML text (:func:`worksheet_text`); None starts nothing."""
+    if text is None or not spare_processor():
+        return None
+    return EarlySolve(text)
 
 
 class EarlySolve:
-    """A first solve of ``data`` (a worksheet as plain data) running in a child process.
+    """A first solve of the worksheet ``text`` running in a child process.
 
     Parameters
     ----------
-    data : dict
-        The worksheet as plain data (``Document.plain()``), as the app will solve it.
+    text : str
+        The worksheet as TOML text (the file as the app opens it). The child's answer is
+        used only where this text reads as the very data the app solves (:meth:`outcome`).
     """
 
-    def __init__(self, data: dict[str, Any]) -> None:
-        self.data = data
+    def __init__(self, text: str) -> None:
+        self.text = text
         self.answered = False  # whether outcome() handed back the child's answer
         self._process: subprocess.Popen[bytes] | None = None
         try:
@@ -84,12 +135,10 @@ class EarlySolve:
         if process is None or process.stdin is None:
             return
         try:
-            import tomlkit  # already loaded by the app's document
-
-            process.stdin.write(tomlkit.dumps(self.data).encode("utf-8"))
+            process.stdin.write(self.text.encode("utf-8"))
             process.stdin.close()
-        except (OSError, ValueError, TypeError):
-            pass  # the child has gone (or the data has no TOML form): outcome() says so
+        except (OSError, ValueError):
+            pass  # the child has gone: outcome() says so
 
     def outcome(self, data: dict[str, Any]) -> tuple[str, Any] | None:
         """Wait for the child's answer (in a worker thread: this blocks until it answers or
@@ -99,13 +148,13 @@ class EarlySolve:
         -------
         tuple or None
             ``("done", (Shown, pickled Analysis))`` or ``("failed", InputError)``; None
-            where ``data`` is not
-            what the child solves, or the child gave no readable answer (solve in-process).
+            where ``data`` (the worksheet the app solves, as plain data) is not what the
+            child's text reads as, or the child gave no readable answer (solve in-process).
         """
         process = self._process
         if process is None or process.stdout is None:
             return None
-        if data != self.data:
+        if data != self._data():
             self.cancel()
             return None
         try:
@@ -129,6 +178,15 @@ class EarlySolve:
 
             return "failed", InputError(*payload)
         return "done", payload
+
+    def _data(self) -> dict[str, Any] | None:
+        """The text as the child reads it (plain data), or None where it is not TOML."""
+        import tomllib
+
+        try:
+            return tomllib.loads(self.text)
+        except tomllib.TOMLDecodeError:
+            return None
 
     def cancel(self) -> None:
         """Stop the child if it still runs (the app closes, or its answer is not wanted)."""

@@ -49,7 +49,7 @@ async def test_the_first_solve_in_its_own_process_is_the_solve(bar: Path) -> Non
     """Its results are the library's, digit for digit, and the clamped-free fundamental of
     Blevins' table (R. D. Blevins 1979, Table 8-1); then the whole form is there and an edit
     is solved in the app's own worker."""
-    first = EarlySolve(Document.open(bar).plain())
+    first = EarlySolve(bar.read_text())
     app = BeamtoneApp(bar, first)
     async with app.run_test(size=(100, 40)) as pilot:
         view = await settled(pilot, app)
@@ -71,8 +71,7 @@ async def test_the_first_solve_in_its_own_process_is_the_solve(bar: Path) -> Non
 @sync
 async def test_a_first_solve_of_other_inputs_is_not_shown(bar: Path, tmp_path: Path) -> None:
     """The file changed between the start and the screen: the app solves what it opened."""
-    other = Document.from_text(BAR.replace('"1 m"', '"2 m"')).plain()
-    first = EarlySolve(other)
+    first = EarlySolve(BAR.replace('"1 m"', '"2 m"'))
     app = BeamtoneApp(bar, first)
     async with app.run_test(size=(100, 40)) as pilot:
         view = await settled(pilot, app)
@@ -104,7 +103,7 @@ async def test_a_worksheet_with_a_logarithmic_unit_opens_marked(
     marked with what was expected and why, and fixing it gives results."""
     path = tmp_path / "level.toml"
     path.write_text(BAR.replace('width = "40 mm"', f'width = "40 {unit}"'))
-    first = EarlySolve(Document.open(path).plain()) if early else None
+    first = EarlySolve(path.read_text()) if early else None
     app = BeamtoneApp(path, first)
     async with app.run_test(size=(80, 24)) as pilot:
         view = await settled(pilot, app)
@@ -146,19 +145,56 @@ def test_the_child_starts_only_where_a_processor_is_spare(
     bar: Path, monkeypatch: pytest.MonkeyPatch
 ) -> None:
     """On a busy machine the two processes would only take turns: the app solves in its
-    worker instead (the load average leaves no processor free)."""
+    worker instead. Busy is counted now (tasks runnable besides this one), not as the load
+    average over the last minute, which still counts a run that has just ended."""
     from beamtone.tui import early
 
-    data = Document.open(bar).plain()
+    text = early.worksheet_text(bar)
+    assert text == bar.read_text()
     assert early.start(None) is None
-    monkeypatch.setattr(early.os, "cpu_count", lambda: 2)
-    monkeypatch.setattr(early.os, "getloadavg", lambda: (5.0, 5.0, 5.0))
-    assert early.start(data) is None
-    monkeypatch.setattr(early.os, "getloadavg", lambda: (0.3, 0.3, 0.3))
-    first = early.start(data)
+    monkeypatch.setattr(early, "_processors", lambda: 2)
+    monkeypatch.setattr(early, "_runnable", lambda: 3)  # this one and two others
+    monkeypatch.setattr(early.os, "getloadavg", lambda: (0.0, 0.0, 0.0))
+    assert early.start(text) is None
+    monkeypatch.setattr(early, "_runnable", lambda: 1)  # only this one
+    monkeypatch.setattr(early.os, "getloadavg", lambda: (5.0, 5.0, 5.0))  # a run just ended
+    first = early.start(text)
     assert isinstance(first, EarlySolve)
     first.cancel()
-    assert first.outcome(data) is None  # stopped: the app would solve in its worker
+    assert first.outcome(Document.open(bar).plain()) is None  # stopped: solve in the worker
+    # where the system gives no count of runnable tasks, the load average decides
+    monkeypatch.setattr(early, "_runnable", lambda: None)
+    assert early.start(text) is None
+    monkeypatch.setattr(early.os, "getloadavg", lambda: (0.3, 0.3, 0.3))
+    assert early.spare_processor()
+
+
+def test_the_count_of_runnable_tasks_includes_this_one() -> None:
+    """Read from the system where it gives one: at least this process is runnable."""
+    from beamtone.tui import early
+
+    runnable = early._runnable()
+    assert runnable is None or runnable >= 1
+
+
+@pytest.mark.parametrize(
+    ("content", "why"),
+    [(b"\x00\x01", "binary"), ("x".encode("utf-16"), "not UTF-8"), (None, "a folder")],
+)
+def test_only_a_readable_worksheet_text_starts_a_child(
+    tmp_path: Path, content: bytes | None, why: str
+) -> None:
+    """A file the app will refuse or mark gets no first-solve process (``why``): the app says
+    what is wrong and solves, if at all, in its own process."""
+    from beamtone.tui import early
+
+    path = tmp_path / "sheet.toml"
+    if content is None:
+        path.mkdir()
+    else:
+        path.write_bytes(content)
+    assert early.worksheet_text(path) is None
+    assert early.worksheet_text(tmp_path / "missing.toml") is None
 
 
 class _Marker:
