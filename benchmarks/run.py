@@ -10,7 +10,6 @@ Benchmarks are never timed tests: the suite does not fail on speed.
 from __future__ import annotations
 
 import argparse
-import asyncio
 import os
 import platform
 import statistics
@@ -520,6 +519,7 @@ def bench_sizing(repeat: int, sweep_points: int) -> list[tuple[str, float, float
 
 
 def bench_app(edits: int) -> list[tuple[str, float, float | None]]:
+    import asyncio
     import tempfile
 
     from beamtone.tui.app import BeamtoneApp
@@ -551,22 +551,35 @@ def bench_app(edits: int) -> list[tuple[str, float, float | None]]:
 
 
 async def _first_results(pilot: Any, app: Any, settled: bool = True) -> Any:
-    """Wait (polling the screen, as a benchmark may) until the app shows its first results
-    (with ``settled``, also until the rest of the form is built and the solve is done);
-    return its workbench."""
+    """Wait until the app shows its first results (with ``settled``, also until the rest of
+    the form is built and the solve is done); return its workbench.
+
+    Only the workbench's arrival is polled (every 10 ms, while the app starts); the results
+    are awaited on its events, so that no loop waking every millisecond takes the
+    interpreter from the solve it times."""
     while True:
-        await pilot.pause(0.002)
         try:
             bench = app.workbench
+            break
         except LookupError:
-            continue
-        if bench.solves and not (settled and bench.pending):
-            return bench
+            await pilot.pause(0.01)
+    if not bench.solves:
+        await bench.results_shown.wait()
+    while settled and bench.pending:
+        bench.solve_finished.clear()
+        if bench.pending:
+            await bench.solve_finished.wait()
+    return bench
 
 
 async def _edit_latencies(pilot: Any, bench: Any, length: float, edits: int) -> list[float]:
     """Seconds from each edit of the length [m] to its refreshed results, less the typing
-    pause (DEBOUNCE)."""
+    pause (DEBOUNCE).
+
+    The end is awaited on the workbench's ``results_shown`` event, never polled: a loop
+    waking every millisecond takes the interpreter from the solve's worker thread and made
+    the very solve it timed half as slow again (42 ms alone, 66 ms beside such a loop).
+    """
     from textual.widgets import Input
 
     from beamtone.tui.widgets.debounce import DEBOUNCE
@@ -575,27 +588,30 @@ async def _edit_latencies(pilot: Any, bench: Any, length: float, edits: int) -> 
     latencies = []
     for i in range(edits):
         await pilot.pause(0.2)  # let the last refresh draw, as between keystrokes
-        solves = bench.solves
+        bench.results_shown.clear()
         t0 = time.perf_counter()
         field.value = f"{length + 0.01 * (i + 1):.2f} m"
-        while bench.solves == solves:
-            await asyncio.sleep(0.001)
+        await bench.results_shown.wait()
         latencies.append(time.perf_counter() - t0 - DEBOUNCE)
     return latencies
 
 
 def _app_first_results(path: str, child: str = "spare") -> None:
     """In a process of its own: start the app headless on ``path`` as ``beamtone FILE`` does
-    (the file's first solve started before the interface is imported, in a process of its
-    own where a processor is spare), stop at its first
-    results and print the moment they were on screen (``time.monotonic``, what ``--app-start``
-    runs: the benchmark counts from before it started the process)."""
-    from beamtone.tui.document import TEMPLATES, Document
-    from beamtone.tui.early import EarlySolve, start
+    (the file's first solve started first thing, before the worksheet is opened as a document
+    or the interface is imported, in a process of its own where a processor is spare), stop
+    at its first results and print the moment they were on screen (``time.monotonic``, what
+    ``--app-start`` runs: the benchmark counts from before it started the process)."""
+    from beamtone.tui.early import EarlySolve, start, worksheet_text
 
-    data = Document.open_or_new(path, TEMPLATES[0]).plain()
+    text = worksheet_text(path)
     # child: "spare" as beamtone FILE decides, "always" the first-solve process, "never" none
-    first = {"spare": start, "always": EarlySolve, "never": lambda _: None}[child](data)
+    first = {"spare": start, "always": EarlySolve, "never": lambda _: None}[child](text)
+    import asyncio
+
+    from beamtone.tui.document import TEMPLATES, Document
+
+    Document.open_or_new(path, TEMPLATES[0])  # as beamtone FILE checks it before the screen
     from beamtone.tui.app import BeamtoneApp
 
     async def scenario() -> None:
@@ -630,8 +646,10 @@ def bench_app_ratios(runs: int, edits: int) -> list[tuple[str, float, float | No
     refreshed results (typed into the length, after the typing pause) against the warm
     analysis of the same worksheet (``analyse(load(...))``; goal at most 2x). The start is
     also timed with the first solve always in a process of its own and always in the app's
-    worker, so both ways show beside the one ``beamtone FILE`` picks by the load average.
+    worker, so both ways show beside the one ``beamtone FILE`` picks by what the machine is
+    running at the time.
     """
+    import asyncio
     import tempfile
 
     from beamtone.calc import analyse, load

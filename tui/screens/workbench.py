@@ -69,10 +69,12 @@ class Workbench(Screen[None]):
         self.solves = 0  # solves shown
         self.finished = 0  # solves finished, shown or failed
         self.pending = False
-        # what the shown results (or the shown error) were solved from, and an event set each
-        # time a solve of the latest inputs finishes: scripts and tests wait on these
+        # what the shown results (or the shown error) were solved from, an event set each
+        # time a solve of the latest inputs finishes, and one set each time results are
+        # shown (before the form's marks): scripts and tests wait on these
         self.solved: dict | None = None
         self.solve_finished = asyncio.Event()
+        self.results_shown = asyncio.Event()
         self._mounted = False
         self.last_edit = ""  # the latest edit, "key = text": what the results are for
         self._solving_edit = ""
@@ -210,7 +212,7 @@ class Workbench(Screen[None]):
             return
         QuantityField.checking = True
         form = self.query_one(WorksheetForm)
-        form.clear_solve_errors()
+        form.recheck_all()
         if self._last_error is not None:
             form.show_error(self._last_error)
 
@@ -219,6 +221,7 @@ class Workbench(Screen[None]):
         if version != self._version:
             return
         self.solves += 1
+        self.results_shown.set()
         self.query_one(ResultsView).show(view, self._for_text())
         self.query_one(ModePlot).show(view.plot)
         self.query_one(WorksheetForm).update_derived(view.derived)
@@ -231,6 +234,7 @@ class Workbench(Screen[None]):
             results.analysis = analysis
         else:
             self.solves += 1
+            self.results_shown.set()
             results.show(view, self._for_text(), analysis)
             self.query_one(ModePlot).show(view.plot)
         self._settle(version, view.derived, None)
