@@ -17,6 +17,7 @@ from textual import events, on
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.message import Message
+from textual.widget import Widget
 from textual.widgets import Button, Label, Select, Static
 
 from beamtone.calc import materials, schema
@@ -106,6 +107,9 @@ class WorksheetForm(VerticalScroll):
         # rest to fill(), called once the first results are on screen
         self.complete = not lazy
         self._derived = ""  # the shown section and member properties
+        self._derived_panel: Static | None = None  # where they are shown (set when built)
+        # fields a solve's error marked: the next solve clears these only, not every field
+        self._solve_marked: list[Widget] = []
         # Selects announce their first value when mounted; only later changes are edits
         # (otherwise a value the picker cannot show would be overwritten unasked).
         self._armed = False
@@ -149,7 +153,8 @@ class WorksheetForm(VerticalScroll):
                 yield from self._section(f"{key}.section", seg["section"], picker=False)
         yield from self._more("segment", len(segments))
         yield Button("+ segment (step the member)", id="add-segment", classes="small")
-        yield Static("", id="derived", classes="derived")
+        self._derived_panel = Static("", id="derived", classes="derived")
+        yield self._derived_panel
 
         yield Static("2  Ends", classes="step")
         for side in ("left", "right"):
@@ -485,19 +490,32 @@ class WorksheetForm(VerticalScroll):
         """Show the section and member properties of the last solved member
         (:func:`beamtone.tui.shown.derived_text`)."""
         self._derived = text
-        for widget in self.query("#derived").results(Static):
-            widget.update(text)
-            widget.remove_class("-stale")
+        panel = self._derived_panel
+        if panel is not None and panel.is_attached:
+            panel.update(text)
+            panel.remove_class("-stale")
 
     def mark_derived_stale(self) -> None:
         """Mark the section and member properties out of date until the next solve."""
-        for widget in self.query("#derived"):
-            if self._derived and not widget.has_class("-stale"):
-                widget.add_class("-stale")
-                widget.update(Text(f"(out of date) {self._derived}", style="dim italic"))
+        panel = self._derived_panel
+        if panel is None or not panel.is_attached:
+            return
+        if self._derived and not panel.has_class("-stale"):
+            panel.add_class("-stale")
+            panel.update(Text(f"(out of date) {self._derived}", style="dim italic"))
 
     def clear_solve_errors(self) -> None:
-        """Drop the marks a failed solve left; each field shows only its own reading."""
+        """Drop the marks a failed solve left; each field it marked shows only its own
+        reading again (the others show nothing but their own)."""
+        marked, self._solve_marked = self._solve_marked, []
+        for field in marked:
+            if field.is_attached:
+                field.recheck()  # type: ignore[attr-defined]
+
+    def recheck_all(self) -> None:
+        """Every field reads its text again (once the unit registry is built), and the marks
+        of a failed solve are dropped."""
+        self._solve_marked = []
         for field in self.query(".quantity, .text"):
             field.recheck()  # type: ignore[attr-defined]
 
@@ -508,6 +526,7 @@ class WorksheetForm(VerticalScroll):
             if getattr(field, "key", None) == exc.key:
                 hint = f" ({exc.hint})" if exc.hint else ""
                 field.show_error(f"expected {exc.expected}{hint}")  # type: ignore[attr-defined]
+                self._solve_marked.append(field)
                 return True
         row = _ROW_KEY.match(exc.key or "")
         if row is not None:
