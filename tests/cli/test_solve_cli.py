@@ -1,4 +1,8 @@
-"""Checks of ``beamtone solve`` run as a separate process, as a user runs it.
+"""Checks of ``beamtone solve`` as a user runs it: its output, exit status and files.
+
+A few runs (``_IN_A_PROCESS``) start a new process, as a user's shell does; the others run
+the same ``beamtone.cli.main.main`` in this process (``tests.hardening.bounded.here``), and
+``test_a_process_and_this_process_print_the_same`` checks that the two agree, byte for byte.
 
 References used here:
 
@@ -13,7 +17,7 @@ References used here:
   agreement of 1959); 1 lbf = 0.45359237 kg * 9.80665 m/s^2 = 4.4482216152605 N (standard
   gravity, 3rd CGPM, 1901).
 
-The processes of each group run concurrently (module-scoped fixtures) to keep the file fast.
+The runs of each group are made once (module-scoped fixtures) and shared by its tests.
 """
 
 from __future__ import annotations
@@ -30,6 +34,8 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import pytest
+
+from tests.hardening.bounded import here
 
 ROOT = Path(__file__).resolve().parents[2]
 EXAMPLES = sorted((ROOT / "worksheets").glob("*.toml"))
@@ -67,7 +73,16 @@ def _snapshot(path: Path | None) -> tuple[bytes, int] | None:
     return path.read_bytes(), path.stat().st_mtime_ns
 
 
-def _beamtone(args: tuple[str, ...], file: Path | None = None) -> Run:
+# runs that start a new process (the rest run in this one; see the module's docstring)
+_IN_A_PROCESS = {
+    "json:free-free-bar.toml", "text:machine-span.toml", "missing-file", "wrong-unit",
+    "no-file", "unknown-command", "trailing-operator-unit",
+}  # fmt: skip
+# the same runs made in this process, for the comparison
+_HERE_TOO: dict[str, Run] = {}
+
+
+def _process(args: tuple[str, ...], file: Path | None = None) -> Run:
     env = dict(os.environ)
     env["PYTHONPATH"] = str(ROOT)
     before = _snapshot(file)
@@ -82,11 +97,24 @@ def _beamtone(args: tuple[str, ...], file: Path | None = None) -> Run:
     return Run(args, proc.returncode, proc.stdout, proc.stderr, file, before, _snapshot(file))
 
 
+def _here(args: tuple[str, ...], file: Path | None = None) -> Run:
+    before = _snapshot(file)
+    done = here(*args, timeout=300)
+    return Run(args, done.returncode, done.stdout, done.stderr, file, before, _snapshot(file))
+
+
 def _run_all(jobs: dict[str, tuple[tuple[str, ...], Path | None]]) -> dict[str, Run]:
-    """Run every job concurrently; returns the runs by job name."""
+    """Make every run (those in ``_IN_A_PROCESS`` both ways); returns the runs by name."""
+    runs = {}
     with ThreadPoolExecutor(max_workers=max(2, os.cpu_count() or 2)) as pool:
-        futures = {name: pool.submit(_beamtone, args, file) for name, (args, file) in jobs.items()}
-        return {name: future.result() for name, future in futures.items()}
+        futures = {name: pool.submit(_process, args, file)
+                   for name, (args, file) in jobs.items() if name in _IN_A_PROCESS}  # fmt: skip
+        for name, (args, file) in jobs.items():  # meanwhile, the rest in this process
+            runs[name] = _here(args, file)
+        for name, future in futures.items():
+            _HERE_TOO[name] = runs[name]
+            runs[name] = future.result()
+    return runs
 
 
 def _solve(path: Path, *options: str) -> tuple[tuple[str, ...], Path]:
@@ -523,3 +551,23 @@ def test_odd_inputs_are_input_errors(name: str, internal_runs: dict[str, Run]) -
     assert "Traceback" not in run.stderr
     assert run.returncode == 2, run.stderr
     assert run.stderr.startswith("beamtone: ") and run.stderr.count("\n") == 1
+
+
+def test_a_process_and_this_process_print_the_same(
+    example_runs: dict[str, Run],
+    bad_runs: dict[str, Run],
+    arg_runs: dict[str, Run],
+    internal_runs: dict[str, Run],
+) -> None:
+    """The runs made both ways (a success as JSON and as text, bad input, bad arguments, an
+    input that once ended in an internal error): the same exit status and the same output,
+    byte for byte; the other runs of this file rely on that."""
+    runs = {**example_runs, **bad_runs, **arg_runs, **internal_runs}
+    assert set(_HERE_TOO) == _IN_A_PROCESS
+    for name in sorted(_IN_A_PROCESS):
+        process, here_run = runs[name], _HERE_TOO[name]
+        assert (here_run.returncode, here_run.stdout, here_run.stderr) == (
+            process.returncode,
+            process.stdout,
+            process.stderr,
+        ), name
