@@ -125,35 +125,73 @@ async def on_top(pilot: Pilot, app: BeamtoneApp, kind: type[S]) -> S:
 
 
 async def click(pilot: Pilot, widget: Widget) -> None:
-    """Scroll ``widget`` into view and click it with the mouse."""
+    """Scroll ``widget`` into view and click it with the mouse.
+
+    The press and the release go to the app as the terminal sends them, in one go; the app
+    makes the click of them where both land on the same widget. The test fails where the
+    widget is not the one under the pointer (hidden, cut off, covered). Returns once the
+    app has taken the two events; what the click does is for the caller to wait for."""
     widget.scroll_visible(animate=False)
     await pilot.pause()  # flush: the scroll lands before the click
-    assert await pilot.click(widget), f"{widget!r} was not under the pointer"
+    app = pilot.app
+    x, y = widget.region.offset
+    assert (x, y) in app.screen.size.region, f"{widget!r} is outside the screen"
+    under, _ = app.get_widget_at(x, y)
+    assert under is widget, f"{widget!r} was not under the pointer ({under!r} was)"
+    for kind in (events.MouseDown, events.MouseUp):
+        app.post_message(kind(None, x, y, 0, 0, 1, False, False, False, x, y))
+    await _handled(app)
+
+
+async def _handled(app: BeamtoneApp) -> None:
+    """Wait until the app has handled the messages posted to it so far (it runs a callback
+    queued behind them)."""
+    done = asyncio.Event()
+    app.call_later(done.set)
+    await asyncio.wait_for(done.wait(), TIMEOUT)
+
+
+async def _until(
+    node: Widget, attribute: str, condition: Callable[[], bool], what: str | Callable[[], str]
+) -> None:
+    """Wait until ``condition()`` holds, checked each time the reactive ``attribute`` of
+    ``node`` changes (no polling)."""
+    changed = asyncio.Event()
+    node.app.watch(node, attribute, lambda _value: changed.set(), init=False)
+    try:
+        while not condition():
+            changed.clear()
+            await asyncio.wait_for(changed.wait(), TIMEOUT)
+    except TimeoutError:
+        raise AssertionError(what()) if callable(what) else AssertionError(what) from None
 
 
 async def type_into(pilot: Pilot, field: Input, text: str) -> None:
     """Click ``field``, clear it and type ``text`` key by key.
 
     The keys go in one burst, as from a fast typist: each is a key event through the app, as
-    from the terminal, and the test waits until the field holds ``text``. (``pilot.press``
-    instead waits for the whole process to idle after every key, twice: tens of milliseconds a
-    key, and up to a second while a solve runs in a worker.)
+    from the terminal, and the test waits until the field holds ``text`` (it watches the
+    field's value: no polling, no pause). ``pilot.press`` instead waits for the whole process
+    to idle after every key, twice: tens of milliseconds a key, and up to a second while a
+    solve runs in a worker.
     """
     await click(pilot, field)
-    assert field.has_focus, f"{field!r} did not take the focus"
-    await pilot.press("end", "ctrl+u")
+    await _until(pilot.app.screen, "focused", lambda: field.has_focus,
+                 f"{field!r} did not take the focus")  # fmt: skip
     app = pilot.app
+    if field.value:
+        # The end of the text, then delete to its start. These two are the field's key
+        # bindings, which run once the key has bubbled up to the app: typing on before the
+        # field is empty would type ahead of the deletion.
+        for key in ("end", "ctrl+u"):
+            app.post_message(events.Key(key, None))
+        await _until(field, "value", lambda: field.value == "", f"{field!r} was not cleared")
     for character in text:
         app.post_message(events.Key(_character_to_key(character), character))
-
-    async def typed() -> None:
-        while field.value != text:
-            await pilot.pause()  # flush: the keys reach the field
-
-    try:
-        await asyncio.wait_for(typed(), TIMEOUT)
-    except TimeoutError:
-        raise AssertionError(f"typed {text!r}, the field holds {field.value!r}") from None
+    await _until(
+        field, "value", lambda: field.value == text,
+        lambda: f"typed {text!r}, the field holds {field.value!r}",
+    )  # fmt: skip
 
 
 def field_of(app: BeamtoneApp, key: str) -> Input:
